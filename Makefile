@@ -1,0 +1,113 @@
+# floodgauge - top-level Makefile.
+#
+#   make            build build/floodgauge (installs missing Debian packages first when root)
+#   make run        build and run the demo on the bundled invented plant
+#   make test       build and run every test; ends with "N passed, N failed"
+#   make test SAN=1 the same under AddressSanitizer + UndefinedBehaviorSanitizer (build/san/)
+#   make bench      performance figures (printed, never asserted)
+#   make install    PREFIX=/usr/local DESTDIR=
+#
+# Knobs: CC, SAN=0|1, WERROR=1|0 (0 for packagers on newer compilers), PREFIX, DESTDIR.
+
+CC      ?= cc
+SAN     ?= 0
+WERROR  ?= 1
+PREFIX  ?= /usr/local
+DESTDIR ?=
+
+ifeq ($(SAN),1)
+BUILD   := build/san
+OPT     := -O1 -g -fno-omit-frame-pointer -fsanitize=address,undefined -fno-sanitize-recover=all
+else
+BUILD   := build
+OPT     := -O2 -g
+endif
+
+WARN := -Wall -Wextra -Wconversion -Wshadow -Wstrict-prototypes -Wmissing-prototypes -Wformat=2 \
+        -Wno-sign-conversion
+ifeq ($(WERROR),1)
+WARN += -Werror
+endif
+
+# Recursively expanded on purpose: pkg-config may only exist after `make deps`.
+PKG_CFLAGS = $(shell pkg-config --cflags libmodbus inih libcjson 2>/dev/null)
+PKG_LIBS   = $(shell pkg-config --libs libmodbus inih libcjson 2>/dev/null) -lpaho-mqtt3as
+
+CPPFLAGS := -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -Imodels -Imonitor -Idrivers -Ireplay
+CFLAGS   := -std=c11 $(OPT) $(WARN) -MMD -MP
+LDLIBS    = $(PKG_LIBS) -lm -lpthread
+
+LIB_SRC  := $(wildcard models/*.c drivers/*.c replay/*.c) $(filter-out monitor/main.c,$(wildcard monitor/*.c))
+LIB_OBJ  := $(LIB_SRC:%.c=$(BUILD)/obj/%.o)
+MAIN_OBJ := $(BUILD)/obj/monitor/main.o
+BIN      := $(BUILD)/floodgauge
+
+TSUP_SRC := $(wildcard tests/support/*.c)
+TSUP_OBJ := $(TSUP_SRC:%.c=$(BUILD)/obj/%.o)
+TEST_SRC := $(wildcard tests/unit/test_*.c tests/ref/test_*.c)
+TEST_BIN := $(TEST_SRC:tests/%.c=$(BUILD)/tests/%)
+
+# Models as a shared library, without sanitizers, for the python3-fluids
+# comparison scripts (ctypes).
+REF_OBJ  := $(wildcard models/*.c)
+REF_SO   := build/ref/libfgmodels.so
+
+.PHONY: all bin deps run test tests-bin bench install clean
+.DEFAULT_GOAL := all
+
+all: deps
+	@$(MAKE) --no-print-directory bin
+
+deps:
+	@sh tools/deps.sh
+
+bin: $(BIN)
+
+$(BIN): $(MAIN_OBJ) $(BUILD)/libfg.a
+	$(CC) $(CFLAGS) -o $@ $^ $(LDLIBS)
+
+$(BUILD)/libfg.a: $(LIB_OBJ)
+	@mkdir -p $(@D)
+	rm -f $@ && ar rcs $@ $^
+
+$(BUILD)/obj/%.o: %.c
+	@mkdir -p $(@D)
+	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) $(CFLAGS) -c -o $@ $<
+
+# Per-test extra link flags (wrapping) go here as target-specific variables.
+TEST_LDFLAGS =
+$(BUILD)/tests/%: tests/%.c $(TSUP_OBJ) $(BUILD)/libfg.a
+	@mkdir -p $(@D)
+	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) -Itests/support $(CFLAGS) -o $@ $< $(TSUP_OBJ) \
+		$(BUILD)/libfg.a $(TEST_LDFLAGS) -lcmocka $(LDLIBS)
+
+$(REF_SO): $(REF_OBJ) $(wildcard models/*.h)
+	@mkdir -p $(@D)
+	$(CC) -std=c11 -O2 -fPIC -shared -D_POSIX_C_SOURCE=200809L -Imodels -o $@ $(REF_OBJ) -lm
+
+tests-bin: $(BIN) $(TEST_BIN) $(REF_SO)
+
+test: deps
+	@$(MAKE) --no-print-directory tests-bin
+	@FG_BUILD=$(BUILD) FG_BIN=$(BIN) FG_REF_SO=$(REF_SO) SAN=$(SAN) sh tests/run.sh
+
+run: deps
+	@$(MAKE) --no-print-directory bin
+	@FG_BIN=$(BIN) sh tools/demo.sh
+
+bench: deps
+	@$(MAKE) --no-print-directory bin
+	@FG_BIN=$(BIN) sh tools/bench.sh
+
+install: all
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/man/man1 \
+		$(DESTDIR)$(PREFIX)/share/floodgauge
+	install -m 0755 $(BIN) $(DESTDIR)$(PREFIX)/bin/floodgauge
+	install -m 0644 docs/floodgauge.1 $(DESTDIR)$(PREFIX)/share/man/man1/floodgauge.1
+	install -m 0644 configs/demo.ini $(DESTDIR)$(PREFIX)/share/floodgauge/demo.ini
+	install -m 0644 configs/floodgauge.service $(DESTDIR)$(PREFIX)/share/floodgauge/floodgauge.service
+
+clean:
+	rm -rf build
+
+-include $(LIB_OBJ:.o=.d) $(MAIN_OBJ:.o=.d) $(TSUP_OBJ:.o=.d) $(TEST_BIN:=.d)

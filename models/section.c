@@ -1,0 +1,153 @@
+/*
+ * section.c - the common part of a section evaluation and the dispatch to
+ * the type evaluators (tray.c, packed.c, spray.c, bubble.c).
+ *
+ * Common fields use the tower cross-section as the area basis for every type,
+ * so the numbers of different sections compare directly; the tray evaluator
+ * works on its net and active areas internally.
+ */
+#include "section.h"
+
+#include <assert.h>
+#include <math.h>
+
+#include "gas.h"
+
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+
+double prop_table_at(const struct prop_table *t, double t_k, struct fg_extrap *x)
+{
+	assert(t != NULL);
+	assert(t->point_count >= 1);
+	assert(t->point_count <= FG_PROP_POINTS_MAX);
+	unsigned n = t->point_count;
+	if (n == 1 || !isfinite(t_k))
+		return t->value[0];
+	if (t_k <= t->t_k[0]) {
+		if (t_k < t->t_k[0])
+			fg_extrap_note(x, "property table: temperature below the first point");
+		return t->value[0];
+	}
+	if (t_k >= t->t_k[n - 1]) {
+		if (t_k > t->t_k[n - 1])
+			fg_extrap_note(x, "property table: temperature above the last point");
+		return t->value[n - 1];
+	}
+	unsigned i = 1;
+	while (i < n - 1 && t_k > t->t_k[i])
+		i++;
+	double w = (t_k - t->t_k[i - 1]) / (t->t_k[i] - t->t_k[i - 1]);
+	return t->value[i - 1] + w * (t->value[i] - t->value[i - 1]);
+}
+
+void section_fluids(const struct section_props *props, double t_k, double rho_g_kgm3,
+		    struct fluid_state *f, struct fg_extrap *x)
+{
+	assert(props != NULL);
+	assert(f != NULL);
+	f->rho_g_kgm3 = rho_g_kgm3;
+	f->rho_l_kgm3 = prop_table_at(&props->liquid_density_kgm3, t_k, x);
+	f->mu_g_pas = prop_table_at(&props->gas_viscosity_pas, t_k, x);
+	f->mu_l_pas = prop_table_at(&props->liquid_viscosity_pas, t_k, x);
+	f->sigma_nm = prop_table_at(&props->surface_tension_nm, t_k, x);
+}
+
+double section_area_m2(const struct section_geom *g)
+{
+	assert(g != NULL);
+	return M_PI * g->diameter_m * g->diameter_m / 4.0;
+}
+
+static bool fluids_usable(const struct fluid_state *f)
+{
+	return isfinite(f->rho_g_kgm3) && f->rho_g_kgm3 > 0.0 && isfinite(f->rho_l_kgm3) &&
+	       f->rho_l_kgm3 > f->rho_g_kgm3 && isfinite(f->mu_g_pas) && f->mu_g_pas > 0.0 &&
+	       isfinite(f->mu_l_pas) && f->mu_l_pas > 0.0 && isfinite(f->sigma_nm) &&
+	       f->sigma_nm > 0.0;
+}
+
+/* Fills the fields every section type shares. Returns false when the point
+ * cannot be evaluated at all (no gas flow, no usable fluids). */
+static bool common_fields(const struct section_geom *g, const struct fluid_state *f,
+			  const struct section_point *p, struct section_result *r)
+{
+	double area_m2 = section_area_m2(g);
+	r->v[RF_DP_PA] = p->dp_pa;
+	if (!isfinite(f->rho_g_kgm3) || f->rho_g_kgm3 <= 0.0)
+		return false;
+	r->v[RF_GAS_DENSITY] = f->rho_g_kgm3;
+	if (!isfinite(p->gas_kgs) || p->gas_kgs < 0.0 || !(area_m2 > 0.0))
+		return false;
+	double u_ms = p->gas_kgs / (f->rho_g_kgm3 * area_m2);
+	r->v[RF_GAS_VELOCITY] = u_ms;
+	r->v[RF_F_FACTOR] = u_ms * sqrt(f->rho_g_kgm3);
+	if (!fluids_usable(f))
+		return false;
+	r->v[RF_CAP_FACTOR] = u_ms * sqrt(f->rho_g_kgm3 / (f->rho_l_kgm3 - f->rho_g_kgm3));
+	if (isfinite(p->liquid_kgs) && p->liquid_kgs >= 0.0 && p->gas_kgs > 0.0)
+		r->v[RF_FLOW_PARAM] =
+			p->liquid_kgs / p->gas_kgs * sqrt(f->rho_g_kgm3 / f->rho_l_kgm3);
+	return true;
+}
+
+void section_eval(const struct section_geom *g, const struct section_props *props,
+		  const struct section_point *p, struct section_result *r)
+{
+	assert(g != NULL);
+	assert(props != NULL);
+	assert(p != NULL);
+	assert(r != NULL);
+	assert(g->type < SECTION_TYPE_COUNT);
+	result_clear(r);
+
+	double rho_g = p->gas_density_kgm3;
+	if (!(isfinite(rho_g) && rho_g > 0.0))
+		rho_g = gas_density_kgm3(p->pressure_pa, p->temperature_k,
+					 props->gas_molar_mass_kgkmol, props->gas_compressibility,
+					 &r->extrap);
+	struct fluid_state f;
+	section_fluids(props, p->temperature_k, rho_g, &f, &r->extrap);
+
+	struct section_point q = *p;
+	/* A bubble column often has no liquid through-flow (batch liquid). */
+	if (g->type == SECTION_BUBBLE && !isfinite(q.liquid_kgs))
+		q.liquid_kgs = 0.0;
+	if (!common_fields(g, &f, &q, r) || !isfinite(q.liquid_kgs) || q.liquid_kgs < 0.0) {
+		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
+		return;
+	}
+	switch (g->type) {
+	case SECTION_TRAY: tray_eval(g, &f, &q, r); break;
+	case SECTION_PACKED: packed_eval(g, &f, &q, r); break;
+	case SECTION_SPRAY: spray_eval(g, &f, &q, r); break;
+	case SECTION_BUBBLE: bubble_eval(g, &f, &q, r); break;
+	case SECTION_TYPE_COUNT: assert(0); break;
+	}
+	r->model_basis = r->basis;
+	if (r->extrap.count > 0)
+		fg_quality_raise(&r->quality, FG_QUALITY_UNCERTAIN);
+	section_fuse(r, NAN);
+}
+
+void section_fuse(struct section_result *r, double trend_pct)
+{
+	assert(r != NULL);
+	double best = NAN;
+	enum flood_basis basis = FLOOD_BASIS_NONE;
+	if (isfinite(r->v[RF_FLOOD_PCT])) {
+		best = r->v[RF_FLOOD_PCT];
+		basis = r->model_basis;
+	}
+	if (isfinite(r->v[RF_DP_FLOOD_PCT]) && !(r->v[RF_DP_FLOOD_PCT] <= best)) {
+		best = r->v[RF_DP_FLOOD_PCT];
+		basis = FLOOD_BASIS_DP;
+	}
+	if (isfinite(trend_pct) && !(trend_pct <= best)) {
+		best = trend_pct;
+		basis = FLOOD_BASIS_DP_TREND;
+	}
+	r->v[RF_FLOOD_INDEX] = best;
+	r->basis = isfinite(best) ? basis : FLOOD_BASIS_NONE;
+}
