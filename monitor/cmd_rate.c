@@ -1,0 +1,254 @@
+/*
+ * cmd_rate.c - `floodgauge check` and `floodgauge rate`: the config and one
+ * operating point, without any plant connection.
+ */
+#include <errno.h>
+#include <getopt.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "commands.h"
+#include "config.h"
+#include "jsonw.h"
+#include "point.h"
+
+static struct fg_config *load_or_report(const char *path)
+{
+	struct fg_config *cfg = malloc(sizeof(*cfg));
+	if (cfg == NULL) {
+		fprintf(stderr, "floodgauge: out of memory\n");
+		return NULL;
+	}
+	if (config_load(cfg, path, stderr) != 0) {
+		free(cfg);
+		return NULL;
+	}
+	return cfg;
+}
+
+int cmd_check(int argc, char **argv)
+{
+	static const struct option opts[] = {
+		{"config", required_argument, NULL, 'c'}, {"help", no_argument, NULL, 'h'}, {0}};
+	const char *path = NULL;
+	int ch;
+	optind = 1;
+	while ((ch = getopt_long(argc, argv, "c:h", opts, NULL)) != -1) {
+		switch (ch) {
+		case 'c': path = optarg; break;
+		case 'h':
+			printf("usage: floodgauge check -c FILE\n\nReads FILE, checks every key, "
+			       "reference and geometry, and prints each\nproblem as FILE:LINE: what. "
+			       "Exit 0 when valid, 2 when not.\n");
+			return 0;
+		default: return EXIT_USAGE;
+		}
+	}
+	if (path == NULL || optind != argc) {
+		fprintf(stderr, "usage: floodgauge check -c FILE\n");
+		return EXIT_USAGE;
+	}
+	struct fg_config *cfg = load_or_report(path);
+	if (cfg == NULL)
+		return EXIT_USAGE;
+	unsigned by_type[SECTION_TYPE_COUNT] = {0};
+	for (unsigned i = 0; i < cfg->section_count; i++)
+		by_type[cfg->sections[i].geom.type]++;
+	printf("%s: ok: %s, %u source(s), %u tag(s), %u section(s) (%u tray, %u packed, %u spray, "
+	       "%u bubble), %u alarm(s)%s%s\n",
+	       path, cfg->monitor.name, cfg->source_count, cfg->tag_count, cfg->section_count,
+	       by_type[SECTION_TRAY], by_type[SECTION_PACKED], by_type[SECTION_SPRAY],
+	       by_type[SECTION_BUBBLE], cfg->alarm_count, cfg->mqtt.enabled ? ", mqtt" : "",
+	       cfg->exp.enabled ? ", modbus export" : "");
+	free(cfg);
+	return 0;
+}
+
+static void rate_usage(FILE *f)
+{
+	fprintf(f, "usage: floodgauge rate -c FILE --section NAME [--set TAG=VALUE]... [--json]\n\n"
+		   "Evaluates one operating point of a section. Tag values are in each tag's own\n"
+		   "unit; a tag not set takes its 'value =' or its 'nominal ='. Prints every\n"
+		   "result field that applies: an aligned table, or one JSON object with --json.\n");
+}
+
+/* Applies one --set TAG=VALUE. Returns 0 or prints why and returns -EINVAL. */
+static int apply_set(const struct fg_config *cfg, const char *arg, double *values)
+{
+	const char *eq = strchr(arg, '=');
+	char name[FG_NAME_MAX];
+	if (eq == NULL || (size_t)(eq - arg) >= sizeof(name) || eq == arg) {
+		fprintf(stderr, "floodgauge rate: --set '%s' is not TAG=VALUE\n", arg);
+		return -EINVAL;
+	}
+	memcpy(name, arg, (size_t)(eq - arg));
+	name[eq - arg] = '\0';
+	int ti = config_tag_index(cfg, name);
+	if (ti < 0) {
+		fprintf(stderr, "floodgauge rate: --set: tag '%s' is not in %s\n", name, cfg->path);
+		return -EINVAL;
+	}
+	char *end;
+	double v = strtod(eq + 1, &end);
+	if (end == eq + 1 || *end != '\0' || !isfinite(v)) {
+		fprintf(stderr, "floodgauge rate: --set %s: '%s' is not a number\n", name, eq + 1);
+		return -EINVAL;
+	}
+	const struct tag_cfg *t = &cfg->tags[ti];
+	if ((isfinite(t->min) && v < t->min) || (isfinite(t->max) && v > t->max))
+		fprintf(stderr, "floodgauge rate: warning: %s = %g is outside the tag's range "
+				"%g..%g; the live engine would mark it bad\n", name, v, t->min, t->max);
+	values[ti] = v;
+	return 0;
+}
+
+/* Is signal k of section s needed for an evaluation? */
+static bool signal_required(const struct fg_config *cfg, const struct section_cfg *s, int k,
+			    const double *values)
+{
+	int dens = s->signal[SIGNAL_GAS_DENSITY];
+	bool have_density = dens >= 0 && isfinite(values[dens]);
+	(void)cfg;
+	switch (k) {
+	case SIGNAL_GAS_FLOW: return true;
+	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
+	case SIGNAL_PRESSURE:
+	case SIGNAL_TEMPERATURE: return !have_density;
+	default: return false;
+	}
+}
+
+static void print_table(const struct fg_config *cfg, const struct section_cfg *s,
+			const double *values, const struct section_result *r)
+{
+	printf("section %s (%s)   quality %s%s\n", s->name, config_section_type_name(s->geom.type),
+	       fg_quality_name(r->quality), r->extrap.count ? ", extrapolated" : "");
+	printf("\n  inputs\n");
+	for (int k = 0; k < SIGNAL_COUNT; k++) {
+		int ti = s->signal[k];
+		if (ti < 0)
+			continue;
+		const struct tag_cfg *t = &cfg->tags[ti];
+		if (isfinite(values[ti]))
+			printf("    %-22s %12.6g %-8s (%s)\n", config_signal_name((enum section_signal)k),
+			       values[ti], t->unit ? t->unit->name : "", t->name);
+		else
+			printf("    %-22s %12s %-8s (%s)\n", config_signal_name((enum section_signal)k),
+			       "-", "", t->name);
+	}
+	printf("\n  results\n");
+	for (int i = 0; i < RF_COUNT; i++)
+		if (isfinite(r->v[i]))
+			printf("    %-22s %12.6g %s\n", result_fields[i].name, r->v[i],
+			       result_fields[i].unit);
+	if (r->basis != FLOOD_BASIS_NONE)
+		printf("    %-22s %12s\n", "flood_basis", flood_basis_name(r->basis));
+	if (r->regime != BUBBLE_REGIME_NONE)
+		printf("    %-22s %12s\n", "regime", bubble_regime_name(r->regime));
+	printf("    %-22s %12s\n", "quality", fg_quality_name(r->quality));
+	printf("    %-22s %12s\n", "extrapolated", r->extrap.count ? "yes" : "no");
+	if (r->extrap.first)
+		printf("      (%s%s)\n", r->extrap.first, r->extrap.count > 1 ? ", and more" : "");
+	printf("\n%s\n", fg_caution);
+}
+
+static int print_json(const struct section_cfg *s, const struct section_result *r)
+{
+	char buf[4096];
+	struct jsonw w;
+	jsonw_init(&w, buf, sizeof(buf));
+	jsonw_open(&w);
+	jsonw_str(&w, "section", s->name);
+	jsonw_str(&w, "type", config_section_type_name(s->geom.type));
+	jsonw_result(&w, r);
+	jsonw_close(&w);
+	if (jsonw_finish(&w) < 0) {
+		fprintf(stderr, "floodgauge rate: result does not fit the output buffer\n");
+		return EXIT_RUNTIME;
+	}
+	printf("%s\n", buf);
+	return 0;
+}
+
+static int rate_eval(const struct fg_config *cfg, const char *section, char **sets,
+		     unsigned set_count, bool json)
+{
+	int si = config_section_index(cfg, section);
+	if (si < 0) {
+		fprintf(stderr, "floodgauge rate: section '%s' is not in %s\n", section, cfg->path);
+		return EXIT_USAGE;
+	}
+	static double values[FG_TAGS_MAX];
+	for (unsigned i = 0; i < cfg->tag_count; i++)
+		values[i] = isfinite(cfg->tags[i].fixed_value) ? cfg->tags[i].fixed_value
+							       : cfg->tags[i].nominal;
+	for (unsigned i = 0; i < set_count; i++)
+		if (apply_set(cfg, sets[i], values) != 0)
+			return EXIT_USAGE;
+	const struct section_cfg *s = &cfg->sections[si];
+	int missing = 0;
+	for (int k = 0; k < SIGNAL_COUNT; k++) {
+		int ti = s->signal[k];
+		if (ti >= 0 && !isfinite(values[ti]) && signal_required(cfg, s, k, values)) {
+			fprintf(stderr, "floodgauge rate: %s needs a value for tag '%s' (%s): give "
+					"--set %s=VALUE or 'nominal =' in [tag.%s]\n", s->name,
+				cfg->tags[ti].name, config_signal_name((enum section_signal)k),
+				cfg->tags[ti].name, cfg->tags[ti].name);
+			missing++;
+		}
+	}
+	if (missing)
+		return EXIT_USAGE;
+	struct section_point p;
+	struct section_result r;
+	point_from_tags(cfg, (unsigned)si, values, &p);
+	section_eval(&s->geom, &s->props, &p, &r);
+	if (json)
+		return print_json(s, &r);
+	print_table(cfg, s, values, &r);
+	return 0;
+}
+
+int cmd_rate(int argc, char **argv)
+{
+	static const struct option opts[] = {{"config", required_argument, NULL, 'c'},
+					     {"section", required_argument, NULL, 's'},
+					     {"set", required_argument, NULL, 'S'},
+					     {"json", no_argument, NULL, 'j'},
+					     {"help", no_argument, NULL, 'h'},
+					     {0}};
+	const char *path = NULL, *section = NULL;
+	static char *sets[FG_TAGS_MAX];
+	unsigned set_count = 0;
+	bool json = false;
+	int ch;
+	optind = 1;
+	while ((ch = getopt_long(argc, argv, "c:s:S:jh", opts, NULL)) != -1) {
+		switch (ch) {
+		case 'c': path = optarg; break;
+		case 's': section = optarg; break;
+		case 'S':
+			if (set_count == FG_TAGS_MAX) {
+				fprintf(stderr, "floodgauge rate: too many --set\n");
+				return EXIT_USAGE;
+			}
+			sets[set_count++] = optarg;
+			break;
+		case 'j': json = true; break;
+		case 'h': rate_usage(stdout); return 0;
+		default: rate_usage(stderr); return EXIT_USAGE;
+		}
+	}
+	if (path == NULL || section == NULL || optind != argc) {
+		rate_usage(stderr);
+		return EXIT_USAGE;
+	}
+	struct fg_config *cfg = load_or_report(path);
+	if (cfg == NULL)
+		return EXIT_USAGE;
+	int rc = rate_eval(cfg, section, sets, set_count, json);
+	free(cfg);
+	return rc;
+}

@@ -1,0 +1,18 @@
+/*
+ * commands.h - the floodgauge subcommands. Each takes the arguments after
+ * its name (argv[0] is the command name) and returns the process exit code:
+ * 0 ok, 1 runtime failure, 2 usage or config error.
+ */
+#ifndef COMMANDS_H
+#define COMMANDS_H
+
+#define EXIT_RUNTIME 1
+#define EXIT_USAGE 2
+
+int cmd_check(int argc, char **argv);
+int cmd_rate(int argc, char **argv);
+
+/* The advisory caution every human-facing output carries. */
+extern const char *const fg_caution;
+
+#endif

@@ -1,0 +1,77 @@
+/*
+ * config_int.h - state shared by the two halves of the config loader:
+ * config.c reads the INI text, config_resolve.c resolves references and
+ * checks the whole. Not for use outside them.
+ */
+#ifndef CONFIG_INT_H
+#define CONFIG_INT_H
+
+#include <stdint.h>
+
+#include "config.h"
+
+#define CONFIG_ERRORS_MAX 25 /* report this many problems, then only count */
+/* Every object has one header, plus [monitor], [mqtt], [export.modbus]. */
+#define CONFIG_HEADERS_MAX (FG_SOURCES_MAX + FG_TAGS_MAX + FG_SECTIONS_MAX + FG_ALARMS_MAX + 3)
+
+struct pending_name {
+	char name[FG_TEXT_MAX];
+	int line;                   /* 0 = not given */
+};
+
+struct section_pending {
+	struct pending_name signal[SIGNAL_COUNT];
+	struct pending_name flood_method;
+	struct pending_name tray_kind;
+	struct pending_name holdup_method;
+	struct pending_name packing;
+	bool type_given;
+	uint64_t keys_set;          /* bit i: section key table entry i was given */
+	int key_line[64];
+};
+
+struct alarm_pending {
+	struct pending_name section;
+	struct pending_name signal;
+	struct pending_name reference;
+	struct pending_name kind;
+	struct pending_name priority;
+	uint32_t keys_set;
+};
+
+struct config_ctx {
+	struct fg_config *cfg;
+	const char *path;
+	FILE *errf;
+	FILE *in;
+	int line;                   /* line the reader last returned */
+	int error_count;
+	bool line_too_long;
+	/* the section being filled */
+	char cur_section[FG_TEXT_MAX];
+	int cur_kind;
+	int cur_index;
+	/* header lines, for "missing key" errors and duplicate headers */
+	struct section_pending sec[FG_SECTIONS_MAX];
+	struct alarm_pending alm[FG_ALARMS_MAX];
+	struct pending_name tag_source[FG_TAGS_MAX];
+	uint32_t tag_keys_set[FG_TAGS_MAX];
+	uint32_t source_keys_set[FG_SOURCES_MAX];
+	char export_fields[4096];
+	int export_fields_line;
+	uint32_t monitor_keys_set, mqtt_keys_set, export_keys_set;
+	unsigned seen_count;
+	struct pending_name seen[CONFIG_HEADERS_MAX]; /* headers seen, for duplicates */
+};
+
+void config_error(struct config_ctx *c, int line, const char *fmt, ...)
+	__attribute__((format(printf, 3, 4)));
+int config_resolve(struct config_ctx *c);
+
+/* Value parsers: 0 on success, -EINVAL with an error already reported. */
+int config_parse_double(struct config_ctx *c, const char *key, const char *v, double lo,
+			double hi, double *out);
+int config_parse_prop(struct config_ctx *c, const char *key, const char *v,
+		      struct prop_table *out);
+
+#endif

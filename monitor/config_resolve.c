@@ -1,0 +1,465 @@
+/*
+ * config_resolve.c - the second half of config loading: resolves names into
+ * indices (tags of a section, the source of a tag, the section and field of
+ * an alarm, the export list), fills defaults that depend on other keys, and
+ * checks what no single key can show: geometry that cannot be right, units
+ * that do not fit the signal, a gas density that cannot be computed.
+ */
+#include "config_int.h"
+
+#include <assert.h>
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <string.h>
+
+#include "packing.h"
+
+int config_section_keys_check(struct config_ctx *c, unsigned si);
+
+int config_tag_index(const struct fg_config *cfg, const char *name)
+{
+	for (unsigned i = 0; i < cfg->tag_count; i++)
+		if (!strcmp(cfg->tags[i].name, name))
+			return (int)i;
+	return -1;
+}
+
+int config_section_index(const struct fg_config *cfg, const char *name)
+{
+	for (unsigned i = 0; i < cfg->section_count; i++)
+		if (!strcmp(cfg->sections[i].name, name))
+			return (int)i;
+	return -1;
+}
+
+int config_alarm_index(const struct fg_config *cfg, const char *name)
+{
+	for (unsigned i = 0; i < cfg->alarm_count; i++)
+		if (!strcmp(cfg->alarms[i].name, name))
+			return (int)i;
+	return -1;
+}
+
+static const char *const signal_names[SIGNAL_COUNT] = {
+	[SIGNAL_GAS_FLOW] = "gas_flow",       [SIGNAL_LIQUID_FLOW] = "liquid_flow",
+	[SIGNAL_LIQUID_OUT_FLOW] = "liquid_out_flow", [SIGNAL_DP] = "dp",
+	[SIGNAL_PRESSURE] = "pressure",       [SIGNAL_TEMPERATURE] = "temperature",
+	[SIGNAL_LEVEL] = "level",             [SIGNAL_GAS_DENSITY] = "gas_density",
+};
+
+const char *config_signal_name(enum section_signal s)
+{
+	assert(s < SIGNAL_COUNT);
+	return signal_names[s];
+}
+
+double config_tag_to_si(const struct tag_cfg *t, double value)
+{
+	assert(t != NULL);
+	if (t->unit == NULL)
+		return value;
+	return units_to_si(t->unit, value);
+}
+
+static bool unit_fits(enum section_signal s, const struct unit *u)
+{
+	switch (s) {
+	case SIGNAL_GAS_FLOW:
+		return u->kind == UNIT_KIND_MASS_FLOW || u->kind == UNIT_KIND_VOLUME_FLOW ||
+		       u->kind == UNIT_KIND_NORMAL_VOLUME_FLOW;
+	case SIGNAL_LIQUID_FLOW:
+	case SIGNAL_LIQUID_OUT_FLOW:
+		return u->kind == UNIT_KIND_MASS_FLOW || u->kind == UNIT_KIND_VOLUME_FLOW;
+	case SIGNAL_DP:
+		/* A difference: absolute-pressure units are fine, gauge offsets are not. */
+		return (u->kind == UNIT_KIND_DP || u->kind == UNIT_KIND_PRESSURE) && u->offset == 0.0;
+	case SIGNAL_PRESSURE: return u->kind == UNIT_KIND_PRESSURE;
+	case SIGNAL_TEMPERATURE: return u->kind == UNIT_KIND_TEMPERATURE;
+	case SIGNAL_LEVEL: return u->kind == UNIT_KIND_LENGTH;
+	case SIGNAL_GAS_DENSITY: return u->kind == UNIT_KIND_DENSITY;
+	case SIGNAL_COUNT: break;
+	}
+	return false;
+}
+
+static void resolve_sources(struct config_ctx *c)
+{
+	for (unsigned i = 0; i < c->cfg->source_count; i++) {
+		struct source_cfg *s = &c->cfg->sources[i];
+		uint32_t set = c->source_keys_set[i];
+		if (!(set & 1u)) {
+			config_error(c, s->line, "[source.%s] needs 'protocol' (modbus-tcp or "
+						 "modbus-rtu)", s->name);
+			continue;
+		}
+		if (!(set & (1u << 4)))
+			s->timeout_s = 0.5;
+		if (s->protocol == SOURCE_MODBUS_TCP) {
+			if (!(set & (1u << 1)))
+				config_error(c, s->line, "[source.%s] needs 'host'", s->name);
+			if (!(set & (1u << 2)))
+				s->port = 502;
+			if (!(set & (1u << 3)))
+				s->unit_id = 255; /* MODBUS_TCP_SLAVE: direct TCP devices ignore it */
+			continue;
+		}
+		if (!(set & (1u << 5)))
+			config_error(c, s->line, "[source.%s] needs 'device' for modbus-rtu", s->name);
+		if (!(set & (1u << 3)))
+			s->unit_id = 1;
+		if (s->unit_id < 1 || s->unit_id > 247)
+			config_error(c, s->line, "[source.%s]: an RTU unit_id is 1..247", s->name);
+		if (!(set & (1u << 6)))
+			s->baud = 19200;
+		static const int bauds[] = {1200, 2400, 4800, 9600, 19200, 38400, 57600, 115200,
+					    230400, 460800, 921600};
+		bool ok = false;
+		for (unsigned k = 0; k < sizeof(bauds) / sizeof(bauds[0]); k++)
+			ok = ok || bauds[k] == s->baud;
+		if (!ok) /* libmodbus falls back to 9600 silently for others */
+			config_error(c, s->line, "[source.%s]: baud %d is not a standard rate",
+				     s->name, s->baud);
+		if (!(set & (1u << 7)))
+			s->parity = 'E'; /* the Modbus serial line default */
+		if (!(set & (1u << 8)))
+			s->data_bits = 8;
+		if (!(set & (1u << 9)))
+			s->stop_bits = 1;
+	}
+}
+
+static void resolve_tags(struct config_ctx *c)
+{
+	for (unsigned i = 0; i < c->cfg->tag_count; i++) {
+		struct tag_cfg *t = &c->cfg->tags[i];
+		uint32_t set = c->tag_keys_set[i];
+		bool polled = (set & 1u) != 0, fixed = (set & (1u << 10)) != 0;
+		if (polled && fixed)
+			config_error(c, t->line, "[tag.%s] has both 'source' and 'value'", t->name);
+		if (!polled && !fixed)
+			config_error(c, t->line, "[tag.%s] needs 'source' (polled) or 'value' (fixed)",
+				     t->name);
+		if (polled) {
+			const struct pending_name *pn = &c->tag_source[i];
+			for (unsigned k = 0; k < c->cfg->source_count; k++)
+				if (!strcmp(c->cfg->sources[k].name, pn->name))
+					t->source_index = (int)k;
+			if (t->source_index < 0)
+				config_error(c, pn->line, "source '%s' is not defined", pn->name);
+			if (!(set & (1u << 2)))
+				config_error(c, t->line, "[tag.%s] needs 'address'", t->name);
+			if (!(set & (1u << 3)))
+				config_error(c, t->line, "[tag.%s] needs 'type' (int16, uint16, int32, "
+							 "uint32, float32)", t->name);
+			bool wide = t->type == TAG_TYPE_INT32 || t->type == TAG_TYPE_UINT32 ||
+				    t->type == TAG_TYPE_FLOAT32;
+			if (wide && t->address > 65534)
+				config_error(c, t->line, "[tag.%s]: a 32-bit value at 65535 has no "
+							 "second register", t->name);
+		}
+		if (isfinite(t->min) && isfinite(t->max) && t->min >= t->max)
+			config_error(c, t->line, "[tag.%s]: min must be below max", t->name);
+		if (fixed && ((isfinite(t->min) && t->fixed_value < t->min) ||
+			      (isfinite(t->max) && t->fixed_value > t->max)))
+			config_error(c, t->line, "[tag.%s]: value is outside min..max", t->name);
+	}
+}
+
+static int resolve_choice(struct config_ctx *c, const struct pending_name *pn, const char *key,
+			  const char *const *names, int dflt)
+{
+	if (pn->line == 0)
+		return dflt;
+	for (int i = 0; names[i] != NULL; i++)
+		if (!strcmp(pn->name, names[i]))
+			return i;
+	char list[128] = "";
+	for (int i = 0; names[i] != NULL; i++) {
+		size_t n = strlen(list);
+		snprintf(list + n, sizeof(list) - n, "%s%s", i ? ", " : "", names[i]);
+	}
+	config_error(c, pn->line, "%s: '%s' is not one of: %s", key, pn->name, list);
+	return dflt;
+}
+
+static void resolve_signals(struct config_ctx *c, unsigned si)
+{
+	struct section_cfg *s = &c->cfg->sections[si];
+	struct section_pending *sp = &c->sec[si];
+	for (int k = 0; k < SIGNAL_COUNT; k++) {
+		const struct pending_name *pn = &sp->signal[k];
+		if (pn->line == 0)
+			continue;
+		int ti = config_tag_index(c->cfg, pn->name);
+		if (ti < 0) {
+			config_error(c, pn->line, "%s: tag '%s' is not defined", signal_names[k],
+				     pn->name);
+			continue;
+		}
+		const struct tag_cfg *t = &c->cfg->tags[ti];
+		if (t->unit == NULL) {
+			config_error(c, t->line, "[tag.%s] is used as %s and needs a 'unit'", t->name,
+				     signal_names[k]);
+			continue;
+		}
+		if (!unit_fits((enum section_signal)k, t->unit)) {
+			config_error(c, pn->line, "%s: tag '%s' is in %s (%s), which is not a unit for "
+						  "%s", signal_names[k], t->name, t->unit->name,
+				     units_kind_name(t->unit->kind), signal_names[k]);
+			continue;
+		}
+		s->signal[k] = ti;
+	}
+	bool has_density = s->signal[SIGNAL_GAS_DENSITY] >= 0;
+	bool has_pt = s->signal[SIGNAL_PRESSURE] >= 0 && s->signal[SIGNAL_TEMPERATURE] >= 0;
+	if (!has_density && !(has_pt && isfinite(s->props.gas_molar_mass_kgkmol)))
+		config_error(c, s->line, "[section.%s]: the gas density needs either a gas_density "
+					 "tag, or pressure and temperature tags with "
+					 "gas_molar_mass_kgkmol", s->name);
+	if (s->signal[SIGNAL_LIQUID_OUT_FLOW] >= 0 && s->signal[SIGNAL_LEVEL] < 0)
+		config_error(c, s->line, "[section.%s]: liquid_out_flow is for the liquid inventory "
+					 "and needs a level tag too", s->name);
+	if (s->geom.type == SECTION_BUBBLE && s->signal[SIGNAL_LEVEL] < 0 &&
+	    !isfinite(s->geom.bubble.clear_liquid_height_m))
+		config_error(c, s->line, "[section.%s]: a bubble section needs a level tag or "
+					 "clear_liquid_height_m", s->name);
+	if (s->geom.type == SECTION_BUBBLE && s->signal[SIGNAL_DP] >= 0 &&
+	    !isfinite(s->geom.bubble.tap_spacing_m))
+		config_error(c, s->line, "[section.%s]: the dp tag of a bubble section needs "
+					 "tap_spacing_m", s->name);
+}
+
+static void resolve_tray(struct config_ctx *c, struct section_cfg *s)
+{
+	struct tray_geom *t = &s->geom.tray;
+	int L = s->line;
+	if (t->weir_height_m >= t->spacing_m)
+		config_error(c, L, "[section.%s]: weir_height_m %.3g is not below tray_spacing_m %.3g",
+			     s->name, t->weir_height_m, t->spacing_m);
+	if (t->downcomer_clearance_m >= t->spacing_m)
+		config_error(c, L, "[section.%s]: downcomer_clearance_m must be below the tray "
+				   "spacing", s->name);
+	if (t->weir_length_m >= s->geom.diameter_m)
+		config_error(c, L, "[section.%s]: weir_length_m %.3g m is not shorter than the "
+				   "diameter %.3g m", s->name, t->weir_length_m, s->geom.diameter_m);
+	/* A one-pass tray: downcomer top and bottom seal areas plus the active area. */
+	if (t->active_area_frac + 2.0 * t->downcomer_area_frac > 1.0 + 1e-9)
+		config_error(c, L, "[section.%s]: active_area_frac + 2 x downcomer_area_frac = %.3g "
+				   "exceeds the tower cross-section", s->name,
+			     t->active_area_frac + 2.0 * t->downcomer_area_frac);
+	if (t->hole_diameter_m <= t->deck_thickness_m * 0.2)
+		config_error(c, L, "[section.%s]: hole_diameter_m is implausibly small for the deck "
+				   "thickness", s->name);
+}
+
+static void resolve_packed(struct config_ctx *c, struct section_cfg *s, struct section_pending *sp)
+{
+	struct packed_geom *p = &s->geom.packed;
+	if (sp->packing.line > 0) {
+		bool structured = false;
+		const struct packing_constants *row = packing_lookup(sp->packing.name, &structured);
+		if (row == NULL) {
+			config_error(c, sp->packing.line, "packing '%s' is not in the table; known: %s",
+				     sp->packing.name, packing_names());
+			return;
+		}
+		snprintf(p->packing, sizeof(p->packing), "%s", sp->packing.name);
+		/* Keys given in the section override the table. */
+		_Static_assert(sizeof(p->c) % sizeof(double) == 0, "constants are all doubles");
+		const double *src = (const double *)row;
+		double *dst = (double *)&p->c;
+		for (size_t i = 0; i < sizeof(p->c) / sizeof(double); i++)
+			if (isnan(dst[i]))
+				dst[i] = src[i];
+		p->structured = p->structured || structured;
+	}
+	if (!isfinite(p->c.area_m2m3) || !isfinite(p->c.void_frac))
+		config_error(c, s->line, "[section.%s]: a packed section needs 'packing' (a table "
+					 "name) or at least packing_area_m2m3 and packing_void_frac",
+			     s->name);
+}
+
+static void resolve_sections(struct config_ctx *c)
+{
+	static const char *const tray_flood[] = {"fair", "kister-haas", NULL};
+	static const char *const packed_flood[] = {"stichlmair", "billet-schultes", NULL};
+	static const char *const kinds[] = {"sieve", "valve", "bubble-cap", NULL};
+	static const char *const holdup[] = {"akita-yoshida", "hughmark", NULL};
+	for (unsigned i = 0; i < c->cfg->section_count; i++) {
+		struct section_cfg *s = &c->cfg->sections[i];
+		struct section_pending *sp = &c->sec[i];
+		if (config_section_keys_check(c, i) != 0)
+			continue;
+		resolve_signals(c, i);
+		switch (s->geom.type) {
+		case SECTION_TRAY:
+			s->geom.tray.flood_method = (enum tray_flood_method)resolve_choice(
+				c, &sp->flood_method, "flood_method", tray_flood, TRAY_FLOOD_FAIR);
+			s->geom.tray.kind = (enum tray_kind)resolve_choice(c, &sp->tray_kind,
+									   "tray_kind", kinds, 0);
+			resolve_tray(c, s);
+			break;
+		case SECTION_PACKED:
+			s->geom.packed.flood_method = (enum packed_flood_method)resolve_choice(
+				c, &sp->flood_method, "flood_method", packed_flood,
+				PACKED_FLOOD_STICHLMAIR);
+			resolve_packed(c, s, sp);
+			break;
+		case SECTION_SPRAY: break;
+		case SECTION_BUBBLE:
+			s->geom.bubble.holdup_method = (enum bubble_holdup_method)resolve_choice(
+				c, &sp->holdup_method, "holdup_method", holdup, 0);
+			if (isfinite(s->geom.bubble.clear_liquid_height_m) &&
+			    s->geom.bubble.clear_liquid_height_m >= s->geom.bubble.overflow_height_m)
+				config_error(c, s->line, "[section.%s]: clear_liquid_height_m must be "
+							 "below overflow_height_m", s->name);
+			break;
+		case SECTION_TYPE_COUNT: assert(0);
+		}
+	}
+}
+
+static int alarm_header_line(struct config_ctx *c, const char *name)
+{
+	char hdr[FG_TEXT_MAX];
+	snprintf(hdr, sizeof(hdr), "alarm.%s", name);
+	for (unsigned k = 0; k < c->seen_count; k++)
+		if (!strcmp(c->seen[k].name, hdr))
+			return c->seen[k].line;
+	return 0;
+}
+
+static void resolve_alarm(struct config_ctx *c, unsigned ai)
+{
+	struct alarm_cfg *a = &c->cfg->alarms[ai];
+	struct alarm_pending *ap = &c->alm[ai];
+	int L = alarm_header_line(c, a->name);
+	if (ap->section.line == 0 || ap->kind.line == 0 || ap->signal.line == 0) {
+		config_error(c, L, "[alarm.%s] needs 'section', 'signal' and 'kind'", a->name);
+		return;
+	}
+	int si = config_section_index(c->cfg, ap->section.name);
+	if (si < 0) {
+		config_error(c, ap->section.line, "section '%s' is not defined", ap->section.name);
+		return;
+	}
+	a->section_index = (unsigned)si;
+	if (alarm_kind_parse(ap->kind.name, &a->kind) != 0) {
+		config_error(c, ap->kind.line, "kind: '%s' is not one of: high, high-high, low, rate, "
+					       "deviation, diagnostic", ap->kind.name);
+		return;
+	}
+	if (ap->priority.line > 0 && alarm_priority_parse(ap->priority.name, &a->priority) != 0) {
+		config_error(c, ap->priority.line, "priority: '%s' is not one of: low, medium, high, "
+						   "urgent", ap->priority.name);
+		return;
+	}
+	if (a->kind == ALARM_KIND_DIAGNOSTIC) {
+		if (strcmp(ap->signal.name, "quality") != 0) {
+			config_error(c, ap->signal.line, "a diagnostic alarm takes signal = quality");
+			return;
+		}
+		a->field = ALARM_FIELD_QUALITY;
+	} else {
+		a->field = result_field_lookup(ap->signal.name);
+		if (a->field < 0) {
+			config_error(c, ap->signal.line, "signal: '%s' is not a result field (e.g. "
+							 "flood_index, flood_pct, weep_pct, dp_pa)",
+				     ap->signal.name);
+			return;
+		}
+	}
+	if (a->kind == ALARM_KIND_DEVIATION) {
+		a->reference_field = ap->reference.line ? result_field_lookup(ap->reference.name) : -1;
+		if (a->reference_field < 0) {
+			config_error(c, ap->reference.line ? ap->reference.line : L,
+				     "a deviation alarm needs 'reference', a result field such as "
+				     "dp_model_pa");
+			return;
+		}
+	} else if (ap->reference.line) {
+		config_error(c, ap->reference.line, "'reference' is only for kind = deviation");
+		return;
+	}
+	if (a->kind != ALARM_KIND_DIAGNOSTIC && !(ap->keys_set & (1u << 3))) {
+		config_error(c, L, "[alarm.%s] needs 'setpoint'", a->name);
+		return;
+	}
+	char err[160];
+	if (alarm_cfg_check(a, err, sizeof(err)) != 0)
+		config_error(c, L, "[alarm.%s]: %s", a->name, err);
+}
+
+static void resolve_export(struct config_ctx *c)
+{
+	struct export_cfg *e = &c->cfg->exp;
+	if (!e->enabled)
+		return;
+	if (!(c->export_keys_set & 1u)) {
+		snprintf(e->host, sizeof(e->host), "127.0.0.1");
+		e->port = 1502;
+	}
+	char list[sizeof(c->export_fields)];
+	snprintf(list, sizeof(list), "%s", c->export_fields);
+	for (char *save = NULL, *tok = strtok_r(list, ", \t", &save); tok != NULL;
+	     tok = strtok_r(NULL, ", \t", &save)) {
+		char *dot = strchr(tok, '.');
+		int si = -1, fi = -1;
+		if (dot != NULL) {
+			*dot = '\0';
+			si = config_section_index(c->cfg, tok);
+			fi = result_field_lookup(dot + 1);
+		}
+		if (si < 0 || fi < 0) {
+			config_error(c, c->export_fields_line, "fields: '%s%s%s' is not SECTION.FIELD "
+							       "of a defined section and result field",
+				     tok, dot ? "." : "", dot ? dot + 1 : "");
+			continue;
+		}
+		if (e->field_count == FG_EXPORT_FIELDS_MAX) {
+			config_error(c, c->export_fields_line, "fields: at most %d",
+				     FG_EXPORT_FIELDS_MAX);
+			return;
+		}
+		e->fields[e->field_count].section_index = (unsigned)si;
+		e->fields[e->field_count].field = fi;
+		e->field_count++;
+	}
+	if (e->base_address + 2u * e->field_count > 65536u)
+		config_error(c, e->line, "[export.modbus]: fields do not fit above base_address");
+}
+
+static void resolve_mqtt(struct config_ctx *c)
+{
+	struct mqtt_cfg *m = &c->cfg->mqtt;
+	if (!m->enabled)
+		return;
+	if (m->uri[0] == '\0')
+		config_error(c, m->line, "[mqtt] needs 'uri' (e.g. tcp://127.0.0.1:1883)");
+	if (m->client_id[0] == '\0')
+		snprintf(m->client_id, sizeof(m->client_id), "floodgauge-%.30s", c->cfg->monitor.name);
+	if (m->topic_prefix[0] == '\0')
+		snprintf(m->topic_prefix, sizeof(m->topic_prefix), "floodgauge/%s",
+			 c->cfg->monitor.name);
+	if (!(c->mqtt_keys_set & (1u << 7)))
+		m->keepalive_s = 30.0;
+	if (!(c->mqtt_keys_set & (1u << 8)))
+		m->buffer_messages = 1000;
+	if (strpbrk(m->topic_prefix, "+#") != NULL)
+		config_error(c, m->line, "topic_prefix must not contain MQTT wildcards");
+}
+
+int config_resolve(struct config_ctx *c)
+{
+	resolve_sources(c);
+	resolve_tags(c);
+	resolve_sections(c);
+	for (unsigned i = 0; i < c->cfg->alarm_count; i++)
+		resolve_alarm(c, i);
+	resolve_export(c);
+	resolve_mqtt(c);
+	if (c->cfg->section_count == 0)
+		config_error(c, 0, "no [section.NAME] defined");
+	return c->error_count ? -EINVAL : 0;
+}

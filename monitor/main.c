@@ -1,0 +1,52 @@
+/*
+ * main.c - floodgauge's command line: picks the subcommand.
+ */
+#include <stdio.h>
+#include <string.h>
+
+#include "commands.h"
+
+const char *const fg_caution =
+	"floodgauge is advisory: it is not a safety system. Correlations hold only within their "
+	"published ranges (results outside them are flagged); local codes, site procedures and "
+	"licensed engineers govern.";
+
+struct command {
+	const char *name;
+	int (*run)(int argc, char **argv);
+	const char *summary;
+};
+
+static const struct command commands[] = {
+	{"check", cmd_check, "validate a config file and say what is wrong"},
+	{"rate", cmd_rate, "evaluate one operating point of a section and print every result"},
+};
+
+static void usage(FILE *f)
+{
+	fprintf(f, "usage: floodgauge COMMAND [options]   (floodgauge COMMAND --help for more)\n\n"
+		   "Online monitor of column hydraulics: percent approach to flooding, holdup and\n"
+		   "alarms for tray, packed, spray and bubble-column sections.\n\ncommands:\n");
+	for (size_t i = 0; i < sizeof(commands) / sizeof(commands[0]); i++)
+		fprintf(f, "  %-10s %s\n", commands[i].name, commands[i].summary);
+	fprintf(f, "\nexit status: 0 ok, 1 runtime failure, 2 usage or config error\n\n%s\n",
+		fg_caution);
+}
+
+int main(int argc, char **argv)
+{
+	if (argc < 2) {
+		usage(stderr);
+		return EXIT_USAGE;
+	}
+	if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
+		usage(stdout);
+		return 0;
+	}
+	for (size_t i = 0; i < sizeof(commands) / sizeof(commands[0]); i++)
+		if (!strcmp(argv[1], commands[i].name))
+			return commands[i].run(argc - 1, argv + 1);
+	fprintf(stderr, "floodgauge: unknown command '%s'\n\n", argv[1]);
+	usage(stderr);
+	return EXIT_USAGE;
+}

@@ -1,0 +1,68 @@
+/*
+ * point.c - see point.h.
+ */
+#include "point.h"
+
+#include <assert.h>
+#include <math.h>
+
+#include "gas.h"
+
+static const struct unit *signal_unit(const struct fg_config *cfg, const struct section_cfg *s,
+				      int k)
+{
+	int ti = s->signal[k];
+	return ti >= 0 ? cfg->tags[ti].unit : NULL;
+}
+
+/* Volume flow (m3/s) to mass flow with the density that fits the unit. */
+static double to_mass_flow(const struct unit *u, double si, double rho_actual_kgm3,
+			   double molar_mass_kgkmol)
+{
+	if (u == NULL || !isfinite(si))
+		return si;
+	switch (u->kind) {
+	case UNIT_KIND_VOLUME_FLOW: return si * rho_actual_kgm3;
+	case UNIT_KIND_NORMAL_VOLUME_FLOW:
+		return si / UNITS_NORMAL_MOLAR_VOLUME_M3KMOL * molar_mass_kgkmol;
+	default: return si;
+	}
+}
+
+void point_from_si(const struct section_cfg *s, const struct fg_config *cfg,
+		   const double *signal_si, struct section_point *p)
+{
+	assert(s != NULL);
+	assert(signal_si != NULL);
+	assert(p != NULL);
+	p->dp_pa = signal_si[SIGNAL_DP];
+	p->pressure_pa = signal_si[SIGNAL_PRESSURE];
+	p->temperature_k = signal_si[SIGNAL_TEMPERATURE];
+	p->level_m = signal_si[SIGNAL_LEVEL];
+	p->gas_density_kgm3 = signal_si[SIGNAL_GAS_DENSITY];
+	double rho_g = p->gas_density_kgm3;
+	if (!(isfinite(rho_g) && rho_g > 0.0))
+		rho_g = gas_density_kgm3(p->pressure_pa, p->temperature_k,
+					 s->props.gas_molar_mass_kgkmol,
+					 s->props.gas_compressibility, NULL);
+	double rho_l = prop_table_at(&s->props.liquid_density_kgm3, p->temperature_k, NULL);
+	double M = s->props.gas_molar_mass_kgkmol;
+	p->gas_kgs = to_mass_flow(signal_unit(cfg, s, SIGNAL_GAS_FLOW), signal_si[SIGNAL_GAS_FLOW],
+				  rho_g, M);
+	p->liquid_kgs = to_mass_flow(signal_unit(cfg, s, SIGNAL_LIQUID_FLOW),
+				     signal_si[SIGNAL_LIQUID_FLOW], rho_l, M);
+}
+
+void point_from_tags(const struct fg_config *cfg, unsigned si, const double *tag_values,
+		     struct section_point *p)
+{
+	assert(cfg != NULL);
+	assert(si < cfg->section_count);
+	const struct section_cfg *s = &cfg->sections[si];
+	double sig[SIGNAL_COUNT];
+	for (int k = 0; k < SIGNAL_COUNT; k++) {
+		int ti = s->signal[k];
+		sig[k] = ti >= 0 ? config_tag_to_si(&cfg->tags[ti], tag_values[ti]) : NAN;
+	}
+	point_from_si(s, cfg, sig, p);
+}

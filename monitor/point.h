@@ -1,0 +1,24 @@
+/*
+ * point.h - from tag values to a section's operating point in SI.
+ *
+ * Tag values arrive in each tag's own unit. Mass flows convert directly;
+ * volume flows need a density: the actual gas density (from the density tag
+ * or from P, T, M and Z), the molar volume at normal conditions for Nm3, the
+ * liquid density at the current temperature for liquid volume flows.
+ */
+#ifndef POINT_H
+#define POINT_H
+
+#include "config.h"
+
+/* Fills p for section si from tag_values (indexed by tag, in tag units; NAN
+ * = no value). Never fails: an unusable signal comes back NAN. */
+void point_from_tags(const struct fg_config *cfg, unsigned si, const double *tag_values,
+		     struct section_point *p);
+
+/* The same for one section given its signal values already in SI (volume
+ * flows as m3/s) - the engine's path after validation and filtering. */
+void point_from_si(const struct section_cfg *s, const struct fg_config *cfg,
+		   const double *signal_si /* [SIGNAL_COUNT] */, struct section_point *p);
+
+#endif

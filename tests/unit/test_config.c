@@ -1,0 +1,336 @@
+/*
+ * test_config.c - the config loader: a valid file loads with the values it
+ * says, and each kind of mistake is refused with FILE:LINE and a reason.
+ */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <cmocka.h>
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "config.h"
+
+static const char base_ini[] =
+	"[monitor]\n"                                  /* 1 */
+	"name = test-unit\n"                           /* 2 */
+	"period_s = 2\n"                               /* 3 */
+	"[source.plc]\n"                               /* 4 */
+	"protocol = modbus-tcp\n"                      /* 5 */
+	"host = 127.0.0.1\n"                           /* 6 */
+	"[tag.FG]\n"                                   /* 7 */
+	"source = plc\n"                               /* 8 */
+	"address = 0\n"                                /* 9 */
+	"type = float32\n"                             /* 10 */
+	"unit = t/h\n"                                 /* 11 */
+	"[tag.FL]\n"                                   /* 12 */
+	"value = 30\n"                                 /* 13 */
+	"unit = t/h\n"                                 /* 14 */
+	"[tag.P]\n"                                    /* 15 */
+	"value = 1.2\n"                                /* 16 */
+	"unit = bara\n"                                /* 17 */
+	"[tag.T]\n"                                    /* 18 */
+	"value = 40\n"                                 /* 19 */
+	"unit = degC\n"                                /* 20 */
+	"[section.C1]\n"                               /* 21 */
+	"type = tray\n"                                /* 22 */
+	"diameter_m = 1.5\n"                           /* 23 */
+	"trays = 10\n"                                 /* 24 */
+	"tray_spacing_m = 0.6\n"                       /* 25 */
+	"weir_height_m = 0.05\n"                       /* 26 */
+	"weir_length_m = 1.1\n"                        /* 27 */
+	"active_area_frac = 0.76\n"                    /* 28 */
+	"downcomer_area_frac = 0.12\n"                 /* 29 */
+	"hole_area_frac = 0.1\n"                       /* 30 */
+	"hole_diameter_m = 0.0127\n"                   /* 31 */
+	"downcomer_clearance_m = 0.04\n"               /* 32 */
+	"gas_flow = FG\n"                              /* 33 */
+	"liquid_flow = FL\n"                           /* 34 */
+	"pressure = P\n"                               /* 35 */
+	"temperature = T\n"                            /* 36 */
+	"gas_molar_mass_kgkmol = 29\n"                 /* 37 */
+	"gas_viscosity_pas = 1.8e-5\n"                 /* 38 */
+	"liquid_density_kgm3 = 20:998, 80:972\n"       /* 39 */
+	"liquid_viscosity_pas = 1e-3\n"                /* 40 */
+	"surface_tension_nm = 0.072\n"                 /* 41 */
+	"[alarm.C1_H]\n"                               /* 42 */
+	"section = C1\n"                               /* 43 */
+	"signal = flood_index\n"                       /* 44 */
+	"kind = high\n"                                /* 45 */
+	"setpoint = 85\n";                             /* 46 */
+
+struct loaded {
+	struct fg_config cfg;
+	char path[64];
+	char *err;
+	size_t err_size;
+	int rc;
+};
+
+/* Writes text to a temporary file and loads it; errors go to a memstream. */
+static struct loaded *load_text(const char *text)
+{
+	struct loaded *l = calloc(1, sizeof(*l));
+	assert_non_null(l);
+	snprintf(l->path, sizeof(l->path), "/tmp/fgcfg-XXXXXX");
+	int fd = mkstemp(l->path);
+	assert_true(fd >= 0);
+	size_t n = strlen(text);
+	assert_int_equal(write(fd, text, n), (ssize_t)n);
+	close(fd);
+	FILE *errf = open_memstream(&l->err, &l->err_size);
+	assert_non_null(errf);
+	l->rc = config_load(&l->cfg, l->path, errf);
+	fclose(errf);
+	unlink(l->path);
+	return l;
+}
+
+static void loaded_free(struct loaded *l)
+{
+	free(l->err);
+	free(l);
+}
+
+/* Replaces the first occurrence of old in base_ini by new_text. */
+static struct loaded *load_edit(const char *old, const char *new_text)
+{
+	static char buf[8192];
+	const char *at = strstr(base_ini, old);
+	assert_non_null(at);
+	size_t pre = (size_t)(at - base_ini);
+	snprintf(buf, sizeof(buf), "%.*s%s%s", (int)pre, base_ini, new_text, at + strlen(old));
+	return load_text(buf);
+}
+
+/* Asserts the load failed with a message naming line and containing what. */
+static void assert_error(struct loaded *l, int line, const char *what)
+{
+	char want[96];
+	snprintf(want, sizeof(want), ":%d: ", line);
+	if (l->rc == 0 || strstr(l->err, want) == NULL || strstr(l->err, what) == NULL)
+		fail_msg("want error at line %d containing '%s'; rc %d, got:\n%s", line, what, l->rc,
+			 l->err);
+}
+
+static void test_valid_config_loads_with_its_values(void **state)
+{
+	(void)state;
+	struct loaded *l = load_text(base_ini);
+	if (l->rc != 0)
+		fail_msg("%s", l->err);
+	const struct fg_config *c = &l->cfg;
+	assert_string_equal(c->monitor.name, "test-unit");
+	assert_true(c->monitor.period_s == 2.0);
+	assert_int_equal(c->tag_count, 4);
+	assert_int_equal(c->section_count, 1);
+	const struct section_cfg *s = &c->sections[0];
+	assert_int_equal(s->geom.type, SECTION_TRAY);
+	assert_int_equal(s->geom.tray.trays, 10);
+	assert_true(s->geom.tray.deck_thickness_m == 0.002); /* default */
+	assert_int_equal(s->signal[SIGNAL_GAS_FLOW], 0);
+	assert_int_equal(s->signal[SIGNAL_DP], -1);
+	assert_int_equal(s->props.liquid_density_kgm3.point_count, 2);
+	assert_true(fabs(s->props.liquid_density_kgm3.t_k[1] - 353.15) < 1e-9);
+	assert_int_equal(c->sources[0].port, 502);       /* default */
+	assert_int_equal(c->sources[0].unit_id, 255);    /* TCP default */
+	assert_int_equal(c->tags[0].source_index, 0);
+	assert_int_equal(c->tags[1].source_index, -1);
+	assert_true(c->tags[1].fixed_value == 30.0);
+	assert_int_equal(c->alarm_count, 1);
+	assert_int_equal(c->alarms[0].section_index, 0);
+	assert_int_equal(c->alarms[0].field, RF_FLOOD_INDEX);
+	assert_int_equal(c->alarms[0].kind, ALARM_KIND_HIGH);
+	loaded_free(l);
+}
+
+static void test_unknown_key_is_refused_with_its_line(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("trays = 10\n", "trays = 10\nweir_hieght_m = 0.05\n");
+	assert_error(l, 25, "unknown key 'weir_hieght_m'");
+	loaded_free(l);
+}
+
+static void test_missing_required_key_names_the_section_line(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("trays = 10\n", "");
+	assert_error(l, 21, "needs 'trays'");
+	loaded_free(l);
+}
+
+static void test_bad_number_is_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("diameter_m = 1.5", "diameter_m = 1.5m");
+	assert_error(l, 23, "is not a number");
+	loaded_free(l);
+	l = load_edit("diameter_m = 1.5", "diameter_m = 150");
+	assert_error(l, 23, "outside");
+	loaded_free(l);
+}
+
+static void test_unknown_unit_is_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("unit = t/h\n", "unit = tons/hr\n");
+	assert_error(l, 11, "unit 'tons/hr' is not known");
+	loaded_free(l);
+}
+
+static void test_undefined_tag_reference_is_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("liquid_flow = FL", "liquid_flow = FL2");
+	assert_error(l, 34, "tag 'FL2' is not defined");
+	loaded_free(l);
+}
+
+static void test_unit_that_does_not_fit_the_signal_is_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("temperature = T", "temperature = P");
+	assert_error(l, 36, "not a unit for temperature");
+	loaded_free(l);
+}
+
+static void test_weir_taller_than_tray_spacing_is_refused(void **state)
+{
+	(void)state;
+	/* Same line count: both edits replace one line by one line. */
+	char buf[8192];
+	snprintf(buf, sizeof(buf), "%s", base_ini);
+	char *w = strstr(buf, "weir_height_m = 0.05");
+	assert_non_null(w);
+	memcpy(w, "weir_height_m = 0.29", 20);
+	char *t = strstr(buf, "tray_spacing_m = 0.6\n");
+	assert_non_null(t);
+	memmove(t + 21, t + 20, strlen(t + 20) + 1);
+	memcpy(t, "tray_spacing_m = 0.25", 21);
+	struct loaded *l = load_text(buf);
+	assert_error(l, 21, "weir_height_m 0.29 is not below tray_spacing_m 0.25");
+	loaded_free(l);
+}
+
+static void test_areas_larger_than_the_tower_are_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("active_area_frac = 0.76", "active_area_frac = 0.9");
+	assert_error(l, 21, "exceeds the tower cross-section");
+	loaded_free(l);
+}
+
+static void test_duplicate_key_and_header_are_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("trays = 10\n", "trays = 10\ntrays = 12\n");
+	assert_error(l, 25, "duplicate key 'trays'");
+	loaded_free(l);
+	l = load_edit("[tag.T]\n", "[tag.P]\n");
+	assert_error(l, 18, "[tag.P] appears twice (first at line 15)");
+	loaded_free(l);
+}
+
+static void test_long_line_is_refused_not_split(void **state)
+{
+	(void)state;
+	char longv[400];
+	memset(longv, 'x', sizeof(longv) - 1);
+	longv[sizeof(longv) - 1] = '\0';
+	char edit[512];
+	snprintf(edit, sizeof(edit), "name = %s\n", longv);
+	struct loaded *l = load_edit("name = test-unit\n", edit);
+	assert_error(l, 2, "line longer than");
+	assert_null(strstr(l->err, ":3: ")); /* no bogus follow-on line */
+	loaded_free(l);
+}
+
+static void test_alarm_on_unknown_field_is_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("signal = flood_index", "signal = flood_percent");
+	assert_error(l, 44, "'flood_percent' is not a result field");
+	loaded_free(l);
+	l = load_edit("section = C1", "section = C9");
+	assert_error(l, 43, "section 'C9' is not defined");
+	loaded_free(l);
+}
+
+static void test_key_that_does_not_apply_to_the_type_is_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("trays = 10\n", "trays = 10\npacked_height_m = 4\n");
+	assert_error(l, 25, "'packed_height_m' does not apply to a tray section");
+	loaded_free(l);
+}
+
+static void test_export_fields_continue_over_lines(void **state)
+{
+	(void)state;
+	char buf[8192];
+	snprintf(buf, sizeof(buf), "%s[export.modbus]\nlisten = 127.0.0.1:1600\n"
+				   "fields = C1.flood_index, C1.weep_pct,\n  C1.dp_pa\n", base_ini);
+	struct loaded *l = load_text(buf);
+	if (l->rc != 0)
+		fail_msg("%s", l->err);
+	assert_int_equal(l->cfg.exp.field_count, 3);
+	assert_int_equal(l->cfg.exp.fields[2].field, RF_DP_PA);
+	assert_int_equal(l->cfg.exp.port, 1600);
+	assert_string_equal(l->cfg.exp.host, "127.0.0.1");
+	loaded_free(l);
+}
+
+static void test_missing_file_is_enoent(void **state)
+{
+	(void)state;
+	struct fg_config *c = malloc(sizeof(*c));
+	assert_non_null(c);
+	FILE *devnull = fopen("/dev/null", "w");
+	assert_int_equal(config_load(c, "/nonexistent/fg.ini", devnull), -2 /* -ENOENT */);
+	fclose(devnull);
+	free(c);
+}
+
+static void test_demo_config_is_valid(void **state)
+{
+	(void)state;
+	struct fg_config *c = malloc(sizeof(*c));
+	assert_non_null(c);
+	assert_int_equal(config_load(c, "configs/demo.ini", stderr), 0);
+	assert_int_equal(c->section_count, 4);
+	int types = 0;
+	for (unsigned i = 0; i < c->section_count; i++)
+		types |= 1 << c->sections[i].geom.type;
+	assert_int_equal(types, 0xf); /* one of each type */
+	assert_true(c->exp.field_count >= 8);
+	free(c);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_valid_config_loads_with_its_values),
+		cmocka_unit_test(test_unknown_key_is_refused_with_its_line),
+		cmocka_unit_test(test_missing_required_key_names_the_section_line),
+		cmocka_unit_test(test_bad_number_is_refused),
+		cmocka_unit_test(test_unknown_unit_is_refused),
+		cmocka_unit_test(test_undefined_tag_reference_is_refused),
+		cmocka_unit_test(test_unit_that_does_not_fit_the_signal_is_refused),
+		cmocka_unit_test(test_weir_taller_than_tray_spacing_is_refused),
+		cmocka_unit_test(test_areas_larger_than_the_tower_are_refused),
+		cmocka_unit_test(test_duplicate_key_and_header_are_refused),
+		cmocka_unit_test(test_long_line_is_refused_not_split),
+		cmocka_unit_test(test_alarm_on_unknown_field_is_refused),
+		cmocka_unit_test(test_key_that_does_not_apply_to_the_type_is_refused),
+		cmocka_unit_test(test_export_fields_continue_over_lines),
+		cmocka_unit_test(test_missing_file_is_enoent),
+		cmocka_unit_test(test_demo_config_is_valid),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
