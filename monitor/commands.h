@@ -11,6 +11,10 @@
 
 int cmd_check(int argc, char **argv);
 int cmd_rate(int argc, char **argv);
+int cmd_simulate(int argc, char **argv);
+int cmd_replay(int argc, char **argv);
+int cmd_run(int argc, char **argv);
+int cmd_feed(int argc, char **argv);
 
 /* The advisory caution every human-facing output carries. */
 extern const char *const fg_caution;

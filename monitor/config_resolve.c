@@ -73,7 +73,7 @@ static bool unit_fits(enum section_signal s, const struct unit *u)
 		return u->kind == UNIT_KIND_MASS_FLOW || u->kind == UNIT_KIND_VOLUME_FLOW;
 	case SIGNAL_DP:
 		/* A difference: absolute-pressure units are fine, gauge offsets are not. */
-		return (u->kind == UNIT_KIND_DP || u->kind == UNIT_KIND_PRESSURE) && u->offset == 0.0;
+		return units_usable_as_dp(u);
 	case SIGNAL_PRESSURE: return u->kind == UNIT_KIND_PRESSURE;
 	case SIGNAL_TEMPERATURE: return u->kind == UNIT_KIND_TEMPERATURE;
 	case SIGNAL_LEVEL: return u->kind == UNIT_KIND_LENGTH;

@@ -20,6 +20,8 @@ struct command {
 static const struct command commands[] = {
 	{"check", cmd_check, "validate a config file and say what is wrong"},
 	{"rate", cmd_rate, "evaluate one operating point of a section and print every result"},
+	{"replay", cmd_replay, "run the engine over recorded data; write results, events, report"},
+	{"simulate", cmd_simulate, "write synthetic plant data with an injected upset"},
 };
 
 static void usage(FILE *f)

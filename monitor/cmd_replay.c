@@ -1,0 +1,426 @@
+/*
+ * cmd_replay.c - `floodgauge replay`: the live engine, driven from a
+ * historian CSV instead of the plant.
+ *
+ * One pass over the file: each row becomes one engine step at the row's own
+ * time; results go to results.csv, alarm transitions to events.jsonl, and a
+ * bounded summary of the series to report.html. Rows the reader had to skip
+ * are counted and the first of them reported with their line numbers.
+ */
+#include <errno.h>
+#include <getopt.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <time.h>
+#include <unistd.h>
+
+#include "commands.h"
+#include "csvread.h"
+#include "engine.h"
+#include "report.h"
+#include "results.h"
+#include "timefmt.h"
+
+struct replay {
+	const char *data_path;
+	const char *out_dir;
+	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
+	struct fg_config *cfg;
+	struct engine *eng;
+	struct csvread csv;
+	unsigned polled_count;
+	int tag_of_slot[FG_TAGS_MAX];
+	FILE *results, *events;
+	struct report rp;
+	struct report_summary sum;
+	uint64_t rows_used, rows_outside;
+	int64_t prev_t_ms;
+	char path_results[FG_PATH_MAX + 32], path_events[FG_PATH_MAX + 32],
+		path_report[FG_PATH_MAX + 32];
+};
+
+static void replay_usage(FILE *f)
+{
+	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv [--out DIR] [--from T] [--to T]\n\n"
+		   "Runs the monitor's engine over recorded data (a historian export: header\n"
+		   "'time,TAG,...', ISO 8601 UTC or epoch seconds, ',' or ';') and writes\n"
+		   "DIR/results.csv, DIR/events.jsonl and DIR/report.html (default DIR:\n"
+		   "floodgauge-replay). --from/--to limit the rows to a time window.\n"
+		   "Exit status: 0 ok, 1 output could not be written, 2 bad config or data.\n");
+}
+
+static int parse_time_opt(const char *opt, const char *s, int64_t *t_ms)
+{
+	if (timefmt_parse(s, strlen(s), t_ms) != 0) {
+		fprintf(stderr, "floodgauge replay: %s '%s' is not an ISO 8601 time or epoch "
+				"seconds\n", opt, s);
+		return -EINVAL;
+	}
+	return 0;
+}
+
+static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg_path)
+{
+	static const struct option opts[] = {{"config", required_argument, NULL, 'c'},
+					     {"out", required_argument, NULL, 'o'},
+					     {"from", required_argument, NULL, 'f'},
+					     {"to", required_argument, NULL, 't'},
+					     {"help", no_argument, NULL, 'h'},
+					     {0}};
+	int ch;
+	optind = 1;
+	while ((ch = getopt_long(argc, argv, "c:o:h", opts, NULL)) != -1) {
+		switch (ch) {
+		case 'c': *cfg_path = optarg; break;
+		case 'o': rp->out_dir = optarg; break;
+		case 'f':
+			if (parse_time_opt("--from", optarg, &rp->from_t_ms) != 0)
+				return EXIT_USAGE;
+			break;
+		case 't':
+			if (parse_time_opt("--to", optarg, &rp->to_t_ms) != 0)
+				return EXIT_USAGE;
+			break;
+		case 'h': replay_usage(stdout); return -1;
+		default: replay_usage(stderr); return EXIT_USAGE;
+		}
+	}
+	if (*cfg_path == NULL || optind != argc - 1) {
+		replay_usage(stderr);
+		return EXIT_USAGE;
+	}
+	rp->data_path = argv[optind];
+	return 0;
+}
+
+static int open_outputs(struct replay *rp)
+{
+	if (mkdir(rp->out_dir, 0777) != 0 && errno != EEXIST) {
+		fprintf(stderr, "floodgauge replay: cannot create %s: %s\n", rp->out_dir,
+			strerror(errno));
+		return EXIT_RUNTIME;
+	}
+	snprintf(rp->path_results, sizeof(rp->path_results), "%s/results.csv", rp->out_dir);
+	snprintf(rp->path_events, sizeof(rp->path_events), "%s/events.jsonl", rp->out_dir);
+	snprintf(rp->path_report, sizeof(rp->path_report), "%s/report.html", rp->out_dir);
+	rp->results = fopen(rp->path_results, "w");
+	rp->events = fopen(rp->path_events, "w");
+	if (rp->results == NULL || rp->events == NULL) {
+		fprintf(stderr, "floodgauge replay: cannot write in %s: %s\n", rp->out_dir,
+			strerror(errno));
+		return EXIT_RUNTIME;
+	}
+	static char buf[1 << 16];
+	setvbuf(rp->results, buf, _IOFBF, sizeof(buf));
+	return 0;
+}
+
+static int bind_columns(struct replay *rp)
+{
+	static const char *names[FG_TAGS_MAX];
+	char err[512];
+	rp->polled_count = 0;
+	for (unsigned i = 0; i < rp->cfg->tag_count; i++) {
+		if (rp->cfg->tags[i].source_index < 0)
+			continue;
+		rp->tag_of_slot[rp->polled_count] = (int)i;
+		names[rp->polled_count++] = rp->cfg->tags[i].name;
+	}
+	if (csvread_open(&rp->csv, rp->data_path, err, sizeof(err)) != 0 ||
+	    csvread_bind(&rp->csv, names, rp->polled_count, err, sizeof(err)) != 0) {
+		fprintf(stderr, "floodgauge replay: %s\n", err);
+		return EXIT_USAGE;
+	}
+	return 0;
+}
+
+static int report_layout_from(struct replay *rp)
+{
+	static struct report_layout lay;
+	const struct fg_config *cfg = rp->cfg;
+	memset(&lay, 0, sizeof(lay));
+	snprintf(lay.plant, sizeof(lay.plant), "%s", cfg->monitor.name);
+	snprintf(lay.data_file, sizeof(lay.data_file), "%s", rp->data_path);
+	lay.section_count = cfg->section_count;
+	for (unsigned i = 0; i < cfg->section_count; i++) {
+		snprintf(lay.sections[i].name, FG_NAME_MAX, "%s", cfg->sections[i].name);
+		snprintf(lay.sections[i].type, REPORT_WORD_MAX, "%s",
+			 config_section_type_name(cfg->sections[i].geom.type));
+	}
+	lay.alarm_count = cfg->alarm_count;
+	for (unsigned i = 0; i < cfg->alarm_count; i++) {
+		const struct alarm_cfg *a = &cfg->alarms[i];
+		struct report_alarm *ra = &lay.alarms[i];
+		snprintf(ra->name, FG_NAME_MAX, "%s", a->name);
+		ra->section_index = (int)a->section_index;
+		ra->field = a->field;
+		snprintf(ra->kind, REPORT_WORD_MAX, "%s", alarm_kind_name(a->kind));
+		snprintf(ra->priority, REPORT_WORD_MAX, "%s", alarm_priority_name(a->priority));
+		ra->setpoint = a->kind == ALARM_KIND_DIAGNOSTIC ? NAN : a->setpoint;
+	}
+	if (report_init(&rp->rp, &lay) != 0) {
+		fprintf(stderr, "floodgauge replay: cannot set up the report\n");
+		return EXIT_RUNTIME;
+	}
+	return 0;
+}
+
+/* Time above (high kinds) or below (low) the setpoint, per alarm. */
+static void accumulate_above(struct replay *rp, double dt_s)
+{
+	const struct fg_config *cfg = rp->cfg;
+	for (unsigned i = 0; i < cfg->alarm_count; i++) {
+		const struct alarm_cfg *a = &cfg->alarms[i];
+		bool hi = a->kind == ALARM_KIND_HIGH || a->kind == ALARM_KIND_HIGH_HIGH;
+		if (!hi && a->kind != ALARM_KIND_LOW)
+			continue;
+		if (isnan(rp->sum.above_setpoint_s[i]))
+			rp->sum.above_setpoint_s[i] = 0.0;
+		double v = rp->eng->sec[a->section_index].r.v[a->field];
+		if (isfinite(v) && (hi ? v >= a->setpoint : v <= a->setpoint))
+			rp->sum.above_setpoint_s[i] += dt_s;
+	}
+}
+
+static int write_events(struct replay *rp)
+{
+	const struct engine *e = rp->eng;
+	for (unsigned k = 0; k < engine_event_count(e); k++) {
+		const struct alarm_event *ev = &e->events[k];
+		const struct alarm_cfg *a = &rp->cfg->alarms[ev->alarm_index];
+		const char *sec = rp->cfg->sections[a->section_index].name;
+		char ts[TIMEFMT_BUF_SIZE], line[1024];
+		timefmt_format(ev->t_ms, ts, sizeof(ts));
+		if (alarm_event_json(ev, a, sec, ts, line, sizeof(line)) < 0)
+			return -ENOSPC;
+		fprintf(rp->events, "%s\n", line);
+		report_add_event(&rp->rp, ev->t_ms, (int)ev->alarm_index, alarm_state_name(ev->state),
+				 ev->value);
+		if (ev->state == ALARM_STATE_UNACK && ev->prev != ALARM_STATE_ACKED) {
+			rp->sum.raised[a->priority]++;
+			int64_t *first = &rp->sum.first_alarm_t_ms[a->section_index];
+			if (*first == REPORT_T_NONE)
+				*first = ev->t_ms;
+		}
+	}
+	return 0;
+}
+
+_Static_assert((int)REPORT_PRIORITY_URGENT == (int)ALARM_PRIORITY_URGENT &&
+		       (int)REPORT_PRIORITY_LOW == (int)ALARM_PRIORITY_LOW,
+	       "report and alarm priorities share their order");
+
+static int step_row(struct replay *rp, int64_t t_ms, const double *row)
+{
+	static double values[FG_TAGS_MAX];
+	static enum tag_status status[FG_TAGS_MAX];
+	for (unsigned k = 0; k < rp->polled_count; k++) {
+		int ti = rp->tag_of_slot[k];
+		values[ti] = row[k];
+		status[ti] = isnan(row[k]) ? TAG_STATUS_MISSING : TAG_STATUS_FRESH;
+	}
+	engine_step(rp->eng, t_ms, values, status);
+	const struct section_result *res[FG_SECTIONS_MAX];
+	static struct section_result copy[FG_SECTIONS_MAX];
+	for (unsigned s = 0; s < rp->cfg->section_count; s++) {
+		copy[s] = rp->eng->sec[s].r;
+		res[s] = &copy[s];
+	}
+	if (results_write_row(rp->results, rp->cfg, t_ms, res) != 0 || write_events(rp) != 0)
+		return -EIO;
+	engine_events_clear(rp->eng);
+	report_add_row(&rp->rp, t_ms, copy);
+	if (rp->rows_used > 0) {
+		/* Gaps longer than ten periods count for one period only. */
+		double dt_s = (double)(t_ms - rp->prev_t_ms) / 1000.0;
+		accumulate_above(rp, fmin(dt_s, 10.0 * rp->cfg->monitor.period_s));
+	}
+	if (rp->rows_used == 0)
+		rp->sum.first_t_ms = t_ms;
+	rp->sum.last_t_ms = t_ms;
+	rp->prev_t_ms = t_ms;
+	rp->rows_used++;
+	return 0;
+}
+
+static double wall_s(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (double)ts.tv_sec + (double)ts.tv_nsec * 1e-9;
+}
+
+static void progress(const struct replay *rp, double t0, double *next, bool final)
+{
+	double now = wall_s();
+	if (!final && now < *next)
+		return;
+	*next = now + 0.5;
+	uint64_t done = 0, total = 0;
+	csvread_progress(&rp->csv, &done, &total);
+	double rate = (double)rp->rows_used / fmax(now - t0, 1e-3);
+	if (total > 0 && done > 0) {
+		double left = (now - t0) * (double)(total - done) / (double)done;
+		fprintf(stderr, "\r%llu rows, %.0f rows/s, %3.0f %%, %.0f s left   ",
+			(unsigned long long)rp->rows_used, rate, 100.0 * (double)done / (double)total,
+			left);
+	} else {
+		fprintf(stderr, "\r%llu rows, %.0f rows/s   ", (unsigned long long)rp->rows_used, rate);
+	}
+	if (final)
+		fputc('\n', stderr);
+}
+
+static int run_rows(struct replay *rp)
+{
+	static double row[FG_CSV_COLUMNS_MAX];
+	bool tty = isatty(STDERR_FILENO);
+	double t0 = wall_s(), next = t0 + 0.5;
+	int64_t t_ms;
+	int rc;
+	while ((rc = csvread_next(&rp->csv, &t_ms, row, rp->polled_count)) == 1) {
+		if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms) {
+			rp->rows_outside++;
+			continue;
+		}
+		if (step_row(rp, t_ms, row) != 0) {
+			fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir,
+				strerror(errno));
+			return EXIT_RUNTIME;
+		}
+		if (tty)
+			progress(rp, t0, &next, false);
+	}
+	if (tty)
+		progress(rp, t0, &next, true);
+	if (rc < 0) {
+		fprintf(stderr, "floodgauge replay: reading %s: %s\n", rp->data_path, strerror(-rc));
+		return EXIT_RUNTIME;
+	}
+	return 0;
+}
+
+static void warn_skipped(const struct replay *rp)
+{
+	const struct csvread_stats *st = csvread_stats(&rp->csv);
+	for (unsigned i = 0; i < st->problem_count; i++)
+		fprintf(stderr, "floodgauge replay: %s:%llu: %s row skipped: %s\n", rp->data_path,
+			(unsigned long long)st->problems[i].line,
+			csvread_problem_kind_name(st->problems[i].kind), st->problems[i].reason);
+	uint64_t all = st->rows_malformed + st->rows_unsorted + st->rows_duplicate;
+	if (all > st->problem_count)
+		fprintf(stderr, "floodgauge replay: ... %llu skipped rows in all\n",
+			(unsigned long long)all);
+}
+
+static void print_summary(const struct replay *rp)
+{
+	const struct fg_config *cfg = rp->cfg;
+	const struct report_summary *s = &rp->sum;
+	char a[TIMEFMT_BUF_SIZE] = "-", b[TIMEFMT_BUF_SIZE] = "-";
+	if (rp->rows_used > 0) {
+		timefmt_format(s->first_t_ms, a, sizeof(a));
+		timefmt_format(s->last_t_ms, b, sizeof(b));
+	}
+	printf("replay of %s on %s\n", rp->data_path, cfg->monitor.name);
+	printf("  rows used %llu, from %s to %s (%.2f h)\n", (unsigned long long)rp->rows_used, a,
+	       b, rp->rows_used ? (double)(s->last_t_ms - s->first_t_ms) / 3.6e6 : 0.0);
+	printf("  rows skipped: %llu malformed, %llu out of time order, %llu duplicate time, "
+	       "%llu outside --from/--to\n", (unsigned long long)s->rows_malformed,
+	       (unsigned long long)s->rows_unsorted, (unsigned long long)s->rows_duplicate,
+	       (unsigned long long)rp->rows_outside);
+	printf("  alarms raised: urgent %llu, high %llu, medium %llu, low %llu\n",
+	       (unsigned long long)s->raised[REPORT_PRIORITY_URGENT],
+	       (unsigned long long)s->raised[REPORT_PRIORITY_HIGH],
+	       (unsigned long long)s->raised[REPORT_PRIORITY_MEDIUM],
+	       (unsigned long long)s->raised[REPORT_PRIORITY_LOW]);
+	printf("  first alarm per section:\n");
+	for (unsigned i = 0; i < cfg->section_count; i++) {
+		char t[TIMEFMT_BUF_SIZE] = "none";
+		if (s->first_alarm_t_ms[i] != REPORT_T_NONE)
+			timefmt_format(s->first_alarm_t_ms[i], t, sizeof(t));
+		printf("    %-16s %s\n", cfg->sections[i].name, t);
+	}
+	printf("  time beyond setpoint:\n");
+	for (unsigned i = 0; i < cfg->alarm_count; i++)
+		if (isfinite(s->above_setpoint_s[i]))
+			printf("    %-24s %10.0f s\n", cfg->alarms[i].name, s->above_setpoint_s[i]);
+	printf("  wrote %s, %s, %s\n%s\n", rp->path_results, rp->path_events, rp->path_report,
+	       fg_caution);
+}
+
+static int replay_run(struct replay *rp)
+{
+	int rc = bind_columns(rp);
+	if (rc == 0)
+		rc = open_outputs(rp);
+	if (rc == 0)
+		rc = report_layout_from(rp);
+	if (rc != 0)
+		return rc;
+	engine_init(rp->eng, rp->cfg);
+	report_summary_clear(&rp->sum);
+	if (results_write_header(rp->results, rp->cfg) != 0)
+		return EXIT_RUNTIME;
+	rc = run_rows(rp);
+	if (rc != 0)
+		return rc;
+	warn_skipped(rp);
+	const struct csvread_stats *st = csvread_stats(&rp->csv);
+	rp->sum.rows_read = st->rows_read;
+	rp->sum.rows_malformed = st->rows_malformed;
+	rp->sum.rows_unsorted = st->rows_unsorted;
+	rp->sum.rows_duplicate = st->rows_duplicate;
+	if (fflush(rp->results) != 0 || fflush(rp->events) != 0) {
+		fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir, strerror(errno));
+		return EXIT_RUNTIME;
+	}
+	if (rp->rows_used == 0) {
+		fprintf(stderr, "floodgauge replay: %s: no data rows%s\n", rp->data_path,
+			rp->rows_outside ? " inside --from/--to" : "");
+		return EXIT_USAGE;
+	}
+	if (report_write(&rp->rp, rp->path_report, &rp->sum) != 0) {
+		fprintf(stderr, "floodgauge replay: cannot write %s\n", rp->path_report);
+		return EXIT_RUNTIME;
+	}
+	print_summary(rp);
+	return 0;
+}
+
+int cmd_replay(int argc, char **argv)
+{
+	static struct replay rp;
+	memset(&rp, 0, sizeof(rp));
+	rp.out_dir = "floodgauge-replay";
+	rp.from_t_ms = INT64_MIN;
+	rp.to_t_ms = INT64_MAX;
+	const char *cfg_path = NULL;
+	int rc = parse_args(&rp, argc, argv, &cfg_path);
+	if (rc != 0)
+		return rc < 0 ? 0 : rc;
+	rp.cfg = malloc(sizeof(*rp.cfg));
+	rp.eng = malloc(sizeof(*rp.eng));
+	if (rp.cfg == NULL || rp.eng == NULL) {
+		rc = EXIT_RUNTIME;
+		goto out_free;
+	}
+	if (config_load(rp.cfg, cfg_path, stderr) != 0) {
+		rc = EXIT_USAGE;
+		goto out_free;
+	}
+	rc = replay_run(&rp);
+out_free:
+	if (rp.results)
+		fclose(rp.results);
+	if (rp.events)
+		fclose(rp.events);
+	report_fini(&rp.rp);
+	csvread_close(&rp.csv);
+	free(rp.eng);
+	free(rp.cfg);
+	return rc;
+}

@@ -1,0 +1,227 @@
+/*
+ * engine.c - see engine.h.
+ */
+#include "engine.h"
+
+#include <assert.h>
+#include <math.h>
+#include <string.h>
+
+#include "alarmstate.h"
+#include "point.h"
+
+int engine_init(struct engine *e, const struct fg_config *cfg)
+{
+	assert(e != NULL);
+	assert(cfg != NULL);
+	assert(cfg->tag_count <= FG_TAGS_MAX);
+	assert(cfg->section_count <= FG_SECTIONS_MAX);
+	assert(cfg->alarm_count <= FG_ALARMS_MAX);
+	memset(e, 0, sizeof(*e));
+	e->cfg = cfg;
+	e->t_ms = ALARM_T_NONE;
+	for (unsigned i = 0; i < cfg->tag_count; i++)
+		validate_init(&e->tags[i], &cfg->tags[i], cfg->monitor.period_s);
+	for (unsigned i = 0; i < cfg->section_count; i++) {
+		softsense_init(&e->sec[i].ss);
+		result_clear(&e->sec[i].r);
+		e->sec[i].r.quality = FG_QUALITY_BAD;
+		e->sec[i].diag_tag = -1;
+	}
+	for (unsigned i = 0; i < cfg->alarm_count; i++)
+		alarm_init(&e->alarms[i], &cfg->alarms[i], i);
+	return 0;
+}
+
+static bool signal_required(const struct section_cfg *s, int k, bool density_good)
+{
+	switch (k) {
+	case SIGNAL_GAS_FLOW: return true;
+	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
+	case SIGNAL_PRESSURE:
+	case SIGNAL_TEMPERATURE: return !density_good;
+	default: return false;
+	}
+}
+
+/* Collects the section's signals in SI and the worst input quality. */
+static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
+{
+	const struct section_cfg *s = &e->cfg->sections[si];
+	struct engine_section *es = &e->sec[si];
+	enum fg_quality q = FG_QUALITY_GOOD;
+	es->diag_reason = NULL;
+	es->diag_tag = -1;
+	int dens = s->signal[SIGNAL_GAS_DENSITY];
+	bool density_good = dens >= 0 && e->tags[dens].quality != FG_QUALITY_BAD;
+	for (int k = 0; k < SIGNAL_COUNT; k++) {
+		int ti = s->signal[k];
+		sig[k] = NAN;
+		if (ti < 0)
+			continue;
+		const struct tag_state *ts = &e->tags[ti];
+		if (ts->quality != FG_QUALITY_BAD)
+			sig[k] = ts->value_si;
+		if (ts->reason != NULL && es->diag_reason == NULL) {
+			es->diag_reason = ts->reason;
+			es->diag_tag = ti;
+		}
+		if (ts->quality == FG_QUALITY_BAD && signal_required(s, k, density_good))
+			fg_quality_raise(&q, FG_QUALITY_BAD);
+		else if (ts->quality != FG_QUALITY_GOOD)
+			fg_quality_raise(&q, FG_QUALITY_UNCERTAIN);
+	}
+	/* A bubble column without a liquid through-flow tag has none. */
+	if (s->signal[SIGNAL_LIQUID_FLOW] < 0)
+		sig[SIGNAL_LIQUID_FLOW] = 0.0;
+	return q;
+}
+
+static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
+{
+	const struct section_cfg *s = &e->cfg->sections[si];
+	struct engine_section *es = &e->sec[si];
+	struct section_result *r = &es->r;
+	const struct section_point *p = &es->point;
+	double raw_model = r->v[RF_DP_MODEL_PA];
+	double liquid_out = NAN;
+	int lo = s->signal[SIGNAL_LIQUID_OUT_FLOW];
+	if (lo >= 0 && e->tags[lo].quality != FG_QUALITY_BAD) {
+		struct section_point q = *p;
+		double sig[SIGNAL_COUNT];
+		for (int k = 0; k < SIGNAL_COUNT; k++)
+			sig[k] = NAN;
+		sig[SIGNAL_LIQUID_FLOW] = e->tags[lo].value_si;
+		sig[SIGNAL_TEMPERATURE] = p->temperature_k;
+		point_from_si(s, e->cfg, sig, &q); /* same volume-to-mass rule */
+		liquid_out = q.liquid_kgs;
+	}
+	struct softsense_input in = {
+		.gas_kgs = p->gas_kgs,
+		.dp_pa = r->v[RF_DP_PA],
+		.dp_model_pa = raw_model,
+		.f_factor = r->v[RF_F_FACTOR],
+		.liquid_in_kgs = p->liquid_kgs,
+		.liquid_out_kgs = liquid_out,
+		.level_m = p->level_m,
+		.rho_l_kgm3 = prop_table_at(&s->props.liquid_density_kgm3, p->temperature_k, NULL),
+		.sump_area_m2 = isfinite(s->sump_area_m2) ? s->sump_area_m2 : section_area_m2(&s->geom),
+		.normal = r->quality == FG_QUALITY_GOOD && es->in_service &&
+			  r->v[RF_FLOOD_INDEX] < SOFTSENSE_NORMAL_FLOOD_PCT,
+	};
+	softsense_step(&es->ss, &in, t_ms, r);
+	double k = r->v[RF_DP_CORRECTION];
+	if (isfinite(k) && k > 0.0) {
+		r->v[RF_DP_MODEL_PA] = raw_model * k;
+		r->v[RF_DP_FLOOD_PCT] /= k;
+	}
+	section_fuse(r, NAN);
+}
+
+static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
+{
+	const struct section_cfg *s = &e->cfg->sections[si];
+	struct engine_section *es = &e->sec[si];
+	double sig[SIGNAL_COUNT];
+	enum fg_quality q = gather(e, si, sig);
+	point_from_si(s, e->cfg, sig, &es->point);
+	section_eval(&s->geom, &s->props, &es->point, &es->r);
+	fg_quality_raise(&es->r.quality, q);
+	es->in_service = isfinite(es->point.gas_kgs) && es->point.gas_kgs >= s->in_service_gas_kgs;
+	soft_sensors(e, si, t_ms);
+}
+
+static void push_event(struct engine *e, const struct alarm_event *ev)
+{
+	assert(e->event_count < ENGINE_EVENTS_MAX);
+	e->events[e->event_count++] = *ev;
+}
+
+static void eval_alarms(struct engine *e, int64_t t_ms)
+{
+	for (unsigned i = 0; i < e->cfg->alarm_count; i++) {
+		struct alarm *a = &e->alarms[i];
+		const struct engine_section *es = &e->sec[a->cfg.section_index];
+		bool diag = a->cfg.kind == ALARM_KIND_DIAGNOSTIC;
+		struct alarm_input in = {
+			.value = diag ? (es->diag_tag >= 0 ? e->tags[es->diag_tag].accepted : NAN)
+				      : es->r.v[a->cfg.field],
+			.reference = a->cfg.reference_field >= 0 ? es->r.v[a->cfg.reference_field]
+								 : NAN,
+			.quality = es->r.quality,
+			.suppressed = !diag && !es->in_service,
+			.diag_reason = es->diag_reason,
+		};
+		struct alarm_event ev;
+		if (alarm_step(a, &in, t_ms, &ev) == 1)
+			push_event(e, &ev);
+	}
+}
+
+void engine_step(struct engine *e, int64_t t_ms, const double *values,
+		 const enum tag_status *status)
+{
+	assert(e != NULL);
+	assert(values != NULL);
+	assert(status != NULL);
+	const struct fg_config *cfg = e->cfg;
+	e->event_count = 0;
+	for (unsigned i = 0; i < cfg->tag_count; i++) {
+		const struct tag_cfg *t = &cfg->tags[i];
+		if (t->source_index < 0)
+			validate_step(&e->tags[i], t_ms, t->fixed_value, TAG_STATUS_FRESH);
+		else
+			validate_step(&e->tags[i], t_ms, values[i], status[i]);
+	}
+	for (unsigned i = 0; i < cfg->section_count; i++)
+		eval_section(e, i, t_ms);
+	eval_alarms(e, t_ms);
+	e->t_ms = t_ms;
+	e->step_count++;
+}
+
+static int command(struct engine *e, unsigned ai, int rc, const struct alarm_event *ev)
+{
+	(void)ai;
+	if (rc == 0)
+		push_event(e, ev);
+	return rc;
+}
+
+int engine_ack(struct engine *e, unsigned ai, int64_t t_ms)
+{
+	assert(e != NULL);
+	assert(ai < e->cfg->alarm_count);
+	struct alarm_event ev;
+	return command(e, ai, alarm_ack(&e->alarms[ai], t_ms, &ev), &ev);
+}
+
+int engine_shelve(struct engine *e, unsigned ai, double duration_s, int64_t t_ms)
+{
+	assert(e != NULL);
+	assert(ai < e->cfg->alarm_count);
+	struct alarm_event ev;
+	return command(e, ai, alarm_shelve(&e->alarms[ai], duration_s, t_ms, &ev), &ev);
+}
+
+int engine_unshelve(struct engine *e, unsigned ai, int64_t t_ms)
+{
+	assert(e != NULL);
+	assert(ai < e->cfg->alarm_count);
+	struct alarm_event ev;
+	return command(e, ai, alarm_unshelve(&e->alarms[ai], t_ms, &ev), &ev);
+}
+
+int engine_state_save(const struct engine *e, const char *path, int64_t now_t_ms)
+{
+	assert(e != NULL);
+	assert(path != NULL);
+	return alarmstate_save(path, e->alarms, e->cfg->alarm_count, now_t_ms);
+}
+
+int engine_state_load(struct engine *e, const char *path, char *err, size_t err_size)
+{
+	assert(e != NULL);
+	assert(path != NULL);
+	return alarmstate_load(path, e->alarms, e->cfg->alarm_count, err, err_size);
+}

@@ -1,0 +1,72 @@
+/*
+ * engine.h - the deterministic heart of floodgauge, shared by the daemon
+ * and replay.
+ *
+ *   tag samples -> validate + filter (validate.c) -> section operating point
+ *   (point.c) -> models (section_eval) -> soft sensors (softsense.c) ->
+ *   flood_index (section_fuse) -> alarms (alarm.c) -> events
+ *
+ * The caller owns struct engine (it is large: allocate it) and the config,
+ * which must outlive it. engine_init does all the set-up; engine_step and the
+ * command calls never allocate, never read a clock and never do I/O, so the
+ * same samples at the same times give the same results and events, live or
+ * replayed.
+ */
+#ifndef ENGINE_H
+#define ENGINE_H
+
+#include <stdint.h>
+
+#include "alarm.h"
+#include "config.h"
+#include "softsense.h"
+#include "validate.h"
+
+/* One transition per alarm per step, plus commands between steps. */
+#define ENGINE_EVENTS_MAX (2 * FG_ALARMS_MAX)
+
+struct engine_section {
+	struct softsense ss;
+	struct section_result r;     /* the latest result */
+	struct section_point point;  /* the operating point it was computed from, SI */
+	bool in_service;             /* gas load at or above in_service_gas_kgs */
+	const char *diag_reason;     /* first bad/frozen input reason, NULL when healthy */
+	int diag_tag;                /* the tag behind diag_reason, -1 when none */
+};
+
+struct engine {
+	const struct fg_config *cfg;
+	struct tag_state tags[FG_TAGS_MAX];
+	struct engine_section sec[FG_SECTIONS_MAX];
+	struct alarm alarms[FG_ALARMS_MAX];
+	unsigned event_count;
+	struct alarm_event events[ENGINE_EVENTS_MAX];
+	int64_t t_ms;                /* time of the last step, ALARM_T_NONE before */
+	uint64_t step_count;
+};
+
+/* Sets e up for cfg. Returns 0 (it cannot fail on a config that loaded). */
+int engine_init(struct engine *e, const struct fg_config *cfg);
+
+/* One evaluation at t_ms. values[i] is tag i in its own unit, status[i] its
+ * read status; fixed tags ('value =') are supplied by the engine itself.
+ * Events from the previous step and commands must have been taken (they are
+ * cleared here). */
+void engine_step(struct engine *e, int64_t t_ms, const double *values,
+		 const enum tag_status *status);
+
+/* Operator commands on alarm index ai at t_ms; see alarm.h for the return
+ * values. A carried-out command appends its event. */
+int engine_ack(struct engine *e, unsigned ai, int64_t t_ms);
+int engine_shelve(struct engine *e, unsigned ai, double duration_s, int64_t t_ms);
+int engine_unshelve(struct engine *e, unsigned ai, int64_t t_ms);
+
+/* Events since the last engine_step or engine_events_clear. */
+static inline unsigned engine_event_count(const struct engine *e) { return e->event_count; }
+static inline void engine_events_clear(struct engine *e) { e->event_count = 0; }
+
+/* Alarm lifecycle persistence ([monitor] state_file). */
+int engine_state_save(const struct engine *e, const char *path, int64_t now_t_ms);
+int engine_state_load(struct engine *e, const char *path, char *err, size_t err_size);
+
+#endif

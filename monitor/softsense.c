@@ -1,0 +1,144 @@
+/*
+ * softsense.c - see softsense.h.
+ */
+#include "softsense.h"
+
+#include <assert.h>
+#include <math.h>
+#include <string.h>
+
+/* RLS covariance is re-inflated only while its trace stays below this:
+ * without excitation, forgetting would otherwise grow P without bound. */
+#define RLS_TRACE_MAX 1e4
+
+void softsense_init(struct softsense *s)
+{
+	assert(s != NULL);
+	memset(s, 0, sizeof(*s));
+	s->corr = 1.0;
+	s->p[0][0] = s->p[1][1] = 1e3;
+	s->theta[1] = 2.0; /* prior: turbulent DP ~ F^2 */
+	s->cv_base = NAN;
+}
+
+static double ewma_weight(double dt_s, double tau_s)
+{
+	return dt_s > 0.0 ? 1.0 - exp(-dt_s / tau_s) : 0.0;
+}
+
+static bool gas_steady(struct softsense *s, double gas_kgs, double dt_s)
+{
+	if (!isfinite(gas_kgs))
+		return false;
+	if (!s->started) {
+		s->g_mean = gas_kgs;
+		s->g_sq = gas_kgs * gas_kgs;
+		return false;
+	}
+	double a = ewma_weight(dt_s, SOFTSENSE_STEADY_TAU_S);
+	s->g_mean += a * (gas_kgs - s->g_mean);
+	s->g_sq += a * (gas_kgs * gas_kgs - s->g_sq);
+	double var = fmax(0.0, s->g_sq - s->g_mean * s->g_mean);
+	return s->g_mean > 0.0 && sqrt(var) / s->g_mean < SOFTSENSE_STEADY_REL_STD &&
+	       fabs(gas_kgs - s->g_mean) / s->g_mean < 2.0 * SOFTSENSE_STEADY_REL_STD;
+}
+
+static double slope_step(struct softsense *s, double f, double dp, double dt_s)
+{
+	if (!(f > 0.0) || !(dp > 0.0) || !isfinite(f) || !isfinite(dp))
+		return NAN;
+	double lambda = exp(-(dt_s > 0.0 ? dt_s : 0.0) / SOFTSENSE_SLOPE_TAU_S);
+	double x = log(f), y = log(dp);
+	double phi[2] = {1.0, x};
+	double pphi[2] = {s->p[0][0] * phi[0] + s->p[0][1] * phi[1],
+			  s->p[1][0] * phi[0] + s->p[1][1] * phi[1]};
+	double denom = lambda + phi[0] * pphi[0] + phi[1] * pphi[1];
+	double k[2] = {pphi[0] / denom, pphi[1] / denom};
+	double err = y - (s->theta[0] + s->theta[1] * x);
+	s->theta[0] += k[0] * err;
+	s->theta[1] += k[1] * err;
+	double trace = s->p[0][0] + s->p[1][1];
+	double inflate = trace < RLS_TRACE_MAX ? 1.0 / lambda : 1.0;
+	double np[2][2];
+	for (int i = 0; i < 2; i++)
+		for (int j = 0; j < 2; j++)
+			np[i][j] = (s->p[i][j] - k[i] * pphi[j]) * inflate;
+	memcpy(s->p, np, sizeof(np));
+	/* Forgetting-weighted moments of x decide whether the slope is defined. */
+	s->w_sum = lambda * s->w_sum + 1.0;
+	double b = 1.0 / s->w_sum;
+	s->x_mean += b * (x - s->x_mean);
+	s->x_sq += b * (x * x - s->x_sq);
+	double var = fmax(0.0, s->x_sq - s->x_mean * s->x_mean);
+	return sqrt(var) >= SOFTSENSE_SLOPE_MIN_STD ? s->theta[1] : NAN;
+}
+
+static double noise_step(struct softsense *s, double dp, bool normal, double dt_s)
+{
+	if (!isfinite(dp)) {
+		s->ring_count = 0; /* a gap restarts the window */
+		return NAN;
+	}
+	s->ring[s->ring_pos] = dp;
+	s->ring_pos = (s->ring_pos + 1) % SOFTSENSE_NOISE_WINDOW;
+	if (s->ring_count < SOFTSENSE_NOISE_WINDOW)
+		s->ring_count++;
+	if (s->ring_count < SOFTSENSE_NOISE_WINDOW)
+		return NAN;
+	double sum = 0.0, sq = 0.0;
+	for (unsigned i = 0; i < SOFTSENSE_NOISE_WINDOW; i++)
+		sum += s->ring[i];
+	double mean = sum / SOFTSENSE_NOISE_WINDOW;
+	for (unsigned i = 0; i < SOFTSENSE_NOISE_WINDOW; i++)
+		sq += (s->ring[i] - mean) * (s->ring[i] - mean);
+	if (!(mean > 0.0))
+		return NAN;
+	double cv = sqrt(sq / (SOFTSENSE_NOISE_WINDOW - 1)) / mean;
+	if (normal) {
+		if (isnan(s->cv_base))
+			s->cv_base = cv;
+		else
+			s->cv_base += ewma_weight(dt_s, SOFTSENSE_NOISE_BASE_TAU_S) * (cv - s->cv_base);
+	}
+	return s->cv_base > 0.0 ? cv / s->cv_base : NAN;
+}
+
+static double inventory_step(struct softsense *s, const struct softsense_input *in, double dt_s)
+{
+	if (!isfinite(in->level_m) || !isfinite(in->liquid_in_kgs) ||
+	    !isfinite(in->liquid_out_kgs) || !(in->rho_l_kgm3 > 0.0) || !(in->sump_area_m2 > 0.0))
+		return NAN;
+	if (!s->inv_started) {
+		s->inv_started = true;
+		s->level0_m = in->level_m;
+		s->inventory_m3 = 0.0;
+	} else {
+		s->inventory_m3 += (in->liquid_in_kgs - in->liquid_out_kgs) / in->rho_l_kgm3 * dt_s;
+	}
+	/* What came in and did not leave, less what the sump gained, is in the section. */
+	return s->inventory_m3 - in->sump_area_m2 * (in->level_m - s->level0_m);
+}
+
+void softsense_step(struct softsense *s, const struct softsense_input *in, int64_t t_ms,
+		    struct section_result *r)
+{
+	assert(s != NULL);
+	assert(in != NULL);
+	assert(r != NULL);
+	double dt_s = s->started ? (double)(t_ms - s->last_t_ms) / 1000.0 : 0.0;
+	if (dt_s < 0.0)
+		dt_s = 0.0; /* time going backwards: use the sample, learn nothing */
+	bool steady = gas_steady(s, in->gas_kgs, dt_s);
+	bool learn = in->normal && steady;
+	if (learn && in->dp_pa > 0.0 && in->dp_model_pa > 0.0) {
+		double ratio = in->dp_pa / in->dp_model_pa;
+		s->corr += ewma_weight(dt_s, SOFTSENSE_CORR_TAU_S) * (ratio - s->corr);
+		s->corr = fmin(SOFTSENSE_CORR_MAX, fmax(SOFTSENSE_CORR_MIN, s->corr));
+	}
+	r->v[RF_DP_CORRECTION] = isfinite(in->dp_model_pa) ? s->corr : NAN;
+	r->v[RF_DP_SLOPE] = slope_step(s, in->f_factor, in->dp_pa, dt_s);
+	r->v[RF_DP_NOISE_RATIO] = noise_step(s, in->dp_pa, learn, dt_s);
+	r->v[RF_INVENTORY_M3] = inventory_step(s, in, dt_s);
+	s->started = true;
+	s->last_t_ms = t_ms;
+}

@@ -1,0 +1,128 @@
+/*
+ * validate.c - see validate.h.
+ */
+#include "validate.h"
+
+#include <assert.h>
+#include <math.h>
+#include <string.h>
+
+#include "alarm.h"
+
+void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period_s)
+{
+	assert(s != NULL);
+	assert(cfg != NULL);
+	assert(period_s > 0.0);
+	memset(s, 0, sizeof(*s));
+	s->cfg = cfg;
+	s->stale_ms = (int64_t)llround(cfg->stale_periods * period_s * 1000.0);
+	s->value = NAN;
+	s->value_si = NAN;
+	s->accepted = NAN;
+	s->quality = FG_QUALITY_BAD;
+	s->reason = ALARM_REASON_STALE; /* nothing read yet */
+}
+
+static void set_bad(struct tag_state *s, const char *reason)
+{
+	s->quality = FG_QUALITY_BAD;
+	s->reason = reason;
+	s->value = NAN;
+	s->value_si = NAN;
+	s->lag_init = false;
+	s->med_count = 0;
+}
+
+static double median_of(const struct tag_state *s)
+{
+	double w[FG_MEDIAN_MAX];
+	unsigned n = s->med_count;
+	assert(n >= 1);
+	assert(n <= FG_MEDIAN_MAX);
+	memcpy(w, s->med, n * sizeof(double));
+	for (unsigned i = 1; i < n; i++) { /* insertion sort: n <= 15 */
+		double x = w[i];
+		unsigned j = i;
+		for (; j > 0 && w[j - 1] > x; j--)
+			w[j] = w[j - 1];
+		w[j] = x;
+	}
+	return n % 2 ? w[n / 2] : 0.5 * (w[n / 2 - 1] + w[n / 2]);
+}
+
+/* Median then first-order lag of an accepted value. */
+static void filter(struct tag_state *s, int64_t t_ms, double x)
+{
+	const struct tag_cfg *c = s->cfg;
+	unsigned win = c->median > 0 ? c->median : 1;
+	s->med[s->med_pos] = x;
+	s->med_pos = (s->med_pos + 1) % win;
+	if (s->med_count < win)
+		s->med_count++;
+	double m = win > 1 ? median_of(s) : x;
+	if (!s->lag_init || c->filter_tau_s <= 0.0) {
+		s->value = m;
+		s->lag_init = true;
+	} else {
+		double dt_s = (double)(t_ms - s->last_t_ms) / 1000.0;
+		double a = dt_s > 0.0 ? 1.0 - exp(-dt_s / c->filter_tau_s) : 0.0;
+		s->value += a * (m - s->value);
+	}
+	s->value_si = config_tag_to_si(c, s->value);
+}
+
+static void fresh(struct tag_state *s, int64_t t_ms, double v)
+{
+	const struct tag_cfg *c = s->cfg;
+	if (!isfinite(v)) {
+		set_bad(s, ALARM_REASON_NAN);
+		return;
+	}
+	if ((isfinite(c->min) && v < c->min) || (isfinite(c->max) && v > c->max)) {
+		set_bad(s, ALARM_REASON_OUT_OF_RANGE);
+		return;
+	}
+	bool had = s->quality != FG_QUALITY_BAD && isfinite(s->accepted);
+	if (had && c->spike_limit > 0.0 && fabs(v - s->accepted) > c->spike_limit &&
+	    !s->spike_held) {
+		s->spike_held = true; /* hold the last value once; quality uncertain */
+		s->quality = FG_QUALITY_UNCERTAIN;
+		s->reason = ALARM_REASON_SPIKE;
+		return;
+	}
+	s->spike_held = false;
+	if (!had || fabs(v - s->frozen_ref) > c->frozen_tolerance) {
+		s->frozen_ref = v;
+		s->frozen_since_t_ms = t_ms;
+	}
+	s->accepted = v;
+	s->seen = true;
+	s->last_fresh_t_ms = t_ms;
+	filter(s, t_ms, v);
+	bool frozen = c->frozen_s > 0.0 &&
+		      (double)(t_ms - s->frozen_since_t_ms) >= c->frozen_s * 1000.0;
+	s->quality = frozen ? FG_QUALITY_UNCERTAIN : FG_QUALITY_GOOD;
+	s->reason = frozen ? ALARM_REASON_FROZEN : NULL;
+}
+
+void validate_step(struct tag_state *s, int64_t t_ms, double v, enum tag_status status)
+{
+	assert(s != NULL);
+	assert(s->cfg != NULL);
+	switch (status) {
+	case TAG_STATUS_COMM_FAIL:
+		set_bad(s, ALARM_REASON_COMM_FAIL);
+		break;
+	case TAG_STATUS_MISSING:
+		/* Hold the last value (historians leave a field empty when nothing
+		 * was recorded) until it is stale. */
+		if (!s->seen || (s->stale_ms > 0 && t_ms - s->last_fresh_t_ms > s->stale_ms))
+			set_bad(s, ALARM_REASON_STALE);
+		break;
+	case TAG_STATUS_FRESH:
+		fresh(s, t_ms, v);
+		break;
+	}
+	s->last_t_ms = t_ms;
+}

@@ -1,0 +1,51 @@
+/*
+ * validate.h - per-tag signal validation and filtering.
+ *
+ * Every sample of a tag passes, in this order: read status (a failed read is
+ * bad at once, "comm_fail"); a missing sample holds the last good value until
+ * it is stale (no fresh read for stale_periods x period_s: bad, "stale");
+ * non-finite (bad, "nan"); outside the tag's min..max (bad, "out_of_range");
+ * a single step larger than spike_limit (rejected once, the last value held,
+ * uncertain, "spike": a second sample that confirms the jump is accepted, as a
+ * real step change would); frozen (no change beyond frozen_tolerance for
+ * frozen_s: uncertain, "frozen"); then a short median and a first-order lag.
+ * Fixed state, no allocation, time passed in.
+ */
+#ifndef VALIDATE_H
+#define VALIDATE_H
+
+#include <stdint.h>
+
+#include "config.h"
+
+enum tag_status {
+	TAG_STATUS_FRESH,     /* a new reading this period */
+	TAG_STATUS_MISSING,   /* no reading (empty historian field) */
+	TAG_STATUS_COMM_FAIL, /* the read failed */
+};
+
+struct tag_state {
+	const struct tag_cfg *cfg;
+	int64_t stale_ms;            /* stale_periods x period, ms (0: never stale) */
+	bool seen;                   /* any fresh sample yet */
+	int64_t last_fresh_t_ms;
+	int64_t last_t_ms;           /* last sample time (filter dt) */
+	double accepted;             /* last accepted raw value, tag unit */
+	bool spike_held;             /* the previous sample was rejected as a spike */
+	double frozen_ref;           /* value at the start of the current flat run */
+	int64_t frozen_since_t_ms;
+	double med[FG_MEDIAN_MAX];   /* ring of accepted values */
+	unsigned med_count, med_pos;
+	bool lag_init;
+	double value;                /* validated, filtered, tag unit; NAN when never good */
+	double value_si;             /* the same in SI */
+	enum fg_quality quality;
+	const char *reason;          /* static; NULL when good */
+};
+
+void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period_s);
+
+/* One sample at t_ms: v in the tag's unit (ignored unless status is FRESH). */
+void validate_step(struct tag_state *s, int64_t t_ms, double v, enum tag_status status);
+
+#endif
