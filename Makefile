@@ -76,6 +76,7 @@ $(BUILD)/obj/%.o: %.c
 
 # Per-test extra link flags (wrapping) go here as target-specific variables.
 TEST_LDFLAGS =
+$(BUILD)/tests/unit/test_engine: TEST_LDFLAGS = -Wl,--wrap=malloc,--wrap=calloc,--wrap=realloc
 $(BUILD)/tests/%: tests/%.c $(TSUP_OBJ) $(BUILD)/libfg.a
 	@mkdir -p $(@D)
 	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) -Itests/support $(CFLAGS) -o $@ $< $(TSUP_OBJ) \

@@ -27,6 +27,7 @@ int engine_init(struct engine *e, const struct fg_config *cfg)
 		result_clear(&e->sec[i].r);
 		e->sec[i].r.quality = FG_QUALITY_BAD;
 		e->sec[i].diag_tag = -1;
+		e->sec[i].in_service = true;
 	}
 	for (unsigned i = 0; i < cfg->alarm_count; i++)
 		alarm_init(&e->alarms[i], &cfg->alarms[i], i);
@@ -127,7 +128,10 @@ static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 	point_from_si(s, e->cfg, sig, &es->point);
 	section_eval(&s->geom, &s->props, &es->point, &es->r);
 	fg_quality_raise(&es->r.quality, q);
-	es->in_service = isfinite(es->point.gas_kgs) && es->point.gas_kgs >= s->in_service_gas_kgs;
+	/* Without a good gas flow nobody knows whether the section runs: keep
+	 * the last verdict rather than call a dead transmitter "shut down". */
+	if (isfinite(es->point.gas_kgs))
+		es->in_service = es->point.gas_kgs >= s->in_service_gas_kgs;
 	soft_sensors(e, si, t_ms);
 }
 

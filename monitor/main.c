@@ -6,11 +6,6 @@
 
 #include "commands.h"
 
-const char *const fg_caution =
-	"floodgauge is advisory: it is not a safety system. Correlations hold only within their "
-	"published ranges (results outside them are flagged); local codes, site procedures and "
-	"licensed engineers govern.";
-
 struct command {
 	const char *name;
 	int (*run)(int argc, char **argv);

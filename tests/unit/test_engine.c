@@ -1,0 +1,205 @@
+/*
+ * test_engine.c - the engine on the demo plant: no allocation per step, the
+ * same inputs give the same outputs, a dead transmitter raises a diagnostic
+ * alarm and no process alarm, an idle section suppresses its process alarms,
+ * a flood raises, acknowledges and survives a restart.
+ */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <cmocka.h>
+
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "engine.h"
+
+/* Allocation counter: the test binary links with --wrap=malloc,calloc,realloc. */
+static int alloc_calls;
+void *__real_malloc(size_t n);
+void *__real_calloc(size_t n, size_t m);
+void *__real_realloc(void *p, size_t n);
+void *__wrap_malloc(size_t n);
+void *__wrap_calloc(size_t n, size_t m);
+void *__wrap_realloc(void *p, size_t n);
+void *__wrap_malloc(size_t n) { alloc_calls++; return __real_malloc(n); }
+void *__wrap_calloc(size_t n, size_t m) { alloc_calls++; return __real_calloc(n, m); }
+void *__wrap_realloc(void *p, size_t n) { alloc_calls++; return __real_realloc(p, n); }
+
+struct rig {
+	struct fg_config cfg;
+	struct engine eng;
+	double values[FG_TAGS_MAX];
+	enum tag_status status[FG_TAGS_MAX];
+};
+
+static int rig_setup(void **state)
+{
+	struct rig *r = __real_calloc(1, sizeof(*r));
+	if (r == NULL || config_load(&r->cfg, "configs/demo.ini", stderr) != 0)
+		return -1;
+	engine_init(&r->eng, &r->cfg);
+	for (unsigned i = 0; i < r->cfg.tag_count; i++) {
+		r->values[i] = r->cfg.tags[i].nominal;
+		r->status[i] = TAG_STATUS_FRESH;
+	}
+	*state = r;
+	return 0;
+}
+
+static int rig_teardown(void **state)
+{
+	free(*state);
+	return 0;
+}
+
+static int tag(const struct rig *r, const char *name)
+{
+	int i = config_tag_index(&r->cfg, name);
+	assert_true(i >= 0);
+	return i;
+}
+
+static int alarm_ix(const struct rig *r, const char *name)
+{
+	int i = config_alarm_index(&r->cfg, name);
+	assert_true(i >= 0);
+	return i;
+}
+
+/* Runs steps at 1 s from t0_s for n s; returns the number of events of alarm ai
+ * into state want (ai < 0: any alarm). */
+static int run(struct rig *r, int64_t t0_s, int n, int ai, enum alarm_state want)
+{
+	int hits = 0;
+	for (int i = 0; i < n; i++) {
+		engine_step(&r->eng, (t0_s + i) * 1000, r->values, r->status);
+		for (unsigned k = 0; k < engine_event_count(&r->eng); k++) {
+			const struct alarm_event *ev = &r->eng.events[k];
+			if ((ai < 0 || (int)ev->alarm_index == ai) && ev->state == want)
+				hits++;
+		}
+	}
+	return hits;
+}
+
+static void test_step_does_not_allocate(void **state)
+{
+	struct rig *r = *state;
+	alloc_calls = 0;
+	run(r, 0, 600, -1, ALARM_STATE_UNACK);
+	r->values[tag(r, "C401_FI_GAS")] = 34.0; /* alarms fire: events too */
+	run(r, 600, 120, -1, ALARM_STATE_UNACK);
+	assert_int_equal(alloc_calls, 0);
+}
+
+static void test_same_inputs_give_the_same_outputs(void **state)
+{
+	struct rig *a = *state;
+	struct rig *b = __real_calloc(1, sizeof(*b));
+	assert_non_null(b);
+	memcpy(&b->cfg, &a->cfg, sizeof(a->cfg));
+	engine_init(&b->eng, &b->cfg);
+	engine_init(&a->eng, &a->cfg);
+	memcpy(b->values, a->values, sizeof(a->values));
+	memcpy(b->status, a->status, sizeof(a->status));
+	for (int i = 0; i < 900; i++) {
+		double wobble = 1.0 + 0.05 * sin(i / 40.0);
+		a->values[tag(a, "C402_FI_GAS")] = b->values[tag(b, "C402_FI_GAS")] = 7200 * wobble;
+		engine_step(&a->eng, i * 1000, a->values, a->status);
+		engine_step(&b->eng, i * 1000, b->values, b->status);
+		for (unsigned s = 0; s < a->cfg.section_count; s++)
+			assert_memory_equal(&a->eng.sec[s].r, &b->eng.sec[s].r,
+					    sizeof(struct section_result));
+		assert_int_equal(engine_event_count(&a->eng), engine_event_count(&b->eng));
+	}
+	free(b);
+}
+
+static void test_dead_transmitter_raises_diagnostic_not_process_alarm(void **state)
+{
+	struct rig *r = *state;
+	run(r, 0, 60, -1, ALARM_STATE_UNACK);
+	r->status[tag(r, "C401_FI_GAS")] = TAG_STATUS_COMM_FAIL;
+	r->values[tag(r, "C401_FI_GAS")] = 0.0;
+	int diag = alarm_ix(r, "C401_DIAG");
+	int flood = alarm_ix(r, "C401_FLOOD_H");
+	assert_int_equal(run(r, 60, 9, diag, ALARM_STATE_UNACK), 0); /* on-delay 10 s */
+	assert_int_equal(r->eng.sec[0].r.quality, FG_QUALITY_BAD);
+	assert_int_equal(run(r, 69, 5, diag, ALARM_STATE_UNACK), 1);
+	assert_int_equal(run(r, 74, 600, flood, ALARM_STATE_UNACK), 0);
+	assert_int_equal(r->eng.alarms[flood].state, ALARM_STATE_NORM);
+	assert_string_equal(r->eng.sec[0].diag_reason, "comm_fail");
+}
+
+static void test_idle_section_suppresses_process_alarms(void **state)
+{
+	struct rig *r = *state;
+	r->values[tag(r, "C401_FI_GAS")] = 2.0; /* 0.56 kg/s < in_service_gas_kgs 1.0 */
+	run(r, 0, 5, -1, ALARM_STATE_UNACK);
+	assert_int_equal(r->eng.alarms[alarm_ix(r, "C401_FLOOD_H")].state, ALARM_STATE_DSUPR);
+	assert_int_equal(r->eng.alarms[alarm_ix(r, "C401_WEEP_L")].state, ALARM_STATE_DSUPR);
+	assert_int_equal(r->eng.alarms[alarm_ix(r, "C401_DIAG")].state, ALARM_STATE_NORM);
+}
+
+static void test_flood_raises_after_on_delay_and_is_acknowledged(void **state)
+{
+	struct rig *r = *state;
+	int h = alarm_ix(r, "C401_FLOOD_H");
+	run(r, 0, 30, -1, ALARM_STATE_UNACK);
+	assert_true(r->eng.sec[0].r.v[RF_FLOOD_INDEX] < 85.0);
+	r->values[tag(r, "C401_FI_GAS")] = 30.0; /* well past the 85 % setpoint */
+	/* The 2 s input lag and the 20 s on-delay: not before 20 s, by 30 s. */
+	assert_int_equal(run(r, 30, 20, h, ALARM_STATE_UNACK), 0);
+	assert_int_equal(run(r, 50, 10, h, ALARM_STATE_UNACK), 1);
+	assert_true(r->eng.sec[0].r.v[RF_FLOOD_INDEX] >= 85.0);
+	engine_events_clear(&r->eng);
+	assert_int_equal(engine_ack(&r->eng, (unsigned)h, 61000), 0);
+	assert_int_equal(engine_event_count(&r->eng), 1);
+	assert_int_equal(r->eng.events[0].state, ALARM_STATE_ACKED);
+	assert_int_equal(engine_ack(&r->eng, (unsigned)h, 62000), -EALREADY);
+}
+
+static void test_alarm_state_survives_a_restart(void **state)
+{
+	struct rig *r = *state;
+	int h = alarm_ix(r, "C401_FLOOD_H");
+	r->values[tag(r, "C401_FI_GAS")] = 30.0;
+	run(r, 0, 60, h, ALARM_STATE_UNACK);
+	assert_int_equal(r->eng.alarms[h].state, ALARM_STATE_UNACK);
+	char path[] = "/tmp/fg-engine-state-XXXXXX";
+	int fd = mkstemp(path);
+	assert_true(fd >= 0);
+	close(fd);
+	assert_int_equal(engine_state_save(&r->eng, path, 60000), 0);
+	engine_init(&r->eng, &r->cfg); /* "restart" */
+	assert_int_equal(r->eng.alarms[h].state, ALARM_STATE_NORM);
+	char err[256];
+	int n = engine_state_load(&r->eng, path, err, sizeof(err));
+	assert_int_equal(n, (int)r->cfg.alarm_count);
+	assert_int_equal(r->eng.alarms[h].state, ALARM_STATE_UNACK);
+	unlink(path);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test_setup_teardown(test_step_does_not_allocate, rig_setup, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_same_inputs_give_the_same_outputs, rig_setup,
+						rig_teardown),
+		cmocka_unit_test_setup_teardown(test_dead_transmitter_raises_diagnostic_not_process_alarm,
+						rig_setup, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_idle_section_suppresses_process_alarms, rig_setup,
+						rig_teardown),
+		cmocka_unit_test_setup_teardown(test_flood_raises_after_on_delay_and_is_acknowledged,
+						rig_setup, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_alarm_state_survives_a_restart, rig_setup,
+						rig_teardown),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}

@@ -1,0 +1,178 @@
+/*
+ * test_validate.c - each signal validation rule and filter of validate.c.
+ */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <cmocka.h>
+
+#include <math.h>
+#include <string.h>
+
+#include "alarm.h"
+#include "validate.h"
+
+static struct tag_cfg tag(void)
+{
+	struct tag_cfg t;
+	memset(&t, 0, sizeof(t));
+	strcpy(t.name, "T1");
+	t.source_index = 0;
+	t.fixed_value = NAN;
+	t.unit = units_lookup("mbar");
+	t.min = 0.0;
+	t.max = 500.0;
+	t.stale_periods = 3.0;
+	t.median = 1;
+	return t;
+}
+
+#define S(ms) ((int64_t)(ms))
+
+static void test_fresh_value_is_good_and_in_si(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	assert_int_equal(s.quality, FG_QUALITY_BAD); /* nothing read yet */
+	validate_step(&s, S(1000), 12.5, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	assert_null(s.reason);
+	assert_true(s.value == 12.5);
+	assert_true(fabs(s.value_si - 1250.0) < 1e-9); /* 1 mbar = 100 Pa (NIST SP 811) */
+}
+
+static void test_comm_fail_is_bad_at_once(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(1000), 10.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(2000), 0.0, TAG_STATUS_COMM_FAIL);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	assert_string_equal(s.reason, ALARM_REASON_COMM_FAIL);
+	assert_true(isnan(s.value_si));
+}
+
+static void test_missing_holds_until_stale(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	struct tag_state s;
+	validate_init(&s, &c, 1.0); /* stale after 3 periods = 3 s */
+	validate_step(&s, S(1000), 10.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(3000), NAN, TAG_STATUS_MISSING);
+	validate_step(&s, S(4000), NAN, TAG_STATUS_MISSING);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	assert_true(s.value == 10.0);
+	validate_step(&s, S(4001), NAN, TAG_STATUS_MISSING);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	assert_string_equal(s.reason, ALARM_REASON_STALE);
+	validate_step(&s, S(5000), 11.0, TAG_STATUS_FRESH); /* recovers on a fresh read */
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+}
+
+static void test_nan_and_out_of_range_are_bad(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(1000), INFINITY, TAG_STATUS_FRESH);
+	assert_string_equal(s.reason, ALARM_REASON_NAN);
+	validate_step(&s, S(2000), 500.5, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	assert_string_equal(s.reason, ALARM_REASON_OUT_OF_RANGE);
+	validate_step(&s, S(3000), -0.1, TAG_STATUS_FRESH);
+	assert_string_equal(s.reason, ALARM_REASON_OUT_OF_RANGE);
+	validate_step(&s, S(4000), 500.0, TAG_STATUS_FRESH); /* the limit itself is valid */
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+}
+
+static void test_single_spike_is_rejected_a_step_is_accepted(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	c.spike_limit = 20.0;
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(1000), 100.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(2000), 300.0, TAG_STATUS_FRESH); /* spike */
+	assert_int_equal(s.quality, FG_QUALITY_UNCERTAIN);
+	assert_string_equal(s.reason, ALARM_REASON_SPIKE);
+	assert_true(s.value == 100.0);
+	validate_step(&s, S(3000), 101.0, TAG_STATUS_FRESH); /* back: the spike is gone */
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	assert_true(s.value == 101.0);
+	validate_step(&s, S(4000), 200.0, TAG_STATUS_FRESH); /* a real step, held once */
+	assert_true(s.value == 101.0);
+	validate_step(&s, S(5000), 201.0, TAG_STATUS_FRESH); /* ...then accepted */
+	assert_true(s.value == 201.0);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+}
+
+static void test_frozen_value_turns_uncertain_after_frozen_s(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	c.frozen_s = 10.0;
+	c.frozen_tolerance = 0.05;
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	for (int i = 0; i <= 9; i++)
+		validate_step(&s, S(1000 * i), 50.0 + (i % 2) * 0.04, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD); /* 9 s flat */
+	validate_step(&s, S(10000), 50.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_UNCERTAIN);
+	assert_string_equal(s.reason, ALARM_REASON_FROZEN);
+	validate_step(&s, S(11000), 50.2, TAG_STATUS_FRESH); /* moves again */
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+}
+
+static void test_median_removes_an_outlier(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	c.median = 3;
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(1000), 10.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(2000), 11.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(3000), 90.0, TAG_STATUS_FRESH);
+	assert_true(s.value == 11.0); /* median of 10, 11, 90 */
+	validate_step(&s, S(4000), 12.0, TAG_STATUS_FRESH);
+	assert_true(s.value == 12.0); /* median of 11, 90, 12 */
+}
+
+static void test_first_order_lag_follows_its_time_constant(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	c.filter_tau_s = 10.0;
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(0), 0.0, TAG_STATUS_FRESH);
+	for (int i = 1; i <= 10; i++)
+		validate_step(&s, S(1000 * i), 100.0, TAG_STATUS_FRESH);
+	/* A first-order lag reaches 1 - e^-1 = 63.2 % of a step after one time
+	 * constant, whatever the sampling (exact discretisation). */
+	assert_true(fabs(s.value - 100.0 * (1.0 - exp(-1.0))) < 1e-9);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_fresh_value_is_good_and_in_si),
+		cmocka_unit_test(test_comm_fail_is_bad_at_once),
+		cmocka_unit_test(test_missing_holds_until_stale),
+		cmocka_unit_test(test_nan_and_out_of_range_are_bad),
+		cmocka_unit_test(test_single_spike_is_rejected_a_step_is_accepted),
+		cmocka_unit_test(test_frozen_value_turns_uncertain_after_frozen_s),
+		cmocka_unit_test(test_median_removes_an_outlier),
+		cmocka_unit_test(test_first_order_lag_follows_its_time_constant),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
