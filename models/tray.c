@@ -1,0 +1,623 @@
+/*
+ * tray.c - hydraulics of cross-flow trays: jet flood, downcomer backup,
+ * froth and clear liquid, tray pressure drop, weep margin and liquid holdup.
+ *
+ * The correlations are the standard published ones for sieve trays (Fair
+ * 1961 via Lygeros & Magoulas 1986, Kister & Haas 1990, Bennett, Agrawal &
+ * Cook 1983, the Francis weir and Eduljee weep forms as given by Sinnott,
+ * Coulson & Richardson's Chemical Engineering Vol. 6, ch. 11). Valve and
+ * bubble-cap trays are evaluated with the same sieve-tray correlations,
+ * which is an extrapolation and is noted on every evaluation of such a tray.
+ * Sinnott's equation and figure numbers are those of the 4th edition, quoted
+ * from memory; "from memory" beside an equation means it was recalled, not
+ * read from the source, and is marked so in tests/ref/test_ref_tray.c too.
+ *
+ * tray_eval() works from one private helper, hydraulics(), that evaluates
+ * the tray at a given gas and liquid mass flow. It is called once at the
+ * operating point and once at the gas rate that gives 100 % jet flood at the
+ * current liquid rate (found by bisection), which is the basis of
+ * dp_flood_pct. Nothing here allocates; the bisection is bounded.
+ */
+#include "tray.h"
+
+#include <assert.h>
+#include <math.h>
+#include <stdbool.h>
+
+/* --- Extrapolation reasons (static strings, see fg_extrap_note) --- */
+static const char WHY_FAIR_FLV[] = "tray: flow parameter outside Fair chart 0.01..1.0";
+static const char WHY_FAIR_TS[] = "tray: tray spacing outside Fair chart 0.15..0.91 m";
+static const char WHY_FAIR_HW[] = "tray: weir height above 15 % of tray spacing (Fair chart basis)";
+static const char WHY_FAIR_DH[] = "tray: hole diameter above 12.7 mm (Fair chart basis)";
+static const char WHY_HOLE_AREA[] = "tray: hole area below 6 % of active area (Fair correction)";
+static const char WHY_KH_RANGE[] = "tray: outside Kister-Haas flood correlation range";
+static const char WHY_KH_LOAD[] = "tray: weir load below 3 m3/(h m), Kister-Haas held there";
+static const char WHY_CD[] =
+	"tray: outside orifice-coefficient chart Ah/Aa 0.05..0.20, t/d 0.2..1.2";
+static const char WHY_K2[] = "tray: clear liquid depth above Eduljee K2 chart (0.12 m)";
+static const char WHY_WEEP_DH[] = "tray: hole diameter outside Eduljee weep correlation 2..25 mm";
+static const char WHY_WEEPING[] =
+	"tray: gas below the weep point; hL, DP and holdup assume no weeping";
+static const char WHY_VALVE[] =
+	"tray: sieve-tray flood, froth and dry-DP correlations used for a valve tray";
+static const char WHY_VALVE_WEEP[] =
+	"tray: Eduljee weep point is for sieve holes; valve weep % indicative";
+static const char WHY_CAP[] =
+	"tray: sieve-tray flood, froth and dry-DP correlations used for a bubble-cap tray";
+
+static const char WHY_ABOVE_FLOOD[] = "tray: gas above the jet-flood point";
+
+/* pi, spelt out: M_PI is not standard C. */
+#define TRAY_PI 3.14159265358979323846
+
+/* 1 m3/(h m) in m3/(s m). */
+#define PER_HOUR (1.0 / 3600.0)
+
+static bool finite_pos(double v)
+{
+	return isfinite(v) && v > 0.0;
+}
+
+static bool finite_nonneg(double v)
+{
+	return isfinite(v) && v >= 0.0;
+}
+
+double tray_fair_csb_ms(double flow_param, double spacing_m, struct fg_extrap *x)
+{
+	/* Lygeros, A. I. & Magoulas, K. G., Hydrocarbon Processing 65(12), 43
+	 * (1986), fit of Fair's (1961) flooding chart, as quoted in Perry's
+	 * Handbook (7th ed., p. 14-27), from memory:
+	 *   C_SB = 0.0105 + 8.127e-4 TS^0.755 exp(-1.463 FLV^0.842),
+	 * C_SB in m/s, TS in mm. The fit overestimates the chart at FLV near
+	 * 0.01, where the chart curves droop (see tests/ref/test_ref_tray.c). */
+	if (!finite_nonneg(flow_param) || !finite_pos(spacing_m))
+		return NAN;
+	if (flow_param < 0.01 || flow_param > 1.0)
+		fg_extrap_note(x, WHY_FAIR_FLV);
+	if (spacing_m < 0.15 || spacing_m > 0.91)
+		fg_extrap_note(x, WHY_FAIR_TS);
+	double ts_mm = spacing_m * 1000.0;
+	return 0.0105 + 8.127e-4 * pow(ts_mm, 0.755) * exp(-1.463 * pow(flow_param, 0.842));
+}
+
+double tray_sigma_factor(double sigma_nm)
+{
+	/* Fair (1961): C_SB scales with (sigma/20 dyn/cm)^0.2 (Ludwig, Applied
+	 * Process Design Vol. 2, notes to Fig. 8-137; Sinnott ch. 11). */
+	if (!finite_pos(sigma_nm))
+		return NAN;
+	return pow(sigma_nm / 0.020, 0.2);
+}
+
+double tray_hole_area_factor(double hole_area_frac, struct fg_extrap *x)
+{
+	/* Fair (1961) hole-area correction, tabulated by Ludwig (Applied Process
+	 * Design Vol. 2, notes to Fig. 8-137) and Sinnott ch. 11:
+	 * Ah/Aa 0.10 -> 1.00, 0.08 -> 0.90, 0.06 -> 0.80. The three points lie on
+	 * one line, 5 Ah/Aa + 0.5, used between them. Below 0.06 there is no
+	 * published value: the line is continued, floored at 0.1 so the flooding
+	 * velocity stays positive, and the extrapolation noted. */
+	if (!finite_pos(hole_area_frac))
+		return NAN;
+	if (hole_area_frac >= 0.10)
+		return 1.0;
+	if (hole_area_frac < 0.06)
+		fg_extrap_note(x, WHY_HOLE_AREA);
+	return fmax(5.0 * hole_area_frac + 0.5, 0.1);
+}
+
+double tray_flood_velocity_ms(double c_ms, double rho_l_kgm3, double rho_g_kgm3)
+{
+	/* Souders & Brown (1934) form used by Fair: u_f = C sqrt((rho_l-rho_g)/rho_g). */
+	if (!finite_nonneg(c_ms) || !finite_pos(rho_g_kgm3) || !isfinite(rho_l_kgm3))
+		return NAN;
+	if (rho_l_kgm3 <= rho_g_kgm3)
+		return NAN;
+	return c_ms * sqrt((rho_l_kgm3 - rho_g_kgm3) / rho_g_kgm3);
+}
+
+double tray_jet_flood_pct(double net_velocity_ms, double flood_velocity_ms)
+{
+	if (!finite_pos(flood_velocity_ms) || !finite_nonneg(net_velocity_ms))
+		return NAN;
+	return 100.0 * net_velocity_ms / flood_velocity_ms;
+}
+
+double tray_kh_transition_height_m(double hole_area_frac, double hole_diameter_m,
+				   double weir_load_m2s, double rho_l_kgm3)
+{
+	/* Kister & Haas (1990), Chem. Eng. Prog. 86(9), 63, in the SI form
+	 * quoted by Perry's Handbook (8th ed., section 14), from memory:
+	 *   hct = hct,H2O (996/rho_l)^(0.5 (1 - n)),  n = 0.00091 dH/Af,
+	 *   hct,H2O = 0.497 Af^-0.791 dH^0.833 / (1 + 0.013 QL^-0.59 Af^-1.79),
+	 * hct and dH in mm, QL in m3/(h m) of weir, Af = Ah/Aa. */
+	if (!finite_pos(hole_area_frac) || !finite_pos(hole_diameter_m) ||
+	    !finite_pos(rho_l_kgm3) || !finite_nonneg(weir_load_m2s))
+		return NAN;
+	if (weir_load_m2s == 0.0)
+		return 0.0;
+	double af = hole_area_frac;
+	double dh_mm = hole_diameter_m * 1000.0;
+	double ql = weir_load_m2s / PER_HOUR;
+	double water = 0.497 * pow(af, -0.791) * pow(dh_mm, 0.833) /
+		       (1.0 + 0.013 * pow(ql, -0.59) * pow(af, -1.79));
+	double n = 0.00091 * dh_mm / af;
+	return water * pow(996.0 / rho_l_kgm3, 0.5 * (1.0 - n)) / 1000.0;
+}
+
+static void kh_range(const struct tray_geom *t, double sigma_nm, struct fg_extrap *x)
+{
+	/* Kister & Haas (1990) data base, from memory of the range table in
+	 * Perry's: tray spacing 14..36 in, holes 1/8..1 in, Af 0.06..0.20,
+	 * surface tension 5..80 mN/m. */
+	assert(t != NULL);
+	bool out = t->spacing_m < 0.36 || t->spacing_m > 0.91;
+	out = out || t->hole_diameter_m < 0.003 || t->hole_diameter_m > 0.0254;
+	out = out || t->hole_area_frac < 0.06 || t->hole_area_frac > 0.20;
+	out = out || sigma_nm < 0.005 || sigma_nm > 0.080;
+	if (out)
+		fg_extrap_note(x, WHY_KH_RANGE);
+}
+
+double tray_kh_csb_ms(const struct tray_geom *t, const struct fluid_state *f,
+		      double weir_load_m2s, struct fg_extrap *x)
+{
+	/* Kister & Haas (1990), SI form as quoted by Perry's (from memory):
+	 *   C_SB = 0.0277 (dH^2 sigma/rho_l)^0.125 (rho_g/rho_l)^0.1 (TS/hct)^0.5,
+	 * C_SB in m/s, dH, TS and hct in mm, sigma in mN/m, densities kg/m3.
+	 * (The US form has 0.144 with ft/s, in, dyn/cm and lb/ft3: the same
+	 * equation, which is how the constant was cross-checked.) */
+	assert(t != NULL);
+	assert(f != NULL);
+	if (!finite_pos(f->rho_g_kgm3) || !isfinite(f->rho_l_kgm3) ||
+	    f->rho_l_kgm3 <= f->rho_g_kgm3 || !finite_pos(f->sigma_nm) ||
+	    !finite_pos(t->spacing_m) || !finite_nonneg(weir_load_m2s))
+		return NAN;
+	kh_range(t, f->sigma_nm, x);
+	double load = weir_load_m2s;
+	if (load < 3.0 * PER_HOUR) {
+		fg_extrap_note(x, WHY_KH_LOAD);
+		load = 3.0 * PER_HOUR;
+	} else if (load > 100.0 * PER_HOUR) {
+		fg_extrap_note(x, WHY_KH_RANGE);
+	}
+	double hct_m = tray_kh_transition_height_m(t->hole_area_frac, t->hole_diameter_m, load,
+						   f->rho_l_kgm3);
+	if (!finite_pos(hct_m))
+		return NAN;
+	double dh_mm = t->hole_diameter_m * 1000.0;
+	double sigma_mnm = f->sigma_nm * 1000.0;
+	return 0.0277 * pow(dh_mm * dh_mm * sigma_mnm / f->rho_l_kgm3, 0.125) *
+	       pow(f->rho_g_kgm3 / f->rho_l_kgm3, 0.1) * sqrt(t->spacing_m / hct_m);
+}
+
+double tray_weir_crest_m(double liquid_m3s, double weir_length_m)
+{
+	/* Francis weir formula for a segmental weir, Sinnott eq. 11.85:
+	 * how [mm] = 750 (Lw/(rho_l lw))^(2/3), i.e. 0.750 (Q/lw)^(2/3) m. */
+	if (!finite_nonneg(liquid_m3s) || !finite_pos(weir_length_m))
+		return NAN;
+	return 0.750 * pow(liquid_m3s / weir_length_m, 2.0 / 3.0);
+}
+
+double tray_orifice_coefficient(double hole_area_frac, double thickness_over_diameter,
+				struct fg_extrap *x)
+{
+	/* Fit of the discharge-coefficient chart of Liebson, Kelley & Bullington,
+	 * Pet. Refiner 36(3), 288 (1957) (the same chart as Sinnott Fig. 11.34,
+	 * which plots against Ah/Ap), in the form found in the handbook
+	 * literature, from memory: Cd = 0.74 Ah/Aa + exp(0.29 t/d - 0.56). The
+	 * chart spans Ah/Aa 0.05..0.20 and t/d 0.2..1.2. */
+	if (!finite_pos(hole_area_frac) || !finite_nonneg(thickness_over_diameter))
+		return NAN;
+	if (hole_area_frac < 0.05 || hole_area_frac > 0.20 || thickness_over_diameter < 0.2 ||
+	    thickness_over_diameter > 1.2)
+		fg_extrap_note(x, WHY_CD);
+	return 0.74 * hole_area_frac + exp(0.29 * thickness_over_diameter - 0.56);
+}
+
+double tray_dry_head_m(double hole_velocity_ms, double cd, double rho_g_kgm3,
+		       double rho_l_kgm3)
+{
+	/* Orifice equation: dry DP = rho_g u_h^2 / (2 Cd^2); as head of liquid
+	 * divide by rho_l g. Sinnott eq. 11.88 (51 mm = 1000/(2 g)). */
+	if (!finite_nonneg(hole_velocity_ms) || !finite_pos(cd) || !finite_pos(rho_g_kgm3) ||
+	    !finite_pos(rho_l_kgm3))
+		return NAN;
+	double u = hole_velocity_ms / cd;
+	return u * u / (2.0 * TRAY_G_MS2) * rho_g_kgm3 / rho_l_kgm3;
+}
+
+double tray_froth_density(double active_velocity_ms, double rho_l_kgm3, double rho_g_kgm3)
+{
+	/* Bennett, Agrawal & Cook, AIChE J. 29(3), 434 (1983), eq. for the
+	 * effective relative froth density, from memory:
+	 * alpha_e = exp(-12.55 Ks^0.91), Ks in m/s on the bubbling area. */
+	if (!finite_nonneg(active_velocity_ms) || !finite_pos(rho_g_kgm3) ||
+	    !isfinite(rho_l_kgm3) || rho_l_kgm3 <= rho_g_kgm3)
+		return NAN;
+	double ks = active_velocity_ms * sqrt(rho_g_kgm3 / (rho_l_kgm3 - rho_g_kgm3));
+	return exp(-12.55 * pow(ks, 0.91));
+}
+
+double tray_clear_liquid_m(double alpha_e, double weir_height_m, double liquid_m3s,
+			   double weir_length_m)
+{
+	/* Bennett, Agrawal & Cook (1983), from memory:
+	 * hL = alpha_e [hw + C (QL/(lw alpha_e))^0.67], C = 0.501 + 0.438 exp(-137.8 hw),
+	 * SI (m, m3/s). The exponent is written 2/3 here; the paper's 0.67 is
+	 * its rounding. */
+	if (!isfinite(alpha_e) || alpha_e <= 0.0 || alpha_e > 1.0 ||
+	    !finite_nonneg(weir_height_m) || !finite_nonneg(liquid_m3s) ||
+	    !finite_pos(weir_length_m))
+		return NAN;
+	double c = 0.501 + 0.438 * exp(-137.8 * weir_height_m);
+	double crest = c * pow(liquid_m3s / (weir_length_m * alpha_e), 2.0 / 3.0);
+	return alpha_e * (weir_height_m + crest);
+}
+
+double tray_residual_head_m(double sigma_nm, double rho_l_kgm3, double rho_g_kgm3,
+			    double hole_diameter_m)
+{
+	/* Bennett, Agrawal & Cook (1983) surface-tension residual head, from
+	 * memory: hR = 6 sigma/(g rho_l dBmax), dBmax = (6 sigma dH/(g (rho_l -
+	 * rho_g)))^(1/3), the largest bubble a hole of diameter dH releases. */
+	if (!finite_pos(sigma_nm) || !finite_pos(rho_g_kgm3) || !isfinite(rho_l_kgm3) ||
+	    rho_l_kgm3 <= rho_g_kgm3 || !finite_pos(hole_diameter_m))
+		return NAN;
+	double db = cbrt(6.0 * sigma_nm * hole_diameter_m /
+			 (TRAY_G_MS2 * (rho_l_kgm3 - rho_g_kgm3)));
+	return 6.0 * sigma_nm / (TRAY_G_MS2 * rho_l_kgm3 * db);
+}
+
+double tray_residual_head_sinnott_m(double rho_l_kgm3)
+{
+	/* Sinnott eq. 11.89: hr = 12.5e3/rho_l mm liquid (an empirical constant
+	 * residual, after Hunt et al.). */
+	if (!finite_pos(rho_l_kgm3))
+		return NAN;
+	return 12.5 / rho_l_kgm3;
+}
+
+double tray_total_dp_pa(double dry_m, double clear_liquid_m, double residual_m,
+			double rho_l_kgm3)
+{
+	/* Sum of heads (Bennett et al. 1983; Sinnott eq. 11.90), times rho_l g. */
+	if (!finite_nonneg(dry_m) || !finite_nonneg(clear_liquid_m) ||
+	    !finite_nonneg(residual_m) || !finite_pos(rho_l_kgm3))
+		return NAN;
+	return rho_l_kgm3 * TRAY_G_MS2 * (dry_m + clear_liquid_m + residual_m);
+}
+
+double tray_apron_head_m(double liquid_m3s, double apron_area_m2)
+{
+	/* Sinnott eq. 11.92: hdc = 166 (Lwd/(rho_l Am))^2 mm = 0.166 u^2 m, u the
+	 * liquid velocity under the apron (m/s). */
+	if (!finite_nonneg(liquid_m3s) || !finite_pos(apron_area_m2))
+		return NAN;
+	double u = liquid_m3s / apron_area_m2;
+	return 0.166 * u * u;
+}
+
+double tray_dc_backup_m(double weir_height_m, double crest_m, double tray_head_m,
+			double apron_head_m)
+{
+	/* Sinnott eq. 11.91: hb = (hw + how) + ht + hdc, clear liquid. */
+	if (!finite_nonneg(weir_height_m) || !finite_nonneg(crest_m) ||
+	    !finite_nonneg(tray_head_m) || !finite_nonneg(apron_head_m))
+		return NAN;
+	return weir_height_m + crest_m + tray_head_m + apron_head_m;
+}
+
+double tray_dc_backup_limit_m(double spacing_m, double weir_height_m)
+{
+	/* Common practice, as stated by Sinnott (ch. 11): keep the clear
+	 * liquid backup below half of (spacing + weir height), which allows for
+	 * an aerated downcomer froth of relative density about 0.5 in normal,
+	 * non-foaming systems. Foaming systems need a lower limit. */
+	if (!finite_pos(spacing_m) || !finite_nonneg(weir_height_m))
+		return NAN;
+	return 0.5 * (spacing_m + weir_height_m);
+}
+
+double tray_weep_k2(double clear_depth_m, struct fg_extrap *x)
+{
+	/* Fit of Eduljee's K2 curve (Sinnott Fig. 11.30) made for this project:
+	 *   K2 = 31.2 - 4.2 exp(-h/30 mm),
+	 * chosen to follow our reading of the curve, from memory: about 27 at
+	 * zero depth, 30.6 at about 58 mm (the value Sinnott's worked sieve-plate
+	 * example reads), flattening to about 31 at 100..120 mm. Above the chart
+	 * (0.12 m) the value is held at its 0.12 m value. */
+	if (!finite_nonneg(clear_depth_m))
+		return NAN;
+	double h = clear_depth_m;
+	if (h > 0.12) {
+		fg_extrap_note(x, WHY_K2);
+		h = 0.12;
+	}
+	return 31.2 - 4.2 * exp(-h / 0.030);
+}
+
+double tray_weep_velocity_ms(double k2, double hole_diameter_m, double rho_g_kgm3,
+			     struct fg_extrap *x)
+{
+	/* Eduljee (1959), Brit. Chem. Eng. 4, 320, as Sinnott eq. 11.84:
+	 * u_h,min = [K2 - 0.90 (25.4 - dh)] / rho_v^0.5, dh in mm. */
+	if (!isfinite(k2) || !finite_pos(hole_diameter_m) || !finite_pos(rho_g_kgm3))
+		return NAN;
+	double dh_mm = hole_diameter_m * 1000.0;
+	if (dh_mm < 2.0 || dh_mm > 25.0)
+		fg_extrap_note(x, WHY_WEEP_DH);
+	return (k2 - 0.90 * (25.4 - dh_mm)) / sqrt(rho_g_kgm3);
+}
+
+double tray_weep_pct(double hole_velocity_ms, double weep_velocity_ms)
+{
+	if (!finite_pos(weep_velocity_ms) || !finite_nonneg(hole_velocity_ms))
+		return NAN;
+	return 100.0 * hole_velocity_ms / weep_velocity_ms;
+}
+
+double tray_liquid_per_tray_m3(double clear_liquid_m, double active_area_m2,
+			       double dc_backup_m, double dc_area_m2)
+{
+	/* Liquid on the deck: clear liquid height over the active area; in the
+	 * downcomer: the clear-liquid backup over the downcomer area (the froth
+	 * there holds the same liquid, only taller). Inlet-area liquid is left
+	 * out (small next to these two). */
+	if (!finite_nonneg(clear_liquid_m) || !finite_nonneg(active_area_m2) ||
+	    !finite_nonneg(dc_backup_m) || !finite_nonneg(dc_area_m2))
+		return NAN;
+	return clear_liquid_m * active_area_m2 + dc_backup_m * dc_area_m2;
+}
+
+/* ---------------------------------------------------------------------- */
+/* Section evaluation                                                      */
+/* ---------------------------------------------------------------------- */
+
+/* Areas of one tray, m2. */
+struct areas {
+	double tower;   /* tower cross-section */
+	double net;     /* tower minus one downcomer (jet-flood basis) */
+	double active;  /* bubbling area */
+	double hole;    /* hole (or open valve/slot) area */
+	double dc;      /* one downcomer's area */
+	double apron;   /* clearance under the downcomer apron */
+};
+
+/* Everything about one tray at one gas and liquid rate. Heads in m. */
+struct hyd {
+	double jet_pct;
+	double weep_pct;
+	double how, alpha_e, hl, hd, hr, ht, hdc, hb;
+	double dp_pa;     /* one tray */
+	double dc_pct;
+};
+
+static bool geometry_ok(const struct section_geom *g)
+{
+	const struct tray_geom *t = &g->tray;
+	bool ok = finite_pos(g->diameter_m) && t->trays >= 1 && finite_pos(t->spacing_m);
+	ok = ok && finite_nonneg(t->weir_height_m) && finite_pos(t->weir_length_m);
+	ok = ok && finite_pos(t->active_area_frac) && finite_pos(t->downcomer_area_frac);
+	ok = ok && t->active_area_frac + t->downcomer_area_frac <= 1.0;
+	ok = ok && finite_pos(t->hole_area_frac) && t->hole_area_frac < 1.0;
+	ok = ok && finite_pos(t->hole_diameter_m) && finite_nonneg(t->deck_thickness_m);
+	return ok && finite_pos(t->downcomer_clearance_m);
+}
+
+static struct areas areas_of(const struct section_geom *g)
+{
+	assert(g != NULL);
+	struct areas a;
+	a.tower = TRAY_PI / 4.0 * g->diameter_m * g->diameter_m;
+	a.dc = a.tower * g->tray.downcomer_area_frac;
+	a.net = a.tower - a.dc;
+	a.active = a.tower * g->tray.active_area_frac;
+	a.hole = a.active * g->tray.hole_area_frac;
+	a.apron = g->tray.downcomer_clearance_m * g->tray.weir_length_m;
+	return a;
+}
+
+/* Flooding velocity on the net area, m/s, by the section's method. */
+static double flood_velocity(const struct section_geom *g, const struct fluid_state *f,
+			     double gas_kgs, double liq_kgs, struct fg_extrap *x)
+{
+	const struct tray_geom *t = &g->tray;
+	double c;
+	if (t->flood_method == TRAY_FLOOD_KISTER_HAAS) {
+		double load = liq_kgs / f->rho_l_kgm3 / t->weir_length_m;
+		c = tray_kh_csb_ms(t, f, load, x);
+	} else {
+		assert(gas_kgs > 0.0);
+		double flv = liq_kgs / gas_kgs * sqrt(f->rho_g_kgm3 / f->rho_l_kgm3);
+		c = tray_fair_csb_ms(flv, t->spacing_m, x) * tray_sigma_factor(f->sigma_nm) *
+		    tray_hole_area_factor(t->hole_area_frac, x);
+	}
+	return tray_flood_velocity_ms(c, f->rho_l_kgm3, f->rho_g_kgm3);
+}
+
+static double jet_pct_at(const struct section_geom *g, const struct fluid_state *f,
+			 const struct areas *a, double gas_kgs, double liq_kgs,
+			 struct fg_extrap *x)
+{
+	if (gas_kgs <= 0.0)
+		return 0.0;
+	double un = gas_kgs / f->rho_g_kgm3 / a->net;
+	return tray_jet_flood_pct(un, flood_velocity(g, f, gas_kgs, liq_kgs, x));
+}
+
+/* Weep % at the operating point; NAN for bubble caps, whose risers keep the
+ * liquid out of the gas passages, so the Eduljee weep point does not apply. */
+static double weep_pct_at(const struct section_geom *g, const struct fluid_state *f,
+			  double uh, double clear_depth_m, struct fg_extrap *x)
+{
+	const struct tray_geom *t = &g->tray;
+	if (t->kind == TRAY_BUBBLE_CAP)
+		return NAN;
+	if (t->kind == TRAY_VALVE)
+		fg_extrap_note(x, WHY_VALVE_WEEP);
+	double k2 = tray_weep_k2(clear_depth_m, x);
+	double uw = tray_weep_velocity_ms(k2, t->hole_diameter_m, f->rho_g_kgm3, x);
+	double pct = tray_weep_pct(uh, uw);
+	if (t->kind == TRAY_SIEVE && pct < 100.0)
+		fg_extrap_note(x, WHY_WEEPING);
+	return pct;
+}
+
+/* Evaluates one tray at the given flows. Zero gas carries no pressure drop:
+ * the tray then drains, so dry, liquid and residual heads are all zero. */
+static void hydraulics(const struct section_geom *g, const struct fluid_state *f,
+		       const struct areas *a, double gas_kgs, double liq_kgs, struct hyd *h,
+		       struct fg_extrap *x)
+{
+	assert(gas_kgs >= 0.0);
+	assert(liq_kgs >= 0.0);
+	const struct tray_geom *t = &g->tray;
+	double ql = liq_kgs / f->rho_l_kgm3;
+	double qg = gas_kgs / f->rho_g_kgm3;
+	double uh = qg / a->hole;
+
+	h->jet_pct = jet_pct_at(g, f, a, gas_kgs, liq_kgs, x);
+	h->how = tray_weir_crest_m(ql, t->weir_length_m);
+	h->alpha_e = tray_froth_density(qg / a->active, f->rho_l_kgm3, f->rho_g_kgm3);
+	h->hl = tray_clear_liquid_m(h->alpha_e, t->weir_height_m, ql, t->weir_length_m);
+	double cd = tray_orifice_coefficient(t->hole_area_frac,
+					     t->deck_thickness_m / t->hole_diameter_m, x);
+	h->hd = tray_dry_head_m(uh, cd, f->rho_g_kgm3, f->rho_l_kgm3);
+	h->hr = tray_residual_head_m(f->sigma_nm, f->rho_l_kgm3, f->rho_g_kgm3,
+				     t->hole_diameter_m);
+	if (gas_kgs > 0.0)
+		h->dp_pa = tray_total_dp_pa(h->hd, h->hl, h->hr, f->rho_l_kgm3);
+	else
+		h->dp_pa = 0.0;
+	h->ht = h->dp_pa / (f->rho_l_kgm3 * TRAY_G_MS2);
+	h->hdc = tray_apron_head_m(ql, fmin(a->apron, a->dc));
+	h->hb = tray_dc_backup_m(t->weir_height_m, h->how, h->ht, h->hdc);
+	h->dc_pct = 100.0 * h->hb / tray_dc_backup_limit_m(t->spacing_m, t->weir_height_m);
+	h->weep_pct = weep_pct_at(g, f, uh, t->weir_height_m + h->how, x);
+}
+
+/* Gas mass flow, kg/s, giving 100 % jet flood at this liquid rate. Jet % is
+ * near proportional to the gas rate, so doubling brackets the root quickly;
+ * bisection then closes it to 1e-10 relative. NAN if no bracket is found. */
+static double flood_gas_kgs(const struct section_geom *g, const struct fluid_state *f,
+			    const struct areas *a, double liq_kgs)
+{
+	double lo = 0.0;
+	double hi = f->rho_g_kgm3 * a->net * 0.05;
+	int i;
+	for (i = 0; i < 200 && !(jet_pct_at(g, f, a, hi, liq_kgs, NULL) >= 100.0); i++) {
+		lo = hi;
+		hi *= 2.0;
+	}
+	if (i == 200)
+		return NAN;
+	for (i = 0; i < 200 && hi - lo > 1e-10 * hi; i++) {
+		double mid = 0.5 * (lo + hi);
+		if (jet_pct_at(g, f, a, mid, liq_kgs, NULL) >= 100.0)
+			hi = mid;
+		else
+			lo = mid;
+	}
+	return 0.5 * (lo + hi);
+}
+
+static bool inputs_ok(const struct section_geom *g, const struct fluid_state *f,
+		      const struct section_point *p)
+{
+	bool ok = finite_pos(f->rho_g_kgm3) && isfinite(f->rho_l_kgm3);
+	ok = ok && f->rho_l_kgm3 > f->rho_g_kgm3 && finite_pos(f->sigma_nm);
+	ok = ok && finite_nonneg(p->gas_kgs) && finite_nonneg(p->liquid_kgs);
+	return ok && geometry_ok(g);
+}
+
+static void kind_notes(const struct section_geom *g, struct fg_extrap *x)
+{
+	const struct tray_geom *t = &g->tray;
+	if (t->kind == TRAY_VALVE)
+		fg_extrap_note(x, WHY_VALVE);
+	else if (t->kind == TRAY_BUBBLE_CAP)
+		fg_extrap_note(x, WHY_CAP);
+	if (t->flood_method == TRAY_FLOOD_FAIR) {
+		if (t->weir_height_m > 0.15 * t->spacing_m)
+			fg_extrap_note(x, WHY_FAIR_HW);
+		if (t->hole_diameter_m > 0.0127)
+			fg_extrap_note(x, WHY_FAIR_DH);
+	}
+}
+
+static const enum result_field tray_fields[] = {
+	RF_FLOOD_PCT, RF_JET_FLOOD_PCT, RF_DC_BACKUP_PCT, RF_WEEP_PCT, RF_CLEAR_LIQUID_M,
+	RF_ENTRAINMENT_FRAC, RF_DP_MODEL_PA, RF_DP_FLOOD_PCT, RF_LIQUID_HOLDUP_M3,
+	RF_LIQUID_HOLDUP_FRAC,
+};
+
+/* Every field this evaluator owns: NAN, and quality bad. */
+static void mark_bad(struct section_result *r)
+{
+	for (size_t i = 0; i < sizeof tray_fields / sizeof tray_fields[0]; i++)
+		r->v[tray_fields[i]] = NAN;
+	r->basis = FLOOD_BASIS_NONE;
+	fg_quality_raise(&r->quality, FG_QUALITY_BAD);
+}
+
+/* A field that claims a value must be finite; if a correlation still gave
+ * a NaN (a case the checks above missed) the result is bad, not a NaN. */
+static void check_finite(struct section_result *r)
+{
+	static const enum result_field must[] = {
+		RF_FLOOD_PCT, RF_JET_FLOOD_PCT, RF_DC_BACKUP_PCT, RF_CLEAR_LIQUID_M,
+		RF_DP_MODEL_PA, RF_LIQUID_HOLDUP_M3, RF_LIQUID_HOLDUP_FRAC,
+	};
+	for (size_t i = 0; i < sizeof must / sizeof must[0]; i++)
+		if (!isfinite(r->v[must[i]])) {
+			mark_bad(r);
+			return;
+		}
+}
+
+void tray_eval(const struct section_geom *g, const struct fluid_state *f,
+	       const struct section_point *p, struct section_result *r)
+{
+	assert(g != NULL);
+	assert(f != NULL);
+	assert(p != NULL);
+	assert(r != NULL);
+	assert(g->type == SECTION_TRAY);
+	if (!inputs_ok(g, f, p)) {
+		mark_bad(r);
+		return;
+	}
+	struct areas a = areas_of(g);
+	struct hyd h;
+	kind_notes(g, &r->extrap);
+	hydraulics(g, f, &a, p->gas_kgs, p->liquid_kgs, &h, &r->extrap);
+
+	double trays = (double)g->tray.trays;
+	r->v[RF_JET_FLOOD_PCT] = h.jet_pct;
+	r->v[RF_DC_BACKUP_PCT] = h.dc_pct;
+	bool jet = h.jet_pct >= h.dc_pct;
+	r->v[RF_FLOOD_PCT] = jet ? h.jet_pct : h.dc_pct;
+	r->basis = jet ? FLOOD_BASIS_JET : FLOOD_BASIS_DOWNCOMER;
+	r->v[RF_WEEP_PCT] = h.weep_pct;
+	r->v[RF_CLEAR_LIQUID_M] = h.hl;
+	r->v[RF_ENTRAINMENT_FRAC] = NAN; /* Fair's psi chart: no fit we can justify */
+	r->v[RF_DP_MODEL_PA] = h.dp_pa * trays;
+	double per_tray = tray_liquid_per_tray_m3(h.hl, a.active, h.hb, a.dc);
+	r->v[RF_LIQUID_HOLDUP_M3] = per_tray * trays;
+	r->v[RF_LIQUID_HOLDUP_FRAC] = per_tray / (a.tower * g->tray.spacing_m);
+
+	if (isfinite(p->dp_pa)) {
+		struct hyd hf;
+		double gf = flood_gas_kgs(g, f, &a, p->liquid_kgs);
+		if (isfinite(gf)) {
+			hydraulics(g, f, &a, gf, p->liquid_kgs, &hf, &r->extrap);
+			r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / trays) / hf.dp_pa;
+		}
+	}
+	if (h.jet_pct > 100.0)
+		fg_extrap_note(&r->extrap, WHY_ABOVE_FLOOD);
+	check_finite(r);
+}

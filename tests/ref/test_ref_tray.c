@@ -1,0 +1,312 @@
+/*
+ * test_ref_tray.c - the tray models against values from outside the project.
+ *
+ * Each check names its source beside the expected value, says "from memory"
+ * where the value is recalled rather than read from a source in front of us,
+ * and states its tolerance and why. Three kinds of check:
+ *  - chart readings: a published digitisation of Fair's (1961) flooding
+ *    chart, and readings of the charts used in the sieve-plate worked
+ *    example of Sinnott, Coulson & Richardson's Chemical Engineering Vol. 6
+ *    (4th ed., Example 11.11, from memory);
+ *  - the original equations evaluated by hand (with /usr/bin/python3, not
+ *    with this code) at a stated point: guards the transcription;
+ *  - one comparison between the two flood methods against a published
+ *    comparison of their spread.
+ */
+#include <stdarg.h>
+#include <stddef.h>
+#include <setjmp.h>
+#include <stdint.h>
+#include <cmocka.h>
+
+#include <math.h>
+#include <string.h>
+
+#include "fg_result.h"
+#include "section.h"
+#include "tray.h"
+
+static int close_rel(double a, double b, double rel)
+{
+	return fabs(a - b) <= rel * fabs(b);
+}
+
+/* Fair's chart as digitised (384 points) and fitted by a cubic in ln(FLV)
+ * with coefficients linear in tray spacing, published in "Sieve tray
+ * flooding correlation", libpf.com technical note, 2012-03-05 (read in front
+ * of us). Returns C_SB in m/s for FLV (-) and spacing in mm. */
+static double fair_chart_digitised(double flv, double ts_mm)
+{
+	double x = log(flv);
+	double a = 1.10748e-06 * ts_mm + 0.00045284;
+	double b = 4.04865e-06 * ts_mm + 0.000799395;
+	double c = -3.09381e-05 * ts_mm - 0.00625024;
+	double d = 3.00232e-05 * ts_mm + 0.0140453;
+	return ((a * x + b) * x + c) * x + d;
+}
+
+/* Lygeros-Magoulas against the digitised chart over FLV 0.02..1.0 and
+ * spacings 150..900 mm. Tolerance 12 %: the digitisation's own fit is
+ * within 2.9 % of the chart on average and 7.1 % on the 600 mm curve (its
+ * note); the Lygeros-Magoulas fit carries an error of the same order (the
+ * note calls it "not accurate"); the two add up to about 12 %. */
+static void test_fair_fit_matches_digitised_chart(void **state)
+{
+	(void)state;
+	static const double flv[] = {0.02, 0.05, 0.1, 0.2, 0.5, 1.0};
+	static const double ts_mm[] = {150.0, 225.0, 300.0, 450.0, 600.0, 900.0};
+	double worst = 0.0;
+	for (size_t i = 0; i < sizeof flv / sizeof flv[0]; i++)
+		for (size_t j = 0; j < sizeof ts_mm / sizeof ts_mm[0]; j++) {
+			double ours = tray_fair_csb_ms(flv[i], ts_mm[j] / 1000.0, NULL);
+			double chart = fair_chart_digitised(flv[i], ts_mm[j]);
+			double dev = fabs(ours / chart - 1.0);
+			worst = fmax(worst, dev);
+		}
+	print_message("# worst deviation from digitised Fair chart: %.1f %%\n", 100.0 * worst);
+	assert_true(worst <= 0.12);
+}
+
+/* The known weakness: at FLV = 0.01 the chart curves droop and the
+ * Lygeros-Magoulas fit does not (same note). The fit must read high there,
+ * and by more than at FLV = 0.02, for spacings up to 600 mm; this pins the
+ * known behaviour so that a change to the fit shows. */
+static void test_fair_fit_reads_high_at_lowest_flow_parameter(void **state)
+{
+	(void)state;
+	static const double ts_mm[] = {150.0, 300.0, 450.0, 600.0};
+	for (size_t j = 0; j < sizeof ts_mm / sizeof ts_mm[0]; j++) {
+		double r01 = tray_fair_csb_ms(0.01, ts_mm[j] / 1000.0, NULL) /
+			     fair_chart_digitised(0.01, ts_mm[j]);
+		double r02 = tray_fair_csb_ms(0.02, ts_mm[j] / 1000.0, NULL) /
+			     fair_chart_digitised(0.02, ts_mm[j]);
+		assert_true(r01 > 1.0);
+		assert_true(r01 > r02);
+	}
+}
+
+/* Sinnott Example 11.11 (from memory), readings of Fig. 11.27 (Fair's chart)
+ * at 0.5 m spacing: K1 = 7.5e-2 m/s at FLV 0.15 (column base) and 9.0e-2 m/s
+ * at FLV 0.032 (top). Tolerance 6 %: a chart reading is good to about
+ * +-0.003 m/s here (4 %), plus the fit's few per cent. */
+static void test_fair_fit_matches_sinnott_example_readings(void **state)
+{
+	(void)state;
+	assert_true(close_rel(tray_fair_csb_ms(0.15, 0.5, NULL), 7.5e-2, 0.06));
+	assert_true(close_rel(tray_fair_csb_ms(0.032, 0.5, NULL), 9.0e-2, 0.06));
+}
+
+/* Lygeros-Magoulas equation evaluated by hand at FLV 0.1, TS 600 mm:
+ * 0.0105 + 8.127e-4 * 600^0.755 * exp(-1.463 * 0.1^0.842) = 0.0929171 m/s
+ * (python3). Tolerance 1e-5 relative: arithmetic only. */
+static void test_fair_fit_hand_evaluation(void **state)
+{
+	(void)state;
+	assert_true(close_rel(tray_fair_csb_ms(0.1, 0.6, NULL), 0.0929171, 1e-5));
+}
+
+/* Sinnott Example 11.11 (from memory): surface-tension correction of K1 for
+ * the base liquid, sigma = 57 mN/m: (57/20)^0.2 x 7.5e-2 printed as 9.3e-2
+ * m/s. Tolerance 1.2 %: both printed figures have two significant figures,
+ * so each is good to about +-0.6 %. */
+static void test_sigma_correction_matches_sinnott_example(void **state)
+{
+	(void)state;
+	assert_true(close_rel(7.5e-2 * tray_sigma_factor(0.057), 9.3e-2, 0.012));
+}
+
+/* Fair's hole-area table as printed in Ludwig, Applied Process Design Vol. 2
+ * (notes to Fig. 8-137, read in front of us): Ah/Aa 0.10 -> 1.00, 0.08 ->
+ * 0.90, 0.06 -> 0.80. Exact: our function is the line through these points. */
+static void test_hole_area_factor_matches_table(void **state)
+{
+	(void)state;
+	assert_true(fabs(tray_hole_area_factor(0.10, NULL) - 1.00) <= 1e-12);
+	assert_true(fabs(tray_hole_area_factor(0.08, NULL) - 0.90) <= 1e-12);
+	assert_true(fabs(tray_hole_area_factor(0.06, NULL) - 0.80) <= 1e-12);
+}
+
+/* Francis weir, Sinnott eq. 11.85 (form confirmed in front of us): how = 750
+ * (Lw/(rho_l lw))^(2/3) mm. Hand evaluation at Lw 7.2 kg/s, rho_l 954 kg/m3,
+ * lw 0.76 m: 34.6504 mm (python3). Tolerance 1e-5: arithmetic only. */
+static void test_weir_crest_hand_evaluation(void **state)
+{
+	(void)state;
+	double how = tray_weir_crest_m(7.2 / 954.0, 0.76);
+	assert_true(close_rel(how, 34.6504e-3, 1e-5));
+}
+
+/* Sinnott Example 11.11 (from memory): C0 = 0.84 read from Fig. 11.34 at
+ * plate thickness / hole diameter 1.0 and Ah/Ap 0.10. Tolerance 0.02: the
+ * chart reads to about 0.01 and the fit adds about as much. */
+static void test_orifice_coefficient_matches_sinnott_reading(void **state)
+{
+	(void)state;
+	assert_true(fabs(tray_orifice_coefficient(0.10, 1.0, NULL) - 0.84) <= 0.02);
+}
+
+/* The orifice-coefficient fit (from memory) evaluated by hand: Ah/Aa 0.10,
+ * t/d 1.0 gives 0.837379; Ah/Aa 0.15, t/d 0.6 gives 0.790771 (python3).
+ * Tolerance 1e-5: arithmetic only; guards the transcription. */
+static void test_orifice_coefficient_hand_evaluation(void **state)
+{
+	(void)state;
+	assert_true(close_rel(tray_orifice_coefficient(0.10, 1.0, NULL), 0.837379, 1e-5));
+	assert_true(close_rel(tray_orifice_coefficient(0.15, 0.6, NULL), 0.790771, 1e-5));
+}
+
+/* Dry-plate drop, Sinnott eq. 11.88: hd = 51 (uh/C0)^2 rho_v/rho_l mm. At uh
+ * 13.4 m/s, C0 0.84, rho_v 0.72, rho_l 954: 9.7950 mm (python3). Ours uses
+ * 1000/(2 g) = 50.986 where Sinnott rounds to 51: tolerance 0.05 %. */
+static void test_dry_head_matches_sinnott_equation(void **state)
+{
+	(void)state;
+	double hd = tray_dry_head_m(13.4, 0.84, 0.72, 954.0);
+	assert_true(close_rel(hd, 9.7950e-3, 5e-4));
+}
+
+/* Residual head, Sinnott eq. 11.89: hr = 12.5e3/rho_l mm; 954 kg/m3 gives
+ * 13.1027 mm (hand). Tolerance 1e-5: arithmetic only. */
+static void test_sinnott_residual_hand_evaluation(void **state)
+{
+	(void)state;
+	assert_true(close_rel(tray_residual_head_sinnott_m(954.0), 13.1027e-3, 1e-5));
+}
+
+/* Downcomer apron loss, Sinnott eq. 11.92: hdc = 166 (Lwd/(rho_l Am))^2 mm;
+ * 7.2 kg/s, 954 kg/m3, Am 0.030 m2: 10.5059 mm (python3). Tolerance 1e-5. */
+static void test_apron_head_hand_evaluation(void **state)
+{
+	(void)state;
+	assert_true(close_rel(tray_apron_head_m(7.2 / 954.0, 0.030), 10.5059e-3, 1e-5));
+}
+
+/* Eduljee, Sinnott eq. 11.84: uh,min = [K2 - 0.90 (25.4 - dh)]/rho_v^0.5.
+ * K2 30.6, dh 5 mm, rho_v 0.72: 14.4250 m/s (python3). Tolerance 1e-5. */
+static void test_weep_velocity_hand_evaluation(void **state)
+{
+	(void)state;
+	double u = tray_weep_velocity_ms(30.6, 0.005, 0.72, NULL);
+	assert_true(close_rel(u, 14.4250, 1e-5));
+}
+
+/* Our K2 fit against the readings of Sinnott Fig. 11.30 it was made to follow
+ * (from memory): 27.0 at zero depth, 30.6 at 58 mm (the worked example's
+ * reading), 31.1 at 120 mm. This is a regression check of the fit against its
+ * own basis, not an independent check. Tolerance 0.3: about the reading
+ * resolution of the chart. */
+static void test_weep_k2_fit_follows_chart_readings(void **state)
+{
+	(void)state;
+	assert_true(fabs(tray_weep_k2(0.0, NULL) - 27.0) <= 0.3);
+	assert_true(fabs(tray_weep_k2(0.058, NULL) - 30.6) <= 0.3);
+	assert_true(fabs(tray_weep_k2(0.120, NULL) - 31.1) <= 0.3);
+}
+
+/* Bennett, Agrawal & Cook (1983) equations (from memory, as quoted in the
+ * handbook literature) evaluated by hand at u_a 1.2 m/s, rho_g 2.5, rho_l 800,
+ * hw 0.05 m, Q 0.0075 m3/s, lw 1.1 m (python3): Ks 0.0671871 m/s,
+ * alpha_e 0.341242, C 0.501446, hL 0.0296617 m; residual with sigma 0.020
+ * N/m, dh 5 mm: dBmax 4.24913 mm, hR 3.59974 mm. Tolerance 1e-5. */
+static void test_bennett_hand_evaluation(void **state)
+{
+	(void)state;
+	double ae = tray_froth_density(1.2, 800.0, 2.5);
+	assert_true(close_rel(ae, 0.341242, 1e-5));
+	assert_true(close_rel(tray_clear_liquid_m(ae, 0.05, 0.0075, 1.1), 0.0296617, 1e-5));
+	assert_true(close_rel(tray_residual_head_m(0.020, 800.0, 2.5, 0.005), 3.59974e-3, 1e-5));
+}
+
+/* Kister & Haas (1990), SI form (from memory), by hand at dh 5 mm, Af 0.10,
+ * weir load 24.5455 m3/(h m), rho_l 800, rho_g 2.5, sigma 20 mN/m, TS 600 mm
+ * (python3): hct 11.6224 mm, C_SB 0.105409 m/s. Tolerance 1e-5. */
+static void test_kister_haas_hand_evaluation(void **state)
+{
+	(void)state;
+	struct tray_geom t;
+	memset(&t, 0, sizeof t);
+	t.spacing_m = 0.6;
+	t.hole_area_frac = 0.10;
+	t.hole_diameter_m = 0.005;
+	struct fluid_state f = {.rho_g_kgm3 = 2.5, .rho_l_kgm3 = 800.0, .sigma_nm = 0.020};
+	double load = 0.0075 / 1.1;
+	assert_true(close_rel(tray_kh_transition_height_m(0.10, 0.005, load, 800.0),
+			      11.6224e-3, 1e-5));
+	assert_true(close_rel(tray_kh_csb_ms(&t, &f, load, NULL), 0.105409, 1e-5));
+}
+
+/* The two flood methods at an ordinary design point (the one above, with
+ * FLV 0.0839 for Fair). Ujile & Iminabo, Chem. Process Eng. Res. 25 (2014)
+ * (abstract in front of us) report 0.104 and 0.121 m/s from the two methods
+ * for one refinery column, a 14 % spread. Tolerance 25 %: that spread plus
+ * the stated accuracy of either correlation (about +-10..15 %, from memory). */
+static void test_kister_haas_and_fair_agree_within_published_spread(void **state)
+{
+	(void)state;
+	struct tray_geom t;
+	memset(&t, 0, sizeof t);
+	t.spacing_m = 0.6;
+	t.hole_area_frac = 0.10;
+	t.hole_diameter_m = 0.005;
+	struct fluid_state f = {.rho_g_kgm3 = 2.5, .rho_l_kgm3 = 800.0, .sigma_nm = 0.020};
+	double kh = tray_kh_csb_ms(&t, &f, 0.0075 / 1.1, NULL);
+	double flv = 6.0 / 4.0 * sqrt(2.5 / 800.0);
+	double fair = tray_fair_csb_ms(flv, 0.6, NULL);
+	print_message("# Kister-Haas / Fair C_SB = %.3f\n", kh / fair);
+	assert_true(fabs(kh / fair - 1.0) <= 0.25);
+}
+
+/* Jet flood % of a whole tray section, evaluated by hand from the equations
+ * (python3): invented column, D 1.5 m, downcomer 12 % of the area, TS 0.6 m,
+ * Ah/Aa 0.10, sigma 0.020 N/m, gas 4 kg/s at 2.5 kg/m3, liquid 6 kg/s at
+ * 800 kg/m3: FLV 0.0838525, C_SB 0.0953429 m/s, jet flood 60.4200 %.
+ * Tolerance 1e-5: arithmetic only. */
+static void test_section_jet_flood_hand_evaluation(void **state)
+{
+	(void)state;
+	struct section_geom g;
+	memset(&g, 0, sizeof g);
+	g.type = SECTION_TRAY;
+	g.diameter_m = 1.5;
+	g.tray.trays = 10;
+	g.tray.spacing_m = 0.6;
+	g.tray.weir_height_m = 0.05;
+	g.tray.weir_length_m = 1.1;
+	g.tray.active_area_frac = 0.76;
+	g.tray.downcomer_area_frac = 0.12;
+	g.tray.hole_area_frac = 0.10;
+	g.tray.hole_diameter_m = 0.005;
+	g.tray.deck_thickness_m = 0.003;
+	g.tray.downcomer_clearance_m = 0.04;
+	struct fluid_state f = {2.5, 800.0, 1e-5, 3e-4, 0.020};
+	struct section_point p = {4.0, 6.0, NAN, 2e5, 350.0, NAN, NAN};
+	struct section_result r;
+	result_clear(&r);
+	tray_eval(&g, &f, &p, &r);
+	assert_true(close_rel(r.v[RF_JET_FLOOD_PCT], 60.4200, 1e-5));
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_fair_fit_matches_digitised_chart),
+		cmocka_unit_test(test_fair_fit_reads_high_at_lowest_flow_parameter),
+		cmocka_unit_test(test_fair_fit_matches_sinnott_example_readings),
+		cmocka_unit_test(test_fair_fit_hand_evaluation),
+		cmocka_unit_test(test_sigma_correction_matches_sinnott_example),
+		cmocka_unit_test(test_hole_area_factor_matches_table),
+		cmocka_unit_test(test_weir_crest_hand_evaluation),
+		cmocka_unit_test(test_orifice_coefficient_matches_sinnott_reading),
+		cmocka_unit_test(test_orifice_coefficient_hand_evaluation),
+		cmocka_unit_test(test_dry_head_matches_sinnott_equation),
+		cmocka_unit_test(test_sinnott_residual_hand_evaluation),
+		cmocka_unit_test(test_apron_head_hand_evaluation),
+		cmocka_unit_test(test_weep_velocity_hand_evaluation),
+		cmocka_unit_test(test_weep_k2_fit_follows_chart_readings),
+		cmocka_unit_test(test_bennett_hand_evaluation),
+		cmocka_unit_test(test_kister_haas_hand_evaluation),
+		cmocka_unit_test(test_kister_haas_and_fair_agree_within_published_spread),
+		cmocka_unit_test(test_section_jet_flood_hand_evaluation),
+	};
+	return cmocka_run_group_tests_name("ref_tray", tests, NULL, NULL);
+}
