@@ -1,0 +1,687 @@
+/*
+ * packed.c - packed-bed hydraulics: Stichlmair-Bravo-Fair, Billet-Schultes,
+ * Kister-Gill and Robbins, and the section evaluator packed_eval().
+ *
+ * How the Stichlmair model is solved. With y the irrigated DP per metre and
+ * t = (y / (rho_l g))^2, the model is the fixed point
+ *     y = D * Phi(h_T),   h_T = h0 (1 + 20 t)
+ * where D is the dry DP per metre. Phi grows without bound as h_T -> epsilon,
+ * so below flooding the equation has two roots (the lower one is the
+ * operating point) and above flooding none. Flooding is where the two roots
+ * meet: the paper's d(dP)/d(holdup) condition, which in t reads
+ *     1/t = 40 ((2+c)/3) h0/(1 - eps + h_T) + 186 h0/(eps - h_T).
+ * We solve that condition for t_f by bisection (it is +inf at t -> 0 and
+ * -inf as h_T -> eps, so the bracket always holds), then:
+ *   - irrigated DP: if y_f = rho_l g sqrt(t_f) satisfies y_f >= D Phi, the
+ *     lower root lies in [D, y_f] and is found by bisection; otherwise the
+ *     gas rate is above flooding and there is no steady value (NAN);
+ *   - flood velocity: bisection on ln u_g of the residual at t_f, which rises
+ *     with u_g because D does.
+ * Every loop has a fixed iteration cap; nothing allocates.
+ */
+#include "packed.h"
+
+#include <assert.h>
+#include <math.h>
+#include <stddef.h>
+
+#ifndef M_PI
+#define M_PI 3.14159265358979323846
+#endif
+
+#define BISECT_MAX 200          /* hard cap; intervals collapse well before */
+#define FLOOD_U_LO_MS 1e-6      /* search range of the flood solve, m/s */
+#define FLOOD_U_HI_MS 1e3
+#define BS_PHI_SWITCH 0.4       /* Billet-Schultes branch at this flow parameter */
+#define LB_PER_KG 2.2046226218487757
+#define FT_M 0.3048
+
+static bool pos_finite(double v)
+{
+	return isfinite(v) && v > 0.0;
+}
+
+static bool nonneg_finite(double v)
+{
+	return isfinite(v) && v >= 0.0;
+}
+
+static bool has_geometry(const struct packing_constants *c)
+{
+	return pos_finite(c->area_m2m3) && isfinite(c->void_frac) && c->void_frac > 0.0 &&
+	       c->void_frac < 1.0;
+}
+
+static bool has_stichlmair(const struct packing_constants *c)
+{
+	return has_geometry(c) && isfinite(c->stichlmair_c1) && isfinite(c->stichlmair_c2) &&
+	       isfinite(c->stichlmair_c3);
+}
+
+static bool fluids_ok(const struct fluid_state *f)
+{
+	return pos_finite(f->rho_g_kgm3) && pos_finite(f->rho_l_kgm3) &&
+	       f->rho_l_kgm3 > f->rho_g_kgm3 && pos_finite(f->mu_g_pas) && pos_finite(f->mu_l_pas);
+}
+
+/* ---- Stichlmair, Bravo & Fair (1989) ------------------------------------ */
+
+/* Source: Stichlmair, Bravo & Fair (1989), Gas Sep. Purif. 3(1) 19-28, the
+ * dry DP (eqs. 1-3), h0, the irrigated DP with the loading enhancement of
+ * the holdup, and the flooding condition. The irrigated form is the one that
+ * reproduces the paper's worked example (as python3-fluids also notes,
+ * after Piche et al. 2001). Units SI. Validity: the packings and constants
+ * of the paper's Table 1, gas loads from zero up to the flood point, the
+ * systems of its data base (air/water and distillation, from memory).
+ * Outside: no steady solution above flooding (NAN, noted); non-physical
+ * constants (f0 <= 0) NAN, noted. */
+
+/* What the Stichlmair equations need at one gas and liquid rate. */
+struct stich {
+	double eps;      /* void fraction */
+	double dry_pam;  /* dry DP per metre, Pa/m */
+	double p;        /* (2 + c)/3, c = d ln f0 / d ln Re */
+	double h0;       /* holdup without gas effect */
+	double rlg;      /* rho_l g, Pa/m */
+};
+
+/* Dry-bed friction: equivalent particle diameter d_p = 6 (1 - eps)/a,
+ * Re = u rho_g d_p / mu_g, f0 = C1/Re + C2/Re^0.5 + C3, and
+ * dP/H = 3/4 f0 (1 - eps)/eps^4.65 rho_g u^2 / d_p (eqs. 1-3 of the paper).
+ * c is the local exponent of f0 in Re, used by the irrigated model. */
+static void stich_dry(const struct packing_constants *c, double u, double rho_g, double mu_g,
+		      double *dry_pam, double *c_exp)
+{
+	assert(u > 0.0);
+	double eps = c->void_frac;
+	double dp = 6.0 * (1.0 - eps) / c->area_m2m3;
+	double re = u * rho_g * dp / mu_g;
+	double sre = sqrt(re);
+	double f0 = c->stichlmair_c1 / re + c->stichlmair_c2 / sre + c->stichlmair_c3;
+	*dry_pam = 0.75 * f0 * (1.0 - eps) / pow(eps, 4.65) * rho_g * u * u / dp;
+	*c_exp = (-c->stichlmair_c1 / re - 0.5 * c->stichlmair_c2 / sre) / f0;
+}
+
+double packed_stichlmair_dry_pam(const struct packing_constants *c, double u_g_ms,
+				 double rho_g_kgm3, double mu_g_pas, struct fg_extrap *x)
+{
+	assert(c != NULL);
+	if (!nonneg_finite(u_g_ms) || !pos_finite(rho_g_kgm3) || !pos_finite(mu_g_pas))
+		return NAN;
+	if (!has_stichlmair(c)) {
+		fg_extrap_note(x, "stichlmair: packing constants C1..C3, a or epsilon missing");
+		return NAN;
+	}
+	if (u_g_ms == 0.0)
+		return 0.0;
+	double dry, ce;
+	stich_dry(c, u_g_ms, rho_g_kgm3, mu_g_pas, &dry, &ce);
+	if (!(dry > 0.0)) {
+		/* Negative constants can make f0 <= 0: no physical friction. */
+		fg_extrap_note(x, "stichlmair: friction factor not positive at this Re");
+		return NAN;
+	}
+	return dry;
+}
+
+/* h0 = 0.555 Fr_L^(1/3), Fr_L = u_l^2 a / (g eps^4.65) (Stichlmair et al.
+ * 1989, liquid holdup below the loading point). */
+double packed_stichlmair_h0(const struct packing_constants *c, double u_l_ms)
+{
+	assert(c != NULL);
+	if (!nonneg_finite(u_l_ms) || !has_geometry(c))
+		return NAN;
+	double fr = u_l_ms * u_l_ms * c->area_m2m3 / (PACKED_G_MS2 * pow(c->void_frac, 4.65));
+	return 0.555 * cbrt(fr);
+}
+
+static double stich_ht(const struct stich *s, double t)
+{
+	return s->h0 * (1.0 + 20.0 * t);
+}
+
+/* ln(D Phi(h_T(t))) - ln y(t): zero on the model, negative between the roots. */
+static double stich_resid(const struct stich *s, double t)
+{
+	double ht = stich_ht(s, t);
+	if (ht >= s->eps)
+		return INFINITY;
+	double eps = s->eps;
+	double ln_rhs = log(s->dry_pam) + s->p * log((1.0 - eps + ht) / (1.0 - eps)) +
+			4.65 * log(eps / (eps - ht));
+	return ln_rhs - log(s->rlg * sqrt(t));
+}
+
+/* The flooding condition of the paper (d(dP)/d(h_T) infinite), as a
+ * function of t; positive below the tangency point. */
+static double stich_flood_cond(const struct stich *s, double t)
+{
+	double ht = stich_ht(s, t);
+	if (ht >= s->eps)
+		return -INFINITY;
+	return 1.0 / t - 40.0 * s->p * s->h0 / (1.0 - s->eps + ht) -
+	       186.0 * s->h0 / (s->eps - ht);
+}
+
+/* t at which the flooding condition holds, by bisection on ln t over
+ * (t_lim 1e-15, t_lim), t_lim being where h_T reaches epsilon. */
+static double stich_flood_t(const struct stich *s)
+{
+	assert(s->h0 > 0.0);
+	assert(s->h0 < s->eps);
+	double t_lim = (s->eps / s->h0 - 1.0) / 20.0;
+	double lo = t_lim * 1e-15, hi = t_lim;
+	for (int i = 0; i < BISECT_MAX && hi > lo * (1.0 + 1e-15); i++) {
+		double mid = sqrt(lo * hi);
+		if (stich_flood_cond(s, mid) > 0.0)
+			lo = mid;
+		else
+			hi = mid;
+	}
+	return sqrt(lo * hi);
+}
+
+static bool stich_setup(struct stich *s, const struct packing_constants *c, double u_g,
+			double u_l, const struct fluid_state *f)
+{
+	assert(u_g > 0.0);
+	double ce;
+	stich_dry(c, u_g, f->rho_g_kgm3, f->mu_g_pas, &s->dry_pam, &ce);
+	s->eps = c->void_frac;
+	s->p = (2.0 + ce) / 3.0;
+	s->h0 = packed_stichlmair_h0(c, u_l);
+	s->rlg = f->rho_l_kgm3 * PACKED_G_MS2;
+	return s->dry_pam > 0.0 && s->h0 < s->eps;
+}
+
+double packed_stichlmair_wet_pam(const struct packing_constants *c, double u_g_ms,
+				 double u_l_ms, const struct fluid_state *f, double *holdup,
+				 struct fg_extrap *x)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (holdup != NULL)
+		*holdup = NAN;
+	if (!nonneg_finite(u_g_ms) || !nonneg_finite(u_l_ms) || !fluids_ok(f))
+		return NAN;
+	if (!has_stichlmair(c)) {
+		fg_extrap_note(x, "stichlmair: packing constants C1..C3, a or epsilon missing");
+		return NAN;
+	}
+	double h0 = packed_stichlmair_h0(c, u_l_ms);
+	if (u_g_ms == 0.0 || h0 == 0.0) {
+		/* No gas: no DP and no gas effect on the holdup. No liquid: dry bed. */
+		if (holdup != NULL)
+			*holdup = h0;
+		return packed_stichlmair_dry_pam(c, u_g_ms, f->rho_g_kgm3, f->mu_g_pas, x);
+	}
+	struct stich s;
+	if (!stich_setup(&s, c, u_g_ms, u_l_ms, f)) {
+		fg_extrap_note(x, "stichlmair: liquid holdup fills the voids or f0 <= 0");
+		return NAN;
+	}
+	double t_f = stich_flood_t(&s);
+	if (stich_resid(&s, t_f) > 0.0) {
+		fg_extrap_note(x, "stichlmair: gas above the flood point, no steady irrigated DP");
+		return NAN;
+	}
+	/* Lower root in y between the dry DP (residual >= 0) and y_f (<= 0). */
+	double lo = s.dry_pam, hi = s.rlg * sqrt(t_f);
+	for (int i = 0; i < BISECT_MAX && hi - lo > 1e-15 * hi; i++) {
+		double mid = 0.5 * (lo + hi);
+		double t = (mid / s.rlg) * (mid / s.rlg);
+		if (stich_resid(&s, t) > 0.0)
+			lo = mid;
+		else
+			hi = mid;
+	}
+	double y = 0.5 * (lo + hi);
+	if (holdup != NULL)
+		*holdup = stich_ht(&s, (y / s.rlg) * (y / s.rlg));
+	return y;
+}
+
+double packed_stichlmair_flood_ms(const struct packing_constants *c, double u_l_ms,
+				  const struct fluid_state *f, struct fg_extrap *x)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (!nonneg_finite(u_l_ms) || !fluids_ok(f))
+		return NAN;
+	if (!has_stichlmair(c)) {
+		fg_extrap_note(x, "stichlmair: packing constants C1..C3, a or epsilon missing");
+		return NAN;
+	}
+	if (u_l_ms == 0.0)
+		return INFINITY;
+	struct stich s;
+	double lo = FLOOD_U_LO_MS, hi = FLOOD_U_HI_MS;
+	bool ok_lo = stich_setup(&s, c, lo, u_l_ms, f) && stich_resid(&s, stich_flood_t(&s)) < 0.0;
+	bool ok_hi = stich_setup(&s, c, hi, u_l_ms, f) && stich_resid(&s, stich_flood_t(&s)) > 0.0;
+	if (!ok_lo || !ok_hi) {
+		fg_extrap_note(x, "stichlmair: no flood point between 1e-6 and 1e3 m/s");
+		return NAN;
+	}
+	for (int i = 0; i < BISECT_MAX && hi > lo * (1.0 + 1e-15); i++) {
+		double mid = sqrt(lo * hi);
+		bool below = stich_setup(&s, c, mid, u_l_ms, f) &&
+			     stich_resid(&s, stich_flood_t(&s)) <= 0.0;
+		if (below)
+			lo = mid;
+		else
+			hi = mid;
+	}
+	return sqrt(lo * hi);
+}
+
+/* ---- Billet & Schultes (1999) ------------------------------------------- */
+
+/* Source: Billet & Schultes (1999), Trans IChemE 77A 498-504 (the summary of
+ * their method), equations from memory as written at each function. Units
+ * SI; the constants C_h, C_S, C_Fl carry the units that make the equations
+ * come out in m/s with SI inputs, as tabulated. Validity: the packings of
+ * their tables, gas/liquid systems of their data base; the paper gives no
+ * hard bounds in the summary, so we flag only where an equation loses its
+ * meaning (holdup above the void fraction, a negative film term at the
+ * loading point, a flood holdup with no root below epsilon, gas above
+ * flooding), returning the limiting value or NAN as each function says. */
+
+static bool has_bs_base(const struct packing_constants *c)
+{
+	return has_geometry(c);
+}
+
+/* h_L = (12 Fr_L / Re_L)^(1/3) (a_h/a)^(2/3), Fr_L = u_l^2 a/g,
+ * Re_L = u_l rho_l/(a mu_l); a_h/a = C_h Re_L^0.15 Fr_L^0.1 for Re_L < 5,
+ * 0.85 C_h Re_L^0.25 Fr_L^0.1 for Re_L >= 5 (from memory). Holdup of the
+ * pre-loading region, independent of the gas rate. */
+double packed_bs_holdup_preload(const struct packing_constants *c, double u_l_ms,
+				const struct fluid_state *f, struct fg_extrap *x)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (!nonneg_finite(u_l_ms) || !fluids_ok(f))
+		return NAN;
+	if (!has_bs_base(c) || !pos_finite(c->billet_ch)) {
+		fg_extrap_note(x, "billet-schultes: C_h, a or epsilon missing");
+		return NAN;
+	}
+	if (u_l_ms == 0.0)
+		return 0.0;
+	double a = c->area_m2m3;
+	double fr = u_l_ms * u_l_ms * a / PACKED_G_MS2;
+	double re = u_l_ms * f->rho_l_kgm3 / (a * f->mu_l_pas);
+	double ah = re < 5.0 ? c->billet_ch * pow(re, 0.15) * pow(fr, 0.1)
+			     : 0.85 * c->billet_ch * pow(re, 0.25) * pow(fr, 0.1);
+	double h = cbrt(12.0 * fr / re) * pow(ah, 2.0 / 3.0);
+	if (h >= c->void_frac) {
+		fg_extrap_note(x, "billet-schultes: predicted holdup exceeds the void fraction");
+		return c->void_frac;
+	}
+	return h;
+}
+
+/* Both Billet-Schultes capacity equations have the form
+ *     u = coef * X^n,   X = kx / u   (X the flow parameter with its
+ * viscosity term, kx = u_l sqrt(rho_l/rho_g) (mu_l/mu_g)^m),
+ * so at a fixed liquid rate u = (coef kx^n)^(1/(1+n)) on each branch. The
+ * branch is chosen by the plain flow parameter (L/V) sqrt(rho_g/rho_l) =
+ * (u_l/u) sqrt(rho_l/rho_g) at the answer; where the two branches leave a
+ * gap at 0.4 the boundary itself is returned. */
+static double bs_pick(double coef1, double n1, double coef2, double n2, double kx,
+		      double phi_k)
+{
+	double u1 = pow(coef1 * pow(kx, n1), 1.0 / (1.0 + n1));
+	if (phi_k / u1 <= BS_PHI_SWITCH)
+		return u1;
+	double u2 = pow(coef2 * pow(kx, n2), 1.0 / (1.0 + n2));
+	if (phi_k / u2 > BS_PHI_SWITCH)
+		return u2;
+	return phi_k / BS_PHI_SWITCH;
+}
+
+/* Loading point (from memory):
+ *   u_S = sqrt(g/psi_S) [eps/a^(1/6) - a^(1/2) B^(1/3)] B^(1/6) sqrt(rho_l/rho_g),
+ *   B = 12 mu_l u_l / (g rho_l),
+ *   sqrt(g/psi_S) = C_S X^n_S,  X = (L/V) sqrt(rho_g/rho_l) (mu_l/mu_g)^0.4,
+ *   n_S = -0.326 with C_S for a flow parameter <= 0.4; n_S = -0.723 with
+ *   0.695 C_S (mu_l/mu_g)^0.1588 above it. */
+double packed_bs_loading_ms(const struct packing_constants *c, double u_l_ms,
+			    const struct fluid_state *f, struct fg_extrap *x)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (!nonneg_finite(u_l_ms) || !fluids_ok(f))
+		return NAN;
+	if (!has_bs_base(c) || !pos_finite(c->billet_cs)) {
+		fg_extrap_note(x, "billet-schultes: C_S, a or epsilon missing");
+		return NAN;
+	}
+	if (u_l_ms == 0.0)
+		return INFINITY;
+	double a = c->area_m2m3;
+	double b = 12.0 * f->mu_l_pas * u_l_ms / (PACKED_G_MS2 * f->rho_l_kgm3);
+	double film = (c->void_frac / pow(a, 1.0 / 6.0) - sqrt(a) * cbrt(b)) * pow(b, 1.0 / 6.0);
+	if (!(film > 0.0)) {
+		fg_extrap_note(x, "billet-schultes: liquid load beyond the loading-point equation");
+		return NAN;
+	}
+	double sr = sqrt(f->rho_l_kgm3 / f->rho_g_kgm3);
+	double mur = f->mu_l_pas / f->mu_g_pas;
+	double kx = u_l_ms * sr * pow(mur, 0.4);
+	double coef1 = c->billet_cs * film * sr;
+	double coef2 = 0.695 * c->billet_cs * pow(mur, 0.1588) * film * sr;
+	return bs_pick(coef1, -0.326, coef2, -0.723, kx, u_l_ms * sr);
+}
+
+/* Flood-point holdup (from memory): h^3 (3 h - eps) = (6/g) a^2 eps
+ * (mu_l/rho_l) u_l, the liquid velocity at flooding being the current one.
+ * The left side rises from 0 at h = eps/3 to 2 eps^4 at h = eps. */
+double packed_bs_flood_holdup(const struct packing_constants *c, double u_l_ms,
+			      const struct fluid_state *f, struct fg_extrap *x)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (!nonneg_finite(u_l_ms) || !fluids_ok(f))
+		return NAN;
+	if (!has_bs_base(c)) {
+		fg_extrap_note(x, "billet-schultes: a or epsilon missing");
+		return NAN;
+	}
+	double eps = c->void_frac, a = c->area_m2m3;
+	double rhs = 6.0 / PACKED_G_MS2 * a * a * eps * f->mu_l_pas / f->rho_l_kgm3 * u_l_ms;
+	if (rhs >= 2.0 * pow(eps, 4.0)) {
+		fg_extrap_note(x, "billet-schultes: liquid load alone fills the voids at flooding");
+		return NAN;
+	}
+	double lo = eps / 3.0, hi = eps;
+	for (int i = 0; i < BISECT_MAX && hi - lo > 1e-16; i++) {
+		double mid = 0.5 * (lo + hi);
+		if (mid * mid * mid * (3.0 * mid - eps) < rhs)
+			lo = mid;
+		else
+			hi = mid;
+	}
+	return 0.5 * (lo + hi);
+}
+
+/* Flood point (from memory):
+ *   u_Fl = sqrt(2g/psi_Fl) (eps - h_Fl)^1.5 / eps^0.5 (h_Fl/a)^0.5 sqrt(rho_l/rho_g),
+ *   sqrt(g/psi_Fl) = C_Fl X^n_Fl,  X = (L/V) sqrt(rho_g/rho_l) (mu_l/mu_g)^0.2,
+ *   n_Fl = -0.194 with C_Fl for a flow parameter <= 0.4; n_Fl = -0.708 with
+ *   0.6244 C_Fl (mu_l/mu_g)^0.1028 above it. */
+double packed_bs_flood_ms(const struct packing_constants *c, double u_l_ms,
+			  const struct fluid_state *f, struct fg_extrap *x)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (!nonneg_finite(u_l_ms) || !fluids_ok(f))
+		return NAN;
+	if (!has_bs_base(c) || !pos_finite(c->billet_cfl)) {
+		fg_extrap_note(x, "billet-schultes: C_Fl, a or epsilon missing");
+		return NAN;
+	}
+	if (u_l_ms == 0.0)
+		return INFINITY;
+	double h = packed_bs_flood_holdup(c, u_l_ms, f, x);
+	if (isnan(h))
+		return NAN;
+	double eps = c->void_frac;
+	double sr = sqrt(f->rho_l_kgm3 / f->rho_g_kgm3);
+	double mur = f->mu_l_pas / f->mu_g_pas;
+	double q = sqrt(2.0) * pow(eps - h, 1.5) / sqrt(eps) * sqrt(h / c->area_m2m3) * sr;
+	double kx = u_l_ms * sr * pow(mur, 0.2);
+	double coef1 = c->billet_cfl * q;
+	double coef2 = 0.6244 * c->billet_cfl * pow(mur, 0.1028) * q;
+	return bs_pick(coef1, -0.194, coef2, -0.708, kx, u_l_ms * sr);
+}
+
+/* Loading region (from memory): h = h_S + (h_Fl - h_S) (u_g/u_Fl)^13 for
+ * u_S < u_g <= u_Fl, h_S the pre-loading holdup. At u_g = u_S the added
+ * term is (u_S/u_Fl)^13, about 1 % of (h_Fl - h_S) for u_S = 0.7 u_Fl: the
+ * small step the paper's form has at the loading point is kept. */
+double packed_bs_holdup(const struct packing_constants *c, double u_g_ms, double u_l_ms,
+			const struct fluid_state *f, struct fg_extrap *x)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (!nonneg_finite(u_g_ms))
+		return NAN;
+	double h_s = packed_bs_holdup_preload(c, u_l_ms, f, x);
+	if (isnan(h_s) || u_l_ms == 0.0)
+		return h_s;
+	double u_s = packed_bs_loading_ms(c, u_l_ms, f, x);
+	if (u_g_ms <= u_s)
+		return h_s;
+	double u_fl = packed_bs_flood_ms(c, u_l_ms, f, x);
+	double h_fl = packed_bs_flood_holdup(c, u_l_ms, f, x);
+	if (isnan(u_fl) || isnan(h_fl))
+		return NAN;
+	double ratio = u_g_ms / u_fl;
+	if (ratio > 1.0) {
+		fg_extrap_note(x, "billet-schultes: gas above the flood point, flood holdup held");
+		ratio = 1.0;
+	}
+	if (h_fl < h_s)
+		return h_s;
+	return h_s + (h_fl - h_s) * pow(ratio, 13.0);
+}
+
+/* ---- Kister & Gill (1991), Robbins (1991) -------------------------------- */
+
+/* dP_flood = 0.12 Fp^0.7 inH2O/ft, Fp in 1/ft (from memory; the handbook
+ * quotes a coefficient of 0.115 in places, 4 % lower). Kister & Gill give
+ * the same equation for structured packings; we do not change the exponent.
+ * The data behind it span Fp of about 9..60 1/ft (from memory): outside that
+ * the value is returned and noted. */
+double packed_kister_gill_flood_pam(double fp_1pm, bool structured, struct fg_extrap *x)
+{
+	(void)structured;
+	if (!pos_finite(fp_1pm)) {
+		if (isnan(fp_1pm))
+			fg_extrap_note(x, "kister-gill: packing factor Fp missing");
+		return NAN;
+	}
+	double fp_ft = fp_1pm * FT_M;
+	if (fp_ft < 9.0 || fp_ft > 60.0)
+		fg_extrap_note(x, "kister-gill: packing factor outside 9..60 1/ft");
+	return 0.12 * pow(fp_ft, 0.7) * PACKED_INH2O_PER_FT_PAM;
+}
+
+/* Robbins (1991), in its own units (lb/(h ft2), lb/ft3, cP, inH2O/ft):
+ *   dP = C3 Gf^2 10^(C4 Lf) + 0.4 (Lf/20000)^0.1 (C3 Gf^2 10^(C4 Lf))^4,
+ *   Gf = G (0.075/rho_g)^0.5 (Fpd/20)^0.5,  Lf = L (62.4/rho_l) (Fpd/20)^0.5 mu_l^0.1,
+ *   C3 = 7.4e-8, C4 = 2.7e-5.
+ * Validity (Kister 1992, Distillation Design, as quoted on a copy of its
+ * section 8 we read): the equation only for Lf <= 20 000; Fpd >= 15 1/ft for
+ * the Lf form above; near-atmospheric pressure and vacuum, not above about
+ * 3 bar (we flag rho_g > 3.6 kg/m3, air at 3 bar and 20 degC). Outside:
+ * value returned and noted. */
+double packed_robbins_pam(double fpd_1pm, double gas_kgsm2, double liquid_kgsm2,
+			  double rho_g_kgm3, double rho_l_kgm3, double mu_l_pas,
+			  struct fg_extrap *x)
+{
+	if (!nonneg_finite(gas_kgsm2) || !nonneg_finite(liquid_kgsm2) ||
+	    !pos_finite(rho_g_kgm3) || !pos_finite(rho_l_kgm3) || !pos_finite(mu_l_pas))
+		return NAN;
+	if (!pos_finite(fpd_1pm)) {
+		fg_extrap_note(x, "robbins: dry packing factor Fpd missing");
+		return NAN;
+	}
+	double flux = LB_PER_KG * 3600.0 * FT_M * FT_M;        /* kg/(s m2) -> lb/(h ft2) */
+	double dens = LB_PER_KG * FT_M * FT_M * FT_M;          /* kg/m3 -> lb/ft3 */
+	double fpd_ft = fpd_1pm * FT_M;
+	double root = sqrt(fpd_ft / 20.0);
+	double lf = liquid_kgsm2 * flux * (62.4 / (rho_l_kgm3 * dens)) * root *
+		    pow(mu_l_pas * 1000.0, 0.1);
+	double gf = gas_kgsm2 * flux * sqrt(0.075 / (rho_g_kgm3 * dens)) * root;
+	if (lf > 20000.0)
+		fg_extrap_note(x, "robbins: Lf above 20000, outside the equation");
+	if (fpd_ft < 15.0)
+		fg_extrap_note(x, "robbins: Fpd below 15 1/ft");
+	if (rho_g_kgm3 > 3.6)
+		fg_extrap_note(x, "robbins: gas density above about 3 bar air");
+	double term = 7.4e-8 * gf * gf * pow(10.0, 2.7e-5 * lf);
+	double dp = term + 0.4 * pow(lf / 20000.0, 0.1) * pow(term, 4.0);
+	return dp * PACKED_INH2O_PER_FT_PAM;
+}
+
+/* ---- packed_eval --------------------------------------------------------- */
+
+/* Rates and notes shared by the parts of one evaluation. */
+struct pe {
+	const struct packing_constants *c;
+	const struct fluid_state *f;
+	double u_g, u_l;          /* superficial velocities, m/s */
+	double gas_flux, liq_flux;/* mass fluxes, kg/(s m2) */
+	double area_m2, height_m;
+	unsigned missing;         /* notes about missing constants (not extrapolation) */
+};
+
+static bool has_bs_flood(const struct packing_constants *c)
+{
+	return has_geometry(c) && pos_finite(c->billet_cfl);
+}
+
+static void note_missing(struct pe *e, struct section_result *r, const char *why)
+{
+	fg_extrap_note(&r->extrap, why);
+	e->missing++;
+}
+
+/* Flood % by the configured method, falling back to the other one when the
+ * configured method's constants are missing. */
+static void eval_flood(struct pe *e, const struct section_geom *g, struct section_result *r)
+{
+	bool stich = g->packed.flood_method == PACKED_FLOOD_STICHLMAIR;
+	if (stich && !has_stichlmair(e->c) && has_bs_flood(e->c)) {
+		note_missing(e, r, "packed: Stichlmair constants missing, flood by Billet-Schultes");
+		stich = false;
+	} else if (!stich && !has_bs_flood(e->c) && has_stichlmair(e->c)) {
+		note_missing(e, r, "packed: Billet-Schultes C_Fl missing, flood by Stichlmair");
+		stich = true;
+	} else if (!has_stichlmair(e->c) && !has_bs_flood(e->c)) {
+		note_missing(e, r, "packed: no flood constants (Stichlmair C1..C3 or C_Fl)");
+		return;
+	}
+	double u_fl = stich ? packed_stichlmair_flood_ms(e->c, e->u_l, e->f, &r->extrap)
+			    : packed_bs_flood_ms(e->c, e->u_l, e->f, &r->extrap);
+	if (isnan(u_fl) || u_fl <= 0.0)
+		return;
+	/* A dry bed (u_fl infinite) cannot flood: 0 %. */
+	double pct = 100.0 * e->u_g / u_fl;
+	if (pct > 100.0)
+		fg_extrap_note(&r->extrap, "packed: gas above the flooding velocity");
+	r->v[RF_FLOOD_PCT] = pct;
+	r->basis = FLOOD_BASIS_GAS_VELOCITY;
+}
+
+static void eval_loading(struct pe *e, struct section_result *r)
+{
+	if (!has_geometry(e->c) || !pos_finite(e->c->billet_cs)) {
+		note_missing(e, r, "packed: Billet-Schultes C_S missing, no loading point");
+		return;
+	}
+	double u_s = packed_bs_loading_ms(e->c, e->u_l, e->f, &r->extrap);
+	if (isnan(u_s) || u_s <= 0.0)
+		return;
+	r->v[RF_LOADING_PCT] = 100.0 * e->u_g / u_s;
+}
+
+/* Model DP: Stichlmair irrigated DP when its constants are known (it covers
+ * loading up to the flood point); otherwise Robbins with Fpd. */
+static void eval_dp(struct pe *e, struct section_result *r)
+{
+	double pam = NAN;
+	if (has_stichlmair(e->c)) {
+		pam = packed_stichlmair_wet_pam(e->c, e->u_g, e->u_l, e->f, NULL, &r->extrap);
+	} else if (pos_finite(e->c->dry_factor_1pm)) {
+		pam = packed_robbins_pam(e->c->dry_factor_1pm, e->gas_flux, e->liq_flux,
+					 e->f->rho_g_kgm3, e->f->rho_l_kgm3, e->f->mu_l_pas,
+					 &r->extrap);
+	} else {
+		note_missing(e, r, "packed: no DP constants (Stichlmair C1..C3 or Fpd)");
+	}
+	r->v[RF_DP_MODEL_PA] = pam * e->height_m;
+}
+
+static void eval_dp_flood(struct pe *e, const struct section_geom *g,
+			  const struct section_point *p, struct section_result *r)
+{
+	if (!isfinite(p->dp_pa))
+		return;
+	if (!pos_finite(e->c->packing_factor_1pm)) {
+		note_missing(e, r, "packed: packing factor Fp missing, no flood DP");
+		return;
+	}
+	double flood_pam = packed_kister_gill_flood_pam(e->c->packing_factor_1pm,
+							g->packed.structured, &r->extrap);
+	r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / e->height_m) / flood_pam;
+}
+
+/* Holdup: Billet-Schultes when C_h is known (with the loading-region rise
+ * when C_S and C_Fl are known too), else Stichlmair's irrigated holdup. */
+static void eval_holdup(struct pe *e, struct section_result *r)
+{
+	const struct packing_constants *c = e->c;
+	double h = NAN;
+	if (has_geometry(c) && pos_finite(c->billet_ch)) {
+		if (pos_finite(c->billet_cs) && pos_finite(c->billet_cfl)) {
+			h = packed_bs_holdup(c, e->u_g, e->u_l, e->f, &r->extrap);
+		} else {
+			note_missing(e, r, "packed: C_S or C_Fl missing, pre-loading holdup only");
+			h = packed_bs_holdup_preload(c, e->u_l, e->f, &r->extrap);
+		}
+	} else if (has_stichlmair(c)) {
+		(void)packed_stichlmair_wet_pam(c, e->u_g, e->u_l, e->f, &h, &r->extrap);
+	} else {
+		note_missing(e, r, "packed: no holdup constants (C_h or Stichlmair C1..C3)");
+	}
+	r->v[RF_LIQUID_HOLDUP_FRAC] = h;
+	r->v[RF_LIQUID_HOLDUP_M3] = h * e->area_m2 * e->height_m;
+}
+
+static bool eval_inputs_ok(const struct section_geom *g, const struct fluid_state *f,
+			   const struct section_point *p)
+{
+	return pos_finite(g->diameter_m) && pos_finite(g->packed.height_m) && fluids_ok(f) &&
+	       nonneg_finite(p->gas_kgs) && nonneg_finite(p->liquid_kgs);
+}
+
+void packed_eval(const struct section_geom *g, const struct fluid_state *f,
+		 const struct section_point *p, struct section_result *r)
+{
+	assert(g != NULL);
+	assert(f != NULL);
+	assert(p != NULL);
+	assert(r != NULL);
+	static const enum result_field mine[] = {
+		RF_FLOOD_PCT, RF_LOADING_PCT, RF_DP_MODEL_PA, RF_DP_FLOOD_PCT,
+		RF_LIQUID_HOLDUP_FRAC, RF_LIQUID_HOLDUP_M3,
+	};
+	for (size_t i = 0; i < sizeof mine / sizeof mine[0]; i++)
+		r->v[mine[i]] = NAN;
+	if (!eval_inputs_ok(g, f, p)) {
+		/* rho_l <= rho_g, missing flows or properties: nothing here is a value. */
+		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
+		return;
+	}
+	struct pe e = {.c = &g->packed.c, .f = f, .missing = 0};
+	/* The tower cross-section, computed here so this file needs only the
+	 * geometry (section_area_m2 gives the same pi d^2/4). */
+	e.area_m2 = 0.25 * M_PI * g->diameter_m * g->diameter_m;
+	e.height_m = g->packed.height_m;
+	e.gas_flux = p->gas_kgs / e.area_m2;
+	e.liq_flux = p->liquid_kgs / e.area_m2;
+	e.u_g = e.gas_flux / f->rho_g_kgm3;
+	e.u_l = e.liq_flux / f->rho_l_kgm3;
+	unsigned before = r->extrap.count;
+	eval_flood(&e, g, r);
+	eval_loading(&e, r);
+	eval_dp(&e, r);
+	eval_dp_flood(&e, g, p, r);
+	eval_holdup(&e, r);
+	/* Notes other than missing constants are extrapolations: uncertain. */
+	if (r->extrap.count - before > e.missing)
+		fg_quality_raise(&r->quality, FG_QUALITY_UNCERTAIN);
+}
