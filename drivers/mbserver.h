@@ -1,0 +1,129 @@
+/*
+ * mbserver.h - a small Modbus TCP server: the export of results to the
+ * control system, and the register map of `floodgauge feed` (a stand-in for
+ * the plant).
+ *
+ * Threading, and why: the server runs in its own thread, and a mutex guards
+ * the register map. A poll-style step called from the daemon loop would
+ * answer only between the loop's own work, and that work includes Modbus
+ * polls that may each block for a response timeout: a control system asking
+ * with a 1 s timeout would see us time out exactly when the plant link is in
+ * trouble, which is when it most wants the diagnostics. The thread answers at
+ * once, whatever the loop is doing.
+ *
+ * The caller's loop never waits on the network: the setters hold the mutex
+ * only while one request is answered, client sockets are non-blocking (a
+ * client that stops reading its replies is dropped, never waited for), and a
+ * reply is built and sent in microseconds. A block of registers given to one
+ * setter call changes atomically for readers, so write a float32 (two
+ * registers) or a whole export block in one call.
+ *
+ * Up to MBSERVER_CLIENTS_MAX clients are served side by side (one request at
+ * a time); more are accepted and closed at once. A client that disconnects,
+ * stalls in mid-frame for longer than the byte timeout, or stops reading its
+ * replies is dropped, and the others go on. Garbage is answered with an
+ * exception after a short flush (MBSERVER_FLUSH_WAIT_MS), or drops the client
+ * when it leaves a frame incomplete. The listening address is the caller's: pass
+ * "127.0.0.1" unless the control system must reach it from outside.
+ *
+ * read_only: every write function code (5, 6, 15, 16, 22, 23) is answered
+ * with exception 1 (illegal function) and the map stays as it is. Otherwise
+ * clients may write holding registers (coils do not exist: exception 2).
+ */
+#ifndef MBSERVER_H
+#define MBSERVER_H
+
+#include <pthread.h>
+#include <stdbool.h>
+#include <stdint.h>
+
+#include <modbus.h>
+
+/* Clients served at once: the control system, a second HMI, an engineer's
+ * tool, with room to spare. */
+#define MBSERVER_CLIENTS_MAX 8
+
+/* A client stalled in mid-frame is dropped after this long, ms. */
+#define MBSERVER_BYTE_TIMEOUT_MS 200
+
+/* After a request with an unknown function code (garbage, most often)
+ * libmodbus waits this long for the rest of the junk, throws away whatever
+ * has arrived, and answers exception 1; the client then stays connected and
+ * in step. The thread serves nobody else meanwhile, so it is short, ms. */
+#define MBSERVER_FLUSH_WAIT_MS 50
+
+/* Kernel send buffer per client, bytes (Linux doubles it): about 600 short
+ * replies. A client that lets more pile up unread is dropped. */
+#define MBSERVER_SNDBUF_BYTES 16384
+
+/* The register map. Each table covers [start, start + count), start + count
+ * <= 65536; a table with count 0 does not exist (reads get exception 2). */
+struct mbserver_map_cfg {
+	uint16_t input_start;     /* input registers, function code 4 */
+	uint16_t input_count;
+	uint16_t holding_start;   /* holding registers, function code 3 (6, 16, 22, 23) */
+	uint16_t holding_count;
+	uint16_t discrete_start;  /* discrete inputs, function code 2 */
+	uint16_t discrete_count;
+};
+
+struct mbserver_stats {
+	unsigned long requests;         /* requests answered (with data or an exception) */
+	unsigned long writes_refused;   /* write requests refused because read-only */
+	unsigned long clients_accepted;
+	unsigned long clients_dropped;  /* disconnected, garbage, stalled, or not reading */
+	unsigned long clients_refused;  /* over MBSERVER_CLIENTS_MAX */
+};
+
+/* Private: use the functions below. */
+struct mbserver {
+	bool opened;
+	bool read_only;
+	int port;
+	int listen_fd;
+	int wake_fd[2];                        /* close writes wake_fd[1] to stop the thread */
+	int client_fd[MBSERVER_CLIENTS_MAX];   /* -1 = free slot */
+	modbus_t *ctx;                         /* framing only, never connected */
+	modbus_mapping_t *map;                 /* guarded by lock */
+	struct mbserver_stats stats;           /* guarded by lock */
+	pthread_mutex_t lock;
+	pthread_t thread;
+	uint8_t query[MODBUS_TCP_MAX_ADU_LENGTH];
+};
+
+/*
+ * Listens on host:port (port 0: an ephemeral port, see mbserver_port) and
+ * starts the server thread. host is a numeric address or a name.
+ * Returns 0, -EINVAL (bad map or port), -ENOMEM, or the socket error
+ * (-EADDRINUSE, -EADDRNOTAVAIL, ...; -ENOENT when host does not resolve).
+ * On failure nothing is left open and mbserver_close(s) is harmless.
+ */
+int mbserver_open(struct mbserver *s, const char *host, int port,
+		  const struct mbserver_map_cfg *map, bool read_only);
+
+/* The port listened on, or -1 when not open. */
+int mbserver_port(const struct mbserver *s);
+
+/*
+ * Set count registers (or discrete inputs) from address on. Atomic for
+ * readers. Return 0, or -ERANGE when [address, address + count) is not inside
+ * the table (nothing is changed).
+ */
+int mbserver_set_input(struct mbserver *s, uint16_t address, const uint16_t *regs,
+		       unsigned count);
+int mbserver_set_holding(struct mbserver *s, uint16_t address, const uint16_t *regs,
+			 unsigned count);
+int mbserver_set_discrete(struct mbserver *s, uint16_t address, const bool *bits,
+			  unsigned count);
+
+/* Reads holding registers back (what clients may have written). 0 or -ERANGE. */
+int mbserver_get_holding(struct mbserver *s, uint16_t address, uint16_t *regs, unsigned count);
+
+/* A consistent snapshot of the counters. */
+void mbserver_get_stats(struct mbserver *s, struct mbserver_stats *out);
+
+/* Stops the thread, closes every socket, frees the map. NULL-safe, and safe
+ * on a server whose open failed or that is already closed. */
+void mbserver_close(struct mbserver *s);
+
+#endif
