@@ -13,6 +13,7 @@
 #include <math.h>
 #include <string.h>
 
+#include "mbclient.h"
 #include "packing.h"
 
 int config_section_keys_check(struct config_ctx *c, unsigned si);
@@ -112,8 +113,7 @@ static void resolve_sources(struct config_ctx *c)
 			config_error(c, s->line, "[source.%s]: an RTU unit_id is 1..247", s->name);
 		if (!(set & (1u << 6)))
 			s->baud = 19200;
-		static const int bauds[] = {1200, 2400, 4800, 9600, 19200, 38400, 57600, 115200,
-					    230400, 460800, 921600};
+		static const int bauds[] = {MBCLIENT_BAUD_RATES};
 		bool ok = false;
 		for (unsigned k = 0; k < sizeof(bauds) / sizeof(bauds[0]); k++)
 			ok = ok || bauds[k] == s->baud;
@@ -124,6 +124,8 @@ static void resolve_sources(struct config_ctx *c)
 			s->parity = 'E'; /* the Modbus serial line default */
 		if (!(set & (1u << 8)))
 			s->data_bits = 8;
+		if (s->data_bits != 8) /* RTU frames are 8-bit (Modbus over serial line 2.5.1) */
+			config_error(c, s->line, "[source.%s]: modbus-rtu needs data_bits = 8", s->name);
 		if (!(set & (1u << 9)))
 			s->stop_bits = 1;
 	}

@@ -25,7 +25,9 @@ run_one() { # name command...
 	name=$1
 	shift
 	log="$logs/$(echo "$name" | tr '/' '_').log"
-	"$@" >"$log" 2>&1
+	# A hung network test must not stall the suite: 300 s is ten times the
+	# slowest program's normal run.
+	timeout 300 "$@" >"$log" 2>&1
 	rc=$?
 	ok=$(grep -c '^ok ' "$log")
 	nok=$(grep -c '^not ok ' "$log")
