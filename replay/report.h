@@ -1,0 +1,235 @@
+/*
+ * report.h - the replay report: one self-contained HTML page with inline SVG
+ * trend charts, for a process engineer reviewing an upset.
+ *
+ * The replay command feeds the report one row of section results at a time
+ * (after the engine has run) and every alarm event, then writes the page once
+ * at the end. Memory stays bounded for any number of rows: all sections share
+ * one grid of at most REPORT_BUCKETS_MAX time buckets, each keeping the first,
+ * minimum, maximum and last value of every charted series. When a row falls
+ * past the last bucket, neighbouring buckets are merged in pairs and the
+ * bucket width doubles, so a spike of one sample still shows as the extreme
+ * of its bucket. The event table keeps the first REPORT_EVENTS_MAX events and
+ * counts the rest. Alarm shading keeps exact start and end times, at most
+ * REPORT_PERIODS_MAX periods per section and priority.
+ *
+ * Allocation happens in report_init() only; report_add_row() and
+ * report_add_event() never allocate. report_write() allocates nothing either
+ * beyond stdio's own buffer.
+ *
+ * The page is byte-identical for the same input: numbers are formatted by our
+ * own fixed-precision code (no locale), times as ISO 8601 UTC from the data,
+ * never the wall clock.
+ */
+#ifndef REPORT_H
+#define REPORT_H
+
+#include <stdbool.h>
+#include <stddef.h>
+#include <stdint.h>
+
+#include "fg_limits.h"
+#include "fg_result.h"
+
+/* Time buckets per series. 2048 is about two buckets per pixel of the chart
+ * width, so merging is invisible on screen and on paper. */
+#define REPORT_BUCKETS_MAX 2048
+
+/* Events listed in the table. An upset of a few sections raises tens to
+ * hundreds of events; a chattering alarm can raise millions, and a table of
+ * more than a thousand rows is no longer read. The rest are counted. */
+#define REPORT_EVENTS_MAX 1000
+
+/* Alarm-active periods kept per section and priority. Past this, the two
+ * periods closest together are joined (the gap between them shaded too), so
+ * a chattering alarm costs no more memory and still shows as active. */
+#define REPORT_PERIODS_MAX 256
+
+/* Short strings in the layout: section type, alarm kind, priority, state. */
+#define REPORT_WORD_MAX 16
+
+/* "No time": first alarm of a section that raised none, first/last time of
+ * a file with no rows. */
+#define REPORT_T_NONE INT64_MIN
+
+_Static_assert(REPORT_BUCKETS_MAX % 2 == 0, "buckets merge in pairs");
+_Static_assert(REPORT_BUCKETS_MAX >= 64, "charts need some resolution");
+
+/* Alarm priorities, in the order of the summary table. */
+enum report_priority {
+	REPORT_PRIORITY_LOW,
+	REPORT_PRIORITY_MEDIUM,
+	REPORT_PRIORITY_HIGH,
+	REPORT_PRIORITY_URGENT,
+	REPORT_PRIORITY_COUNT
+};
+
+/* Shading kinds: the four priorities and "other" (an unknown priority name). */
+#define REPORT_SHADE_KINDS (REPORT_PRIORITY_COUNT + 1)
+
+struct report_section {
+	char name[FG_NAME_MAX];        /* section name from the config */
+	char type[REPORT_WORD_MAX];    /* "tray", "packed", "spray" or "bubble" */
+};
+
+struct report_alarm {
+	char name[FG_NAME_MAX];        /* alarm name from the config */
+	int section_index;             /* index into report_layout.sections */
+	int field;                     /* enum result_field it watches, -1 = diagnostic */
+	char kind[REPORT_WORD_MAX];    /* "high", "low", "rate", "deviation", "diagnostic" */
+	char priority[REPORT_WORD_MAX];/* "low", "medium", "high", "urgent" */
+	double setpoint;               /* in the field's SI unit; NAN for diagnostic */
+};
+
+struct report_layout {
+	char plant[FG_TEXT_MAX];       /* plant / monitor name for the header */
+	char data_file[FG_PATH_MAX];   /* the replayed data file, as given */
+	unsigned section_count;        /* 1..FG_SECTIONS_MAX */
+	struct report_section sections[FG_SECTIONS_MAX];
+	unsigned alarm_count;          /* 0..FG_ALARMS_MAX */
+	struct report_alarm alarms[FG_ALARMS_MAX];
+};
+
+/* Filled by the caller (the replay command) before report_write(). */
+struct report_summary {
+	uint64_t rows_read;            /* data rows read from the file */
+	uint64_t rows_malformed;       /* skipped: could not be parsed */
+	uint64_t rows_unsorted;        /* skipped: time earlier than the previous row */
+	uint64_t rows_duplicate;       /* skipped: same time as the previous row */
+	int64_t first_t_ms;            /* first row time, Unix ms UTC, or REPORT_T_NONE */
+	int64_t last_t_ms;             /* last row time, Unix ms UTC, or REPORT_T_NONE */
+	uint64_t raised[REPORT_PRIORITY_COUNT];        /* alarms raised (to UNACK) per priority */
+	int64_t first_alarm_t_ms[FG_SECTIONS_MAX];     /* per section, or REPORT_T_NONE */
+	double above_setpoint_s[FG_ALARMS_MAX];        /* per alarm, s; NAN = not applicable */
+};
+
+/* Charted series per section, in drawing order. */
+enum report_series {
+	REPORT_SERIES_FLOOD_INDEX,
+	REPORT_SERIES_FLOOD_PCT,
+	REPORT_SERIES_DP,
+	REPORT_SERIES_DP_MODEL,
+	REPORT_SERIES_HOLDUP,
+	REPORT_SERIES_COUNT
+};
+
+/* One bucket of one series. Only finite values enter first/min/max/last. */
+struct report_cell {
+	double first, min, max, last;
+	uint32_t finite_count;         /* finite samples in the bucket */
+	uint32_t nan_count;            /* NAN or infinite samples in the bucket */
+};
+
+/* One bucket of the shared time grid (rows, not values). */
+struct report_slot {
+	int64_t t_first_ms;            /* time of the first row in the bucket */
+	int64_t t_last_ms;             /* time of the last row in the bucket */
+	int64_t gap_before_ms;         /* from the previous row to t_first_ms; 0 for row one */
+	int64_t gap_inside_ms;         /* longest interval between two rows inside the bucket */
+	uint32_t row_count;            /* rows in the bucket, 0 = empty */
+};
+
+/* One bucket of one section's state: worst quality and extrapolation. */
+struct report_mark {
+	uint8_t quality;               /* worst enum fg_quality of the bucket's rows */
+	uint8_t extrapolated;          /* 1 when any row was extrapolated */
+};
+
+/* A period during which at least one alarm of a section and priority was
+ * active; end_ms is INT64_MAX while it lasts. */
+struct report_period {
+	int64_t start_ms, end_ms;
+};
+
+/* Log-spaced histogram of row intervals, 8 bins per octave, to find the
+ * typical sample period (its median) without keeping the intervals. */
+#define REPORT_DT_BINS (8 * 64)
+
+struct report_event {
+	int64_t t_ms;
+	int alarm_index;
+	char state[REPORT_WORD_MAX];
+	double value;
+};
+
+/* Private: use the functions below. Defined here so it can live on the
+ * caller's stack or inside another struct (in-place init). */
+struct report {
+	struct report_layout layout;
+	int64_t origin_ms;             /* start of bucket 0 */
+	int64_t width_ms;              /* bucket width, a power of two >= 1 */
+	size_t bucket_count;           /* buckets in use, last used index + 1 */
+	bool started;                  /* the first row or event has set origin_ms */
+	int64_t prev_row_ms;           /* time of the previous row, or REPORT_T_NONE */
+	int64_t t_min_ms, t_max_ms;    /* first and last row time, REPORT_T_NONE when no row */
+	uint64_t row_count;            /* rows added */
+	struct report_slot *slots;     /* [REPORT_BUCKETS_MAX] */
+	struct report_cell *cells;     /* [section][series][bucket] */
+	struct report_mark *marks;     /* [section][bucket] */
+	uint64_t dt_hist[REPORT_DT_BINS];
+	int64_t dt_bin_min_ms[REPORT_DT_BINS]; /* shortest and longest interval in each bin */
+	int64_t dt_bin_max_ms[REPORT_DT_BINS];
+	uint64_t sec_rows_bad[FG_SECTIONS_MAX];
+	uint64_t sec_rows_uncertain[FG_SECTIONS_MAX];
+	uint64_t sec_rows_extrap[FG_SECTIONS_MAX];
+	bool alarm_active[FG_ALARMS_MAX];
+	uint8_t alarm_shade[FG_ALARMS_MAX];   /* shading kind of each alarm's priority */
+	unsigned active_count[FG_SECTIONS_MAX][REPORT_SHADE_KINDS]; /* alarms active now */
+	struct report_period *periods;        /* [section][kind][REPORT_PERIODS_MAX] */
+	unsigned period_count[FG_SECTIONS_MAX][REPORT_SHADE_KINDS];
+	uint64_t periods_joined;              /* joins forced by REPORT_PERIODS_MAX */
+	struct report_event *events;   /* [REPORT_EVENTS_MAX] */
+	size_t event_count;            /* events kept, <= REPORT_EVENTS_MAX */
+	uint64_t events_dropped;       /* events counted but not kept */
+};
+
+/* Copies the layout and allocates the bucket grid. Returns 0, -EINVAL when
+ * the layout is inconsistent (no section, a count above its limit, an alarm
+ * pointing at no section or field, a string without its NUL) or -ENOMEM; on
+ * failure rp holds nothing to free (report_fini is still safe). */
+int report_init(struct report *rp, const struct report_layout *layout);
+
+/* Records one row: results[i] for section i, section_count entries. Rows must
+ * come in rising time; a row earlier than the previous one is ignored and
+ * -EINVAL returned (the caller skips unsorted rows before this). Returns 0. */
+int report_add_row(struct report *rp, int64_t t_ms, const struct section_result *results);
+
+/* Records one alarm event. state is one of NORM, UNACK, ACKED, RTNUN, SHLVD,
+ * DSUPR, OOSRV; an alarm counts as active (and is shaded) in UNACK and ACKED.
+ * Returns 0, or -EINVAL for an unknown state (event ignored). */
+int report_add_event(struct report *rp, int64_t t_ms, int alarm_index, const char *state,
+		     double value);
+
+/* Writes the page to path through path.new, fsync and rename. Returns 0, or
+ * a negative errno (-EIO when a write failed); on failure path is untouched
+ * and path.new removed. */
+int report_write(const struct report *rp, const char *path, const struct report_summary *sum);
+
+/* Frees the grid. NULL-safe; rp may be reused with report_init afterwards. */
+void report_fini(struct report *rp);
+
+/* Sets every count of sum to zero and every time to REPORT_T_NONE, every
+ * above_setpoint_s to NAN. */
+void report_summary_clear(struct report_summary *sum);
+
+/* Index of a priority name ("low", "medium", "high", "urgent"), or -1. */
+int report_priority_lookup(const char *name);
+
+/* Buckets in use (<= REPORT_BUCKETS_MAX) and their width, for tests and the
+ * replay command's progress line. */
+size_t report_bucket_count(const struct report *rp);
+int64_t report_bucket_width_ms(const struct report *rp);
+
+/* Typical sample period, ms: the median row interval, exact when the
+ * intervals in the median's histogram bin are all equal (a periodic
+ * historian), else the middle of that bin's range (within 1/8 octave, 9 %).
+ * 0 with fewer than two rows. Intervals above 3x this break the lines. */
+int64_t report_typical_period_ms(const struct report *rp);
+
+/* Formats v with exactly decimals (0..9) digits after the point, without
+ * the locale: "-12.50". NAN and inf give "-". Values too large for the
+ * requested decimals lose decimals; |v| >= 9e15 gives ">9e15" or "<-9e15".
+ * Returns the length, or -ENOSPC (buf then holds ""). */
+int report_format_fixed(double v, int decimals, char *buf, size_t buf_size);
+
+#endif
