@@ -1,0 +1,884 @@
+/*
+ * scenario.c - synthetic plant data with injected upsets (see scenario.h).
+ *
+ * One row is made in a fixed order, so that the same seed gives the same
+ * bytes and so that every scenario draws exactly the same random numbers as
+ * `steady`: each section advances one drift per signal, then each polled tag
+ * draws one transmitter deviate. The upsets change loads (flood, weep) or
+ * overwrite values after the draws (frozen, gap), so a frozen or gap run is
+ * the steady run of the same seed with the upset laid over it.
+ *
+ * The plant DP of a tray or packed section is
+ *
+ *     dp = k_plant dp_model(point) (1 + K_EXC max(0, f - F_EXC)^2)
+ *
+ * with k_plant = 1.1, f = model flood_pct / 100, F_EXC = 0.85, K_EXC = 20:
+ * the factor is 1.45 at f = 1.0 and 2.25 at f = 1.1, a steep rise once the
+ * column floods (liquid builds up on the trays or in the bed). Its
+ * transmitter noise has a coefficient of variation 0.015 (1 + 20 max(0,
+ * f - F_EXC)), 6 % at flood, as flooding makes DP erratic. These forms are
+ * our own invented demo choices ("common practice" only in that DP is known
+ * to rise steeply and get noisy near flood), not a published correlation.
+ * When the model gives no DP, the tag's nominal DP scaled with the square of
+ * the F-factor stands in (dry and irrigated DP grow roughly with the square
+ * of the gas load below loading - common practice).
+ *
+ * A bubble column's tap DP is the hydrostatic head of the aerated liquid,
+ * dp = (1 - eps) rho_l g dz, with eps the model's correlation holdup: the
+ * inverse of the holdup-from-DP formula the engine uses.
+ */
+#include "scenario.h"
+
+#include <assert.h>
+#include <errno.h>
+#include <math.h>
+#include <stddef.h>
+#include <string.h>
+
+#include "gas.h"
+#include "point.h"
+#include "timefmt.h"
+#include "units.h"
+
+/* Standard gravity, m/s2 (CGPM 1901, exact). */
+#define SCENARIO_G_MS2 9.80665
+
+#define DP_PLANT_FACTOR 1.1
+#define DP_EXC_FROM 0.85
+#define DP_EXC_K 20.0
+#define DP_CV 0.015
+
+#define FLOOD_RAMP_START_S (2.0 * 3600.0)
+#define FLOOD_RAMP_PER_S (0.25 / 3600.0)   /* +25 % of design load per hour */
+#define FLOOD_STOP_PCT 110.0               /* ramp stops past flooding */
+#define FLOOD_LOAD_MAX 2.0                 /* and at twice the design load at most */
+#define FLOOD_HOLD_S (20.0 * 60.0)
+#define FLOOD_BACK_PER_S (0.5 / 3600.0)    /* operators cut back at -50 %/h */
+
+#define WEEP_FALL_FROM_S 3600.0
+#define WEEP_FALL_TO_S (3.0 * 3600.0)
+#define WEEP_RISE_FROM_S (3.5 * 3600.0)
+#define WEEP_RISE_TO_S (5.0 * 3600.0)
+#define WEEP_LOAD_MIN 0.35
+
+#define GAP_ALL_AT 0.25                    /* of the span */
+#define GAP_ALL_S 600.0
+#define GAP_ONE_AT 0.625
+#define GAP_ONE_S 120.0
+
+#define ROWS_MAX 100000000ULL              /* a run is bounded: 3 years of 1 s rows */
+
+enum { PHASE_STEADY, PHASE_RAMP, PHASE_HOLD, PHASE_BACK, PHASE_DONE };
+
+/* Process drift (stationary standard deviation, time constant) and
+ * transmitter noise per signal: relative, except temperature in K. These are
+ * invented but typical magnitudes (common practice: flow transmitters about
+ * 0.5 % of reading, DP 1-2 %, temperature a tenth of a kelvin). */
+struct signal_noise {
+	double drift_sd, drift_tau_s, noise_sd;
+	bool absolute;
+};
+
+static const struct signal_noise noise_of[SIGNAL_COUNT] = {
+	[SIGNAL_GAS_FLOW] = {0.01, 1800.0, 0.005, false},
+	[SIGNAL_LIQUID_FLOW] = {0.01, 1800.0, 0.005, false},
+	[SIGNAL_LIQUID_OUT_FLOW] = {0.01, 1800.0, 0.005, false},
+	[SIGNAL_DP] = {0.0, 1800.0, DP_CV, false},
+	[SIGNAL_PRESSURE] = {0.002, 3600.0, 0.001, false},
+	[SIGNAL_TEMPERATURE] = {0.3, 3600.0, 0.1, true},
+	[SIGNAL_LEVEL] = {0.002, 900.0, 0.002, false},
+	[SIGNAL_GAS_DENSITY] = {0.003, 3600.0, 0.003, false},
+};
+
+/* --------------------------------------------------------------- random */
+
+/* splitmix64 (Steele, Lea & Flood, "Fast splittable pseudorandom number
+ * generators", OOPSLA 2014): small, full period 2^64, good enough for noise. */
+static uint64_t rng_next(struct scenario *sc)
+{
+	uint64_t z = (sc->rng += 0x9E3779B97F4A7C15ULL);
+	z = (z ^ (z >> 30)) * 0xBF58476D1CE4E5B9ULL;
+	z = (z ^ (z >> 27)) * 0x94D049BB133111EBULL;
+	return z ^ (z >> 31);
+}
+
+/* Uniform on (0, 1], never 0 so the logarithm below is finite. */
+static double rng_uniform(struct scenario *sc)
+{
+	return (double)((rng_next(sc) >> 11) + 1) * 0x1.0p-53;
+}
+
+/* Standard normal deviate by the Box-Muller transform, keeping the spare. */
+static double rng_gauss(struct scenario *sc)
+{
+	if (sc->have_spare) {
+		sc->have_spare = false;
+		return sc->spare;
+	}
+	double r = sqrt(-2.0 * log(rng_uniform(sc)));
+	double th = 2.0 * 3.14159265358979323846 * rng_uniform(sc);
+	sc->spare = r * sin(th);
+	sc->have_spare = true;
+	return r * cos(th);
+}
+
+/* ----------------------------------------------------------------- names */
+
+static const char *const kind_names[SCENARIO_KIND_COUNT] = {
+	[SCENARIO_STEADY] = "steady", [SCENARIO_FLOOD] = "flood", [SCENARIO_WEEP] = "weep",
+	[SCENARIO_FROZEN] = "frozen", [SCENARIO_GAP] = "gap",
+};
+
+static const double kind_hours[SCENARIO_KIND_COUNT] = {
+	[SCENARIO_STEADY] = 4.0, [SCENARIO_FLOOD] = 6.0, [SCENARIO_WEEP] = 6.0,
+	[SCENARIO_FROZEN] = 4.0, [SCENARIO_GAP] = 4.0,
+};
+
+int scenario_lookup(const char *name)
+{
+	assert(name != NULL);
+	for (int k = 0; k < SCENARIO_KIND_COUNT; k++)
+		if (strcmp(name, kind_names[k]) == 0)
+			return k;
+	return -1;
+}
+
+const char *scenario_name(enum scenario_kind k)
+{
+	assert(k >= 0);
+	assert(k < SCENARIO_KIND_COUNT);
+	return kind_names[k];
+}
+
+double scenario_default_hours(enum scenario_kind k)
+{
+	assert(k >= 0);
+	assert(k < SCENARIO_KIND_COUNT);
+	return kind_hours[k];
+}
+
+const char *scenario_help(void)
+{
+	return
+	"scenarios (times from the start of the run):\n"
+	"  steady  4 h. Every section at its design point (the tags' nominal values)\n"
+	"          with transmitter noise (flows 0.5 %, DP 1.5 % of reading) and slow\n"
+	"          process drifts (flows 1 %, 30 min). Nothing should alarm.\n"
+	"  flood   6 h. Steady for 2 h; then the gas load of every tray and packed\n"
+	"          section rises +25 % of design per hour until the model flood_pct\n"
+	"          reaches 110 % (or twice the design load, or the flow tag's range);\n"
+	"          held 20 min; cut back at -50 %/h to design; steady to the end.\n"
+	"          The DP is the model DP x 1.1 x (1 + 20 max(0, f - 0.85)^2),\n"
+	"          f = flood_pct/100, with noise of CV 1.5 % x (1 + 20 max(0, f - 0.85)).\n"
+	"          The flood point is when the model flood_pct reaches 100 %.\n"
+	"  weep    6 h. Steady 1 h; the gas load of every tray section falls to 35 %\n"
+	"          of design by 3 h, stays until 3.5 h, is back at design by 5 h.\n"
+	"          The model weep_pct falls below 100 % on the way down.\n"
+	"  frozen  4 h. Steady, but the DP transmitter of the first packed section\n"
+	"          (else the first section with a DP) repeats its last value exactly\n"
+	"          for 1 h centred on the middle of the run (1:30 to 2:30).\n"
+	"  gap     4 h. Steady, with every field empty for 10 min from 25 % of the\n"
+	"          span (1:00) and the first section's gas flow empty for 2 min from\n"
+	"          62.5 % of the span (2:30).\n"
+	"R404-like bubble columns and spray sections follow their design point with\n"
+	"noise in every scenario; a bubble column's tap DP is (1 - eps) rho_l g dz with\n"
+	"eps from the model's holdup correlation. Values saturate at each tag's\n"
+	"min/max, as a transmitter does at the end of its span.\n";
+}
+
+/* ------------------------------------------------------ unit conversions */
+
+static double liquid_density(const struct section_cfg *s, const struct section_point *p)
+{
+	return prop_table_at(&s->props.liquid_density_kgm3, p->temperature_k, NULL);
+}
+
+static double point_gas_density(const struct section_cfg *s, const struct section_point *p)
+{
+	if (isfinite(p->gas_density_kgm3) && p->gas_density_kgm3 > 0.0)
+		return p->gas_density_kgm3;
+	return gas_density_kgm3(p->pressure_pa, p->temperature_k, s->props.gas_molar_mass_kgkmol,
+				s->props.gas_compressibility, NULL);
+}
+
+double scenario_signal_to_tag(const struct fg_config *cfg, const struct section_cfg *s,
+			      enum section_signal k, const struct section_point *p, double si)
+{
+	assert(cfg != NULL);
+	assert(s != NULL);
+	assert(k >= 0);
+	assert(k < SIGNAL_COUNT);
+	int ti = s->signal[k];
+	assert(ti >= 0);
+	const struct unit *u = cfg->tags[ti].unit;
+	if (u == NULL || !isfinite(si))
+		return si;
+	bool gas = k == SIGNAL_GAS_FLOW;
+	bool flow = gas || k == SIGNAL_LIQUID_FLOW || k == SIGNAL_LIQUID_OUT_FLOW;
+	if (flow && u->kind == UNIT_KIND_VOLUME_FLOW)
+		si /= gas ? point_gas_density(s, p) : liquid_density(s, p);
+	else if (flow && u->kind == UNIT_KIND_NORMAL_VOLUME_FLOW)
+		si = si / s->props.gas_molar_mass_kgkmol * UNITS_NORMAL_MOLAR_VOLUME_M3KMOL;
+	return units_from_si(u, si);
+}
+
+/* The liquid-out flow as mass flow, kg/s: point_from_si leaves it alone. */
+static double liquid_out_kgs(const struct fg_config *cfg, const struct section_cfg *s,
+			     double v, const struct section_point *p)
+{
+	int ti = s->signal[SIGNAL_LIQUID_OUT_FLOW];
+	assert(ti >= 0);
+	double si = config_tag_to_si(&cfg->tags[ti], v);
+	const struct unit *u = cfg->tags[ti].unit;
+	if (u != NULL && u->kind == UNIT_KIND_VOLUME_FLOW)
+		si *= liquid_density(s, p);
+	return si;
+}
+
+/* ---------------------------------------------------------- design point */
+
+static double tag_design_value(const struct tag_cfg *t)
+{
+	return isfinite(t->fixed_value) ? t->fixed_value : t->nominal;
+}
+
+/* Is signal k needed to evaluate section s at all? */
+static bool signal_needed(const struct section_cfg *s, int k)
+{
+	bool dens = s->signal[SIGNAL_GAS_DENSITY] >= 0;
+	switch (k) {
+	case SIGNAL_GAS_FLOW: return true;
+	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
+	case SIGNAL_PRESSURE:
+	case SIGNAL_TEMPERATURE: return !dens;
+	case SIGNAL_GAS_DENSITY: return dens;
+	default: return false;
+	}
+}
+
+/* Fills sec->nominal_si from the tags' nominal (or fixed) values. Returns
+ * the number of problems written to errf. */
+static int design_point(struct scenario *sc, unsigned si, FILE *errf)
+{
+	const struct fg_config *cfg = sc->cfg;
+	const struct section_cfg *s = &cfg->sections[si];
+	struct scenario_section *sec = &sc->sec[si];
+	double vals[FG_TAGS_MAX];
+	int problems = 0;
+	for (unsigned i = 0; i < cfg->tag_count; i++)
+		vals[i] = tag_design_value(&cfg->tags[i]);
+	for (int k = 0; k < SIGNAL_COUNT; k++) {
+		int ti = s->signal[k];
+		if (signal_needed(s, k) && (ti < 0 || !isfinite(vals[ti]))) {
+			fprintf(errf, "%s: section %s: signal %s needs a tag with 'nominal =' "
+				      "(the design point simulate starts from)\n", cfg->path, s->name,
+				config_signal_name((enum section_signal)k));
+			problems++;
+		}
+	}
+	if (problems)
+		return problems;
+	struct section_point p;
+	point_from_tags(cfg, si, vals, &p);
+	double *n = sec->nominal_si;
+	n[SIGNAL_GAS_FLOW] = p.gas_kgs;
+	n[SIGNAL_LIQUID_FLOW] = p.liquid_kgs;
+	int lo = s->signal[SIGNAL_LIQUID_OUT_FLOW];
+	n[SIGNAL_LIQUID_OUT_FLOW] = lo < 0 ? NAN
+				  : liquid_out_kgs(cfg, s, isfinite(vals[lo]) ? vals[lo] : NAN, &p);
+	if (lo >= 0 && !isfinite(n[SIGNAL_LIQUID_OUT_FLOW]))
+		n[SIGNAL_LIQUID_OUT_FLOW] = p.liquid_kgs; /* steady: out = in */
+	n[SIGNAL_DP] = p.dp_pa;
+	n[SIGNAL_PRESSURE] = p.pressure_pa;
+	n[SIGNAL_TEMPERATURE] = p.temperature_k;
+	n[SIGNAL_LEVEL] = p.level_m;
+	if (!isfinite(p.level_m) && s->geom.type == SECTION_BUBBLE)
+		n[SIGNAL_LEVEL] = s->geom.bubble.clear_liquid_height_m;
+	n[SIGNAL_GAS_DENSITY] = p.gas_density_kgm3;
+	sec->simulated = true;
+	return 0;
+}
+
+/* --------------------------------------------------------------- process */
+
+static void true_point(const struct scenario_section *sec, struct section_point *p)
+{
+	const double *n = sec->nominal_si;
+	const double *d = sec->drift;
+	p->gas_kgs = n[SIGNAL_GAS_FLOW] * sec->load * (1.0 + d[SIGNAL_GAS_FLOW]);
+	p->liquid_kgs = n[SIGNAL_LIQUID_FLOW] * (1.0 + d[SIGNAL_LIQUID_FLOW]);
+	p->dp_pa = NAN;
+	p->pressure_pa = n[SIGNAL_PRESSURE] * (1.0 + d[SIGNAL_PRESSURE]);
+	p->temperature_k = n[SIGNAL_TEMPERATURE] + d[SIGNAL_TEMPERATURE];
+	p->level_m = n[SIGNAL_LEVEL] * (1.0 + d[SIGNAL_LEVEL]);
+	p->gas_density_kgm3 = n[SIGNAL_GAS_DENSITY] * (1.0 + d[SIGNAL_GAS_DENSITY]);
+}
+
+/* The plant DP of section si at point p (model already in sec->res), and its
+ * transmitter noise in sec->dp_cv. NAN when there is nothing to base it on. */
+static double plant_dp(const struct scenario *sc, unsigned si, const struct section_point *p,
+		       double *cv)
+{
+	const struct section_cfg *s = &sc->cfg->sections[si];
+	const struct scenario_section *sec = &sc->sec[si];
+	const double *v = sec->res.v;
+	*cv = DP_CV;
+	if (s->geom.type == SECTION_BUBBLE) {
+		double eps = v[RF_GAS_HOLDUP_FRAC];
+		return (1.0 - eps) * liquid_density(s, p) * SCENARIO_G_MS2 *
+		       s->geom.bubble.tap_spacing_m;
+	}
+	double base;
+	if (isfinite(v[RF_DP_MODEL_PA]) && s->geom.type != SECTION_SPRAY) {
+		base = sec->dp_factor * v[RF_DP_MODEL_PA];
+	} else {
+		double r = v[RF_F_FACTOR] / sec->f_factor_nominal_pa05;
+		base = sec->nominal_si[SIGNAL_DP] * r * r;
+	}
+	double f = v[RF_FLOOD_PCT] / 100.0;
+	double ex = isfinite(f) && f > DP_EXC_FROM ? f - DP_EXC_FROM : 0.0;
+	*cv = DP_CV * (1.0 + DP_EXC_K * ex);
+	return base * (1.0 + DP_EXC_K * ex * ex);
+}
+
+static double gas_load_cap(const struct scenario *sc, unsigned si)
+{
+	const struct section_cfg *s = &sc->cfg->sections[si];
+	const struct tag_cfg *t = &sc->cfg->tags[s->signal[SIGNAL_GAS_FLOW]];
+	double cap = FLOOD_LOAD_MAX;
+	double nom = tag_design_value(t);
+	if (isfinite(t->max) && nom > 0.0 && 0.97 * t->max / nom < cap)
+		cap = 0.97 * t->max / nom; /* stay inside the flow transmitter's span */
+	return cap;
+}
+
+static int64_t t_ms_at(const struct scenario *sc, double t_s)
+{
+	return sc->opt.start_t_ms + (int64_t)llround(t_s * 1000.0);
+}
+
+/* Flood scenario: the gas-load phase machine of one tray or packed section. */
+static void flood_load(struct scenario *sc, unsigned si, double t_s, double dt_s)
+{
+	struct scenario_section *sec = &sc->sec[si];
+	double fp = sec->res.v[RF_FLOOD_PCT];
+	switch (sec->phase) {
+	case PHASE_STEADY:
+		if (t_s >= FLOOD_RAMP_START_S) {
+			sec->phase = PHASE_RAMP;
+			sec->load = 1.0 + FLOOD_RAMP_PER_S * (t_s - FLOOD_RAMP_START_S);
+		}
+		break;
+	case PHASE_RAMP:
+		if ((isfinite(fp) && fp >= FLOOD_STOP_PCT) || sec->load >= gas_load_cap(sc, si)) {
+			sec->phase = PHASE_HOLD;
+			sec->phase_start_s = t_s;
+			sec->peak_t_ms = t_ms_at(sc, t_s);
+		} else {
+			sec->load += FLOOD_RAMP_PER_S * dt_s;
+		}
+		break;
+	case PHASE_HOLD:
+		if (t_s - sec->phase_start_s >= FLOOD_HOLD_S)
+			sec->phase = PHASE_BACK;
+		break;
+	case PHASE_BACK:
+		sec->load -= FLOOD_BACK_PER_S * dt_s;
+		if (sec->load <= 1.0) {
+			sec->load = 1.0;
+			sec->phase = PHASE_DONE;
+			sec->recovered_t_ms = t_ms_at(sc, t_s);
+		}
+		break;
+	default: break;
+	}
+}
+
+/* Weep scenario: the gas load of a tray section against run time. */
+static double weep_load(double t_s)
+{
+	if (t_s < WEEP_FALL_FROM_S || t_s >= WEEP_RISE_TO_S)
+		return 1.0;
+	if (t_s < WEEP_FALL_TO_S)
+		return 1.0 - (1.0 - WEEP_LOAD_MIN) * (t_s - WEEP_FALL_FROM_S) /
+				     (WEEP_FALL_TO_S - WEEP_FALL_FROM_S);
+	if (t_s < WEEP_RISE_FROM_S)
+		return WEEP_LOAD_MIN;
+	return WEEP_LOAD_MIN + (1.0 - WEEP_LOAD_MIN) * (t_s - WEEP_RISE_FROM_S) /
+				       (WEEP_RISE_TO_S - WEEP_RISE_FROM_S);
+}
+
+static void set_load(struct scenario *sc, unsigned si, double t_s, double dt_s)
+{
+	struct scenario_section *sec = &sc->sec[si];
+	enum section_type type = sc->cfg->sections[si].geom.type;
+	if (sc->opt.kind == SCENARIO_FLOOD && (type == SECTION_TRAY || type == SECTION_PACKED)) {
+		flood_load(sc, si, t_s, dt_s);
+	} else if (sc->opt.kind == SCENARIO_WEEP && type == SECTION_TRAY) {
+		sec->load = weep_load(t_s);
+		if (t_s >= WEEP_RISE_TO_S && sec->recovered_t_ms == SCENARIO_T_NONE)
+			sec->recovered_t_ms = t_ms_at(sc, t_s);
+	}
+	if (sec->load > sec->peak_load)
+		sec->peak_load = sec->load;
+}
+
+static void note_events(struct scenario *sc, unsigned si, double t_s)
+{
+	struct scenario_section *sec = &sc->sec[si];
+	double fp = sec->res.v[RF_FLOOD_PCT];
+	double wp = sec->res.v[RF_WEEP_PCT];
+	if (isfinite(fp) && fp > sec->peak_flood_pct)
+		sec->peak_flood_pct = fp;
+	if (isfinite(fp) && fp >= 100.0 && sec->flood_t_ms == SCENARIO_T_NONE) {
+		sec->flood_t_ms = t_ms_at(sc, t_s);
+		sec->flood_basis = sec->res.basis;
+	}
+	if (!isfinite(wp))
+		return;
+	if (wp < sec->min_weep_pct)
+		sec->min_weep_pct = wp;
+	if (wp < 100.0 && sec->weep_below_t_ms == SCENARIO_T_NONE)
+		sec->weep_below_t_ms = t_ms_at(sc, t_s);
+	if (wp < 100.0)
+		sec->weep_last_below_t_ms = t_ms_at(sc, t_s);
+}
+
+/* Advances section si by one row: load, drifts, model, plant DP. */
+static void step_section(struct scenario *sc, unsigned si, double t_s, double dt_s,
+			 struct section_point *p)
+{
+	struct scenario_section *sec = &sc->sec[si];
+	const struct section_cfg *s = &sc->cfg->sections[si];
+	for (int k = 0; k < SIGNAL_COUNT; k++) {
+		const struct signal_noise *nz = &noise_of[k];
+		double a = exp(-dt_s / nz->drift_tau_s);
+		double g = rng_gauss(sc);
+		sec->drift[k] = a * sec->drift[k] + nz->drift_sd * sqrt(1.0 - a * a) * g;
+	}
+	if (!sec->simulated)
+		return;
+	set_load(sc, si, t_s, dt_s);
+	true_point(sec, p);
+	section_eval(&s->geom, &s->props, p, &sec->res);
+	sec->dp_true_pa = plant_dp(sc, si, p, &sec->dp_cv);
+	note_events(sc, si, t_s);
+}
+
+/* ------------------------------------------------------------------ init */
+
+static void init_section_state(struct scenario_section *sec)
+{
+	memset(sec, 0, sizeof(*sec));
+	for (int k = 0; k < SIGNAL_COUNT; k++)
+		sec->nominal_si[k] = NAN;
+	sec->load = 1.0;
+	sec->phase = PHASE_STEADY;
+	sec->dp_factor = DP_PLANT_FACTOR;
+	sec->dp_true_pa = NAN;
+	sec->dp_cv = DP_CV;
+	result_clear(&sec->res);
+	sec->flood_t_ms = sec->peak_t_ms = sec->recovered_t_ms = SCENARIO_T_NONE;
+	sec->weep_below_t_ms = sec->weep_last_below_t_ms = SCENARIO_T_NONE;
+	sec->peak_flood_pct = -INFINITY;
+	sec->min_weep_pct = INFINITY;
+	sec->peak_load = 1.0;
+}
+
+/* Evaluates the design point once: the DP reference values. */
+static void design_dp(struct scenario *sc, unsigned si)
+{
+	struct scenario_section *sec = &sc->sec[si];
+	const struct section_cfg *s = &sc->cfg->sections[si];
+	struct section_point p;
+	true_point(sec, &p);
+	section_eval(&s->geom, &s->props, &p, &sec->res);
+	sec->f_factor_nominal_pa05 = sec->res.v[RF_F_FACTOR];
+	sec->dp_model_missing = s->geom.type != SECTION_BUBBLE &&
+				(s->geom.type == SECTION_SPRAY ||
+				 !isfinite(sec->res.v[RF_DP_MODEL_PA]));
+	double cv;
+	sec->dp_design_pa = plant_dp(sc, si, &p, &cv);
+	result_clear(&sec->res);
+}
+
+/* Which tag each polled column reads: the first section wiring it. */
+static void map_tags(struct scenario *sc)
+{
+	const struct fg_config *cfg = sc->cfg;
+	for (unsigned i = 0; i < cfg->tag_count; i++) {
+		struct scenario_tag *t = &sc->tag[i];
+		memset(t, 0, sizeof(*t));
+		t->polled = cfg->tags[i].source_index >= 0;
+		t->section_index = -1;
+		t->signal = -1;
+		t->last_value = NAN;
+		t->first_clip_t_ms = SCENARIO_T_NONE;
+	}
+	for (unsigned si = cfg->section_count; si-- > 0;)
+		for (int k = 0; k < SIGNAL_COUNT; k++) {
+			int ti = cfg->sections[si].signal[k];
+			if (ti >= 0 && sc->sec[si].simulated) {
+				sc->tag[ti].section_index = (int)si;
+				sc->tag[ti].signal = k;
+			}
+		}
+}
+
+/* Picks the section and tag the frozen and gap upsets act on. */
+static int pick_upset(struct scenario *sc, FILE *errf)
+{
+	const struct fg_config *cfg = sc->cfg;
+	sc->upset_section = sc->upset_tag = -1;
+	if (sc->opt.kind == SCENARIO_FROZEN) {
+		for (int pass = 0; pass < 2 && sc->upset_tag < 0; pass++)
+			for (unsigned si = 0; si < cfg->section_count && sc->upset_tag < 0; si++) {
+				const struct section_cfg *s = &cfg->sections[si];
+				int ti = s->signal[SIGNAL_DP];
+				if (ti >= 0 && sc->tag[ti].polled && sc->sec[si].simulated &&
+				    (pass == 1 || s->geom.type == SECTION_PACKED)) {
+					sc->upset_section = (int)si;
+					sc->upset_tag = ti;
+				}
+			}
+		double mid = sc->span_s / 2.0, half = fmin(1800.0, sc->span_s / 6.0);
+		sc->window_from_s = mid - half;
+		sc->window_to_s = mid + half;
+	} else if (sc->opt.kind == SCENARIO_GAP) {
+		for (unsigned si = 0; si < cfg->section_count && sc->upset_tag < 0; si++) {
+			int ti = cfg->sections[si].signal[SIGNAL_GAS_FLOW];
+			if (ti >= 0 && sc->tag[ti].polled && sc->sec[si].simulated) {
+				sc->upset_section = (int)si;
+				sc->upset_tag = ti;
+			}
+		}
+		sc->window_from_s = GAP_ALL_AT * sc->span_s;
+		sc->window_to_s = sc->window_from_s + GAP_ALL_S;
+		sc->window2_from_s = GAP_ONE_AT * sc->span_s;
+		sc->window2_to_s = sc->window2_from_s + GAP_ONE_S;
+	} else {
+		return 0;
+	}
+	if (sc->upset_tag < 0) {
+		fprintf(errf, "%s: scenario %s: no simulated section has a polled %s tag\n",
+			cfg->path, scenario_name(sc->opt.kind),
+			sc->opt.kind == SCENARIO_FROZEN ? "dp" : "gas_flow");
+		return -EINVAL;
+	}
+	return 0;
+}
+
+static int check_span(struct scenario *sc, FILE *errf)
+{
+	const struct scenario_opts *o = &sc->opt;
+	sc->span_s = (isfinite(o->hours) && o->hours > 0.0 ? o->hours
+							   : scenario_default_hours(o->kind)) * 3600.0;
+	sc->period_s = isfinite(o->period_s) && o->period_s > 0.0 ? o->period_s
+								 : sc->cfg->monitor.period_s;
+	double period_ms = round(sc->period_s * 1000.0);
+	if (!(period_ms >= 1.0)) {
+		fprintf(errf, "simulate: period %g s is below 1 ms\n", sc->period_s);
+		return -EINVAL;
+	}
+	sc->period_s = period_ms / 1000.0;
+	double rows = round(sc->span_s / sc->period_s);
+	if (!(rows >= 1.0) || rows > (double)ROWS_MAX) {
+		fprintf(errf, "simulate: %g h at %g s gives %.0f rows (1..%llu allowed)\n",
+			sc->span_s / 3600.0, sc->period_s, rows, ROWS_MAX);
+		return -EINVAL;
+	}
+	if ((o->kind == SCENARIO_GAP || o->kind == SCENARIO_FROZEN) && sc->span_s < 3600.0) {
+		fprintf(errf, "simulate: scenario %s needs a span of at least 1 h\n",
+			scenario_name(o->kind));
+		return -EINVAL;
+	}
+	sc->row_count = (uint64_t)rows;
+	return 0;
+}
+
+int scenario_init(struct scenario *sc, const struct fg_config *cfg,
+		  const struct scenario_opts *opt, FILE *errf)
+{
+	assert(sc != NULL);
+	assert(cfg != NULL);
+	assert(opt != NULL);
+	assert(errf != NULL);
+	assert(opt->kind >= 0);
+	assert(opt->kind < SCENARIO_KIND_COUNT);
+	memset(sc, 0, offsetof(struct scenario, sec));
+	sc->cfg = cfg;
+	sc->opt = *opt;
+	/* Seed through one splitmix64 step so that seeds 1, 2, 3 start far apart. */
+	sc->rng = opt->seed;
+	sc->rng = rng_next(sc);
+	if (check_span(sc, errf) != 0)
+		return -EINVAL;
+	int problems = 0;
+	for (unsigned si = 0; si < cfg->section_count; si++) {
+		init_section_state(&sc->sec[si]);
+		problems += design_point(sc, si, errf);
+	}
+	if (problems)
+		return -EINVAL;
+	for (unsigned si = 0; si < cfg->section_count; si++)
+		design_dp(sc, si);
+	map_tags(sc);
+	return pick_upset(sc, errf);
+}
+
+/* ------------------------------------------------------------------ rows */
+
+/* One transmitter reading of tag ti: SI value with noise, in the tag's unit,
+ * saturated at its range. Draws exactly one deviate. */
+static double read_tag(struct scenario *sc, unsigned ti, const struct section_point *pts,
+		       double t_s)
+{
+	const struct fg_config *cfg = sc->cfg;
+	const struct tag_cfg *tc = &cfg->tags[ti];
+	struct scenario_tag *t = &sc->tag[ti];
+	double g = rng_gauss(sc);
+	double v;
+	if (t->section_index >= 0) {
+		unsigned si = (unsigned)t->section_index;
+		const struct scenario_section *sec = &sc->sec[si];
+		const struct section_point *p = &pts[si];
+		int k = t->signal;
+		double x;
+		switch (k) {
+		case SIGNAL_GAS_FLOW: x = p->gas_kgs; break;
+		case SIGNAL_LIQUID_FLOW: x = p->liquid_kgs; break;
+		case SIGNAL_LIQUID_OUT_FLOW:
+			x = sec->nominal_si[k] * (1.0 + sec->drift[k]);
+			break;
+		case SIGNAL_DP: x = sec->dp_true_pa; break;
+		case SIGNAL_PRESSURE: x = p->pressure_pa; break;
+		case SIGNAL_TEMPERATURE: x = p->temperature_k; break;
+		case SIGNAL_LEVEL: x = p->level_m; break;
+		default: x = point_gas_density(&cfg->sections[si], p); break;
+		}
+		double sd = k == SIGNAL_DP ? sec->dp_cv : noise_of[k].noise_sd;
+		x = noise_of[k].absolute ? x + sd * g : x * (1.0 + sd * g);
+		v = scenario_signal_to_tag(cfg, &cfg->sections[si], (enum section_signal)k, p, x);
+	} else {
+		/* Not read by any section: its own design value, drifting a little. */
+		double x = config_tag_to_si(tc, tag_design_value(tc));
+		t->drift = 0.999 * t->drift + 0.003 * sqrt(1.0 - 0.999 * 0.999) * g;
+		v = tc->unit != NULL ? units_from_si(tc->unit, x * (1.0 + t->drift)) : x;
+	}
+	if (isfinite(v) && isfinite(tc->min) && v < tc->min)
+		v = tc->min;
+	else if (isfinite(v) && isfinite(tc->max) && v > tc->max)
+		v = tc->max;
+	else
+		return v;
+	if (t->clip_count++ == 0)
+		t->first_clip_t_ms = t_ms_at(sc, t_s);
+	return v;
+}
+
+/* Frozen and gap upsets, laid over the values after all draws. */
+static void apply_upsets(struct scenario *sc, double t_s, double *values)
+{
+	const struct fg_config *cfg = sc->cfg;
+	bool in1 = t_s >= sc->window_from_s && t_s < sc->window_to_s;
+	bool in2 = t_s >= sc->window2_from_s && t_s < sc->window2_to_s;
+	if (sc->opt.kind == SCENARIO_FROZEN && in1) {
+		assert(sc->upset_tag >= 0);
+		double last = sc->tag[sc->upset_tag].last_value;
+		if (isfinite(last))
+			values[sc->upset_tag] = last;
+	} else if (sc->opt.kind == SCENARIO_GAP && in1) {
+		for (unsigned i = 0; i < cfg->tag_count; i++)
+			values[i] = NAN;
+	} else if (sc->opt.kind == SCENARIO_GAP && in2) {
+		assert(sc->upset_tag >= 0);
+		values[sc->upset_tag] = NAN;
+	}
+}
+
+bool scenario_next(struct scenario *sc, int64_t *t_ms, double *values)
+{
+	assert(sc != NULL);
+	assert(t_ms != NULL);
+	assert(values != NULL);
+	if (sc->row_index >= sc->row_count)
+		return false;
+	const struct fg_config *cfg = sc->cfg;
+	double t_s = (double)sc->row_index * sc->period_s;
+	double dt_s = sc->row_index == 0 ? 0.0 : sc->period_s;
+	struct section_point pts[FG_SECTIONS_MAX];
+	for (unsigned si = 0; si < cfg->section_count; si++)
+		step_section(sc, si, t_s, dt_s, &pts[si]);
+	for (unsigned i = 0; i < cfg->tag_count; i++)
+		values[i] = sc->tag[i].polled ? read_tag(sc, i, pts, t_s) : NAN;
+	apply_upsets(sc, t_s, values);
+	for (unsigned i = 0; i < cfg->tag_count; i++)
+		if (isfinite(values[i]))
+			sc->tag[i].last_value = values[i];
+	*t_ms = t_ms_at(sc, t_s);
+	sc->row_index++;
+	return true;
+}
+
+/* ---------------------------------------------------------------- output */
+
+int scenario_write_header(const struct scenario *sc, FILE *out)
+{
+	assert(sc != NULL);
+	assert(out != NULL);
+	fputs("time", out);
+	for (unsigned i = 0; i < sc->cfg->tag_count; i++)
+		if (sc->tag[i].polled)
+			fprintf(out, ",%s", sc->cfg->tags[i].name);
+	fputc('\n', out);
+	return ferror(out) ? -EIO : 0;
+}
+
+int scenario_write_row(const struct scenario *sc, FILE *out, int64_t t_ms, const double *values)
+{
+	assert(sc != NULL);
+	assert(out != NULL);
+	assert(values != NULL);
+	char ts[TIMEFMT_BUF_SIZE];
+	int n = timefmt_format(t_ms, ts, sizeof(ts));
+	if (n < 0)
+		return -ERANGE;
+	fputs(ts, out);
+	for (unsigned i = 0; i < sc->cfg->tag_count; i++) {
+		if (!sc->tag[i].polled)
+			continue;
+		if (isfinite(values[i]))
+			fprintf(out, ",%.6g", values[i]);
+		else
+			fputc(',', out);
+	}
+	fputc('\n', out);
+	return ferror(out) ? -EIO : 0;
+}
+
+int scenario_run(struct scenario *sc, FILE *out)
+{
+	assert(sc != NULL);
+	assert(out != NULL);
+	double values[FG_TAGS_MAX];
+	int64_t t_ms;
+	int rc = scenario_write_header(sc, out);
+	while (rc == 0 && scenario_next(sc, &t_ms, values))
+		rc = scenario_write_row(sc, out, t_ms, values);
+	if (rc == 0 && fflush(out) != 0)
+		rc = -EIO;
+	return rc;
+}
+
+/* Formats t_ms, or "never" for SCENARIO_T_NONE. Returns buf. */
+static const char *when(int64_t t_ms, char *buf, size_t buf_size)
+{
+	if (t_ms == SCENARIO_T_NONE || timefmt_format(t_ms, buf, buf_size) < 0)
+		snprintf(buf, buf_size, "never");
+	return buf;
+}
+
+static void summary_flood(const struct scenario *sc, FILE *f)
+{
+	char a[TIMEFMT_BUF_SIZE], b[TIMEFMT_BUF_SIZE], c[TIMEFMT_BUF_SIZE];
+	fprintf(f, "; gas load +25 %%/h from %s",
+		when(t_ms_at(sc, FLOOD_RAMP_START_S), a, sizeof(a)));
+	for (unsigned si = 0; si < sc->cfg->section_count; si++) {
+		const struct scenario_section *sec = &sc->sec[si];
+		enum section_type type = sc->cfg->sections[si].geom.type;
+		if (type != SECTION_TRAY && type != SECTION_PACKED)
+			continue;
+		fprintf(f, "; %s flood point (model flood_pct 100 %%, %s) at %s, ramp stopped at %s "
+			   "(load %.0f %%, flood_pct %.0f %%), back at design at %s",
+			sc->cfg->sections[si].name, flood_basis_name(sec->flood_basis),
+			when(sec->flood_t_ms, a, sizeof(a)),
+			when(sec->peak_t_ms, b, sizeof(b)), 100.0 * sec->peak_load,
+			sec->peak_flood_pct, when(sec->recovered_t_ms, c, sizeof(c)));
+	}
+}
+
+static void summary_weep(const struct scenario *sc, FILE *f)
+{
+	char a[TIMEFMT_BUF_SIZE], b[TIMEFMT_BUF_SIZE];
+	fprintf(f, "; tray gas load falls from %s to 35 %% at %s",
+		when(t_ms_at(sc, WEEP_FALL_FROM_S), a, sizeof(a)),
+		when(t_ms_at(sc, WEEP_FALL_TO_S), b, sizeof(b)));
+	fprintf(f, ", rises from %s to design at %s",
+		when(t_ms_at(sc, WEEP_RISE_FROM_S), a, sizeof(a)),
+		when(t_ms_at(sc, WEEP_RISE_TO_S), b, sizeof(b)));
+	for (unsigned si = 0; si < sc->cfg->section_count; si++) {
+		const struct scenario_section *sec = &sc->sec[si];
+		if (sc->cfg->sections[si].geom.type != SECTION_TRAY)
+			continue;
+		fprintf(f, "; %s model weep_pct below 100 %% from %s to %s (lowest %.0f %%)",
+			sc->cfg->sections[si].name, when(sec->weep_below_t_ms, a, sizeof(a)),
+			when(sec->weep_last_below_t_ms, b, sizeof(b)), sec->min_weep_pct);
+	}
+}
+
+/* Lines that explain where the data differ from what the config suggests. */
+static void scenario_notes(const struct scenario *sc, FILE *f)
+{
+	const struct fg_config *cfg = sc->cfg;
+	char a[TIMEFMT_BUF_SIZE];
+	for (unsigned si = 0; si < cfg->section_count; si++) {
+		const struct section_cfg *s = &cfg->sections[si];
+		const struct scenario_section *sec = &sc->sec[si];
+		int ti = s->signal[SIGNAL_DP];
+		if (ti < 0 || !sc->tag[ti].polled)
+			continue;
+		const struct tag_cfg *t = &cfg->tags[ti];
+		const char *unit = t->unit != NULL ? t->unit->name : "";
+		if (sec->dp_model_missing)
+			fprintf(f, "simulate: note: %s: no model DP; %s is its nominal x "
+				   "(F-factor / design F-factor)^2\n", s->name, t->name);
+		struct section_point p;
+		true_point(sec, &p);
+		double design = scenario_signal_to_tag(cfg, s, SIGNAL_DP, &p, sec->dp_design_pa);
+		if (isfinite(t->nominal) && t->nominal > 0.0 && isfinite(design) &&
+		    fabs(design / t->nominal - 1.0) > 0.3)
+			fprintf(f, "simulate: note: %s: the design-point DP (model x %.2g) is %.4g %s; "
+				   "the tag's nominal says %.4g %s\n", t->name, sec->dp_factor, design,
+				unit, t->nominal, unit);
+	}
+	for (unsigned i = 0; i < cfg->tag_count; i++) {
+		const struct scenario_tag *t = &sc->tag[i];
+		if (t->clip_count == 0)
+			continue;
+		fprintf(f, "simulate: note: %s saturated at its range (%g..%g %s) in %lu rows, "
+			   "first at %s\n", cfg->tags[i].name, cfg->tags[i].min, cfg->tags[i].max,
+			cfg->tags[i].unit != NULL ? cfg->tags[i].unit->name : "", t->clip_count,
+			when(t->first_clip_t_ms, a, sizeof(a)));
+	}
+}
+
+void scenario_summary(const struct scenario *sc, FILE *f)
+{
+	assert(sc != NULL);
+	assert(f != NULL);
+	char a[TIMEFMT_BUF_SIZE], b[TIMEFMT_BUF_SIZE];
+	fprintf(f, "simulate %s: seed %llu, %llu rows every %g s from %s", scenario_name(sc->opt.kind),
+		(unsigned long long)sc->opt.seed, (unsigned long long)sc->row_count, sc->period_s,
+		when(sc->opt.start_t_ms, a, sizeof(a)));
+	const char *upset_tag = sc->upset_tag >= 0 ? sc->cfg->tags[sc->upset_tag].name : "";
+	switch (sc->opt.kind) {
+	case SCENARIO_FLOOD: summary_flood(sc, f); break;
+	case SCENARIO_WEEP: summary_weep(sc, f); break;
+	case SCENARIO_FROZEN:
+		fprintf(f, "; %s frozen from %s to %s", upset_tag,
+			when(t_ms_at(sc, sc->window_from_s), a, sizeof(a)),
+			when(t_ms_at(sc, sc->window_to_s), b, sizeof(b)));
+		break;
+	case SCENARIO_GAP:
+		fprintf(f, "; every tag missing from %s to %s",
+			when(t_ms_at(sc, sc->window_from_s), a, sizeof(a)),
+			when(t_ms_at(sc, sc->window_to_s), b, sizeof(b)));
+		fprintf(f, "; %s missing from %s to %s", upset_tag,
+			when(t_ms_at(sc, sc->window2_from_s), a, sizeof(a)),
+			when(t_ms_at(sc, sc->window2_to_s), b, sizeof(b)));
+		break;
+	default: fprintf(f, "; design point with noise, no upset"); break;
+	}
+	fputc('\n', f);
+	scenario_notes(sc, f);
+}

@@ -1,0 +1,31 @@
+#!/bin/sh
+# make-demo-data.sh - regenerates the demo data sets in replay/data/ from
+# configs/demo.ini with `floodgauge simulate` (see replay/data/README.md).
+#
+#   sh tools/make-demo-data.sh          (from the repository root)
+#
+# FG_BIN names the floodgauge binary (default build/floodgauge, built with
+# `make bin` when missing). Every set uses seed 1 and 2 s rows; the summary
+# line of each run (flood point, weep times, windows) goes to
+# replay/data/README.md by hand when the models change.
+set -eu
+
+: "${FG_BIN:=build/floodgauge}"
+CONFIG=configs/demo.ini
+OUT=replay/data
+SEED=1
+PERIOD_S=2
+
+if [ ! -x "$FG_BIN" ]; then
+	make --no-print-directory bin
+fi
+if ! "$FG_BIN" simulate --help >/dev/null 2>&1; then
+	echo "make-demo-data: $FG_BIN has no working 'simulate' command" >&2
+	exit 1
+fi
+mkdir -p "$OUT"
+for scenario in steady flood weep frozen gap; do
+	"$FG_BIN" simulate -c "$CONFIG" --scenario "$scenario" --seed "$SEED" \
+		--period-s "$PERIOD_S" --out "$OUT/demo-$scenario.csv"
+done
+ls -l "$OUT"/demo-*.csv
