@@ -1,0 +1,165 @@
+"""test_replay.py - `floodgauge replay` and `simulate` on the demo plant.
+
+The upset times come from the scenario generator itself (its stderr summary
+names the model flood point), so the test follows the models when they move.
+What is asserted is the monitor's job: the flood alarm comes before the
+injected flood point and nothing alarms in the steady hours; a frozen
+transmitter raises its diagnostic alarm and no process alarm; weeping raises
+the low alarm; bad files end with a message and the right exit code; two runs
+give byte-identical outputs.
+"""
+import json
+import os
+import re
+import shutil
+import sys
+import tempfile
+
+sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "support"))
+from tap import ok, done, fg  # noqa: E402
+
+DEMO = "configs/demo.ini"
+tmp = tempfile.mkdtemp(prefix="fg-replay-")
+
+
+def iso(t):
+    return t  # ISO 8601 strings of one format compare in time order
+
+
+def replay(data, out, *extra):
+    rc, so, se = fg("replay", "-c", DEMO, data, "--out", out, *extra)
+    events = []
+    path = os.path.join(out, "events.jsonl")
+    if os.path.exists(path):
+        with open(path) as f:
+            events = [json.loads(line) for line in f if line.strip()]
+    return rc, so, se, events
+
+
+def simulate(scenario, out):
+    rc, so, se = fg("simulate", "-c", DEMO, "--scenario", scenario, "--seed", "1",
+                    "--period-s", "2", "--out", out)
+    return rc, se
+
+
+# --- flood: alarm before the injected flood point, none in the steady hours
+csv = os.path.join(tmp, "flood.csv")
+rc, summary = simulate("flood", csv)
+ok(rc == 0, "simulate flood runs", summary)
+m = re.search(r"C401 flood point \(model flood_pct 100 %[^)]*\) at (\S+?Z)", summary)
+ok(m is not None, "simulate names the C401 flood point", summary)
+ramp = re.search(r"gas load \+25 %/h from (\S+?Z)", summary)
+ok(ramp is not None, "simulate names the start of the ramp", summary)
+if m and ramp:
+    flood_point, ramp_start = m.group(1), ramp.group(1)
+    out = os.path.join(tmp, "flood")
+    rc, so, se, ev = replay(csv, out)
+    ok(rc == 0, "replay of the flood set exits 0", se)
+    raised = [e for e in ev if e["alarm"] == "C401_FLOOD_H" and e["state"] == "UNACK"]
+    ok(len(raised) >= 1, "C401 flood alarm raised", ev)
+    if raised:
+        ok(raised[0]["t"] < flood_point,
+           f"C401 flood alarm {raised[0]['t']} before the flood point {flood_point}")
+    ok(all(e["t"] >= ramp_start for e in ev), "no alarm in the steady hours before the ramp",
+       [e for e in ev if e["t"] < ramp_start])
+    ok(not any(e["kind"] == "diagnostic" for e in ev), "no diagnostic alarm on healthy data")
+    for name in ("results.csv", "events.jsonl", "report.html"):
+        ok(os.path.getsize(os.path.join(out, name)) > 0, f"{name} written")
+    ok("alarms raised:" in so and "first alarm per section:" in so and "advisory" in so,
+       "summary printed with the caution", so)
+    with open(os.path.join(out, "results.csv")) as f:
+        header = f.readline().strip().split(",")
+        first = f.readline().strip().split(",")
+    ok(header[0] == "time" and "C401.flood_index" in header and "R404.regime" in header,
+       "results.csv header has SECTION.FIELD columns")
+    ok(first[header.index("C401.gas_holdup_frac")] == "", "not-applicable fields are empty")
+
+    # the same run twice: byte-identical outputs
+    out2 = os.path.join(tmp, "flood2")
+    replay(csv, out2)
+    for name in ("results.csv", "events.jsonl", "report.html"):
+        a = open(os.path.join(out, name), "rb").read()
+        b = open(os.path.join(out2, name), "rb").read()
+        ok(a == b, f"{name} is byte-identical on a second run")
+
+    # --from / --to keep only the window
+    out3 = os.path.join(tmp, "window")
+    rc, so, se, ev = replay(csv, out3, "--from", "2026-03-02T06:00:00Z",
+                            "--to", "2026-03-02T07:59:58Z")
+    ok(rc == 0 and "rows used 3600" in so and ev == [], "--from/--to limit the rows", so + se)
+
+# --- steady: nothing at all
+csv = os.path.join(tmp, "steady.csv")
+simulate("steady", csv)
+rc, so, se, ev = replay(csv, os.path.join(tmp, "steady"))
+ok(rc == 0 and ev == [], "steady hours raise no alarm", ev)
+
+# --- frozen transmitter: diagnostic, no process alarm
+csv = os.path.join(tmp, "frozen.csv")
+rc, summary = simulate("frozen", csv)
+fm = re.search(r"C402_PDI frozen from (\S+?Z) to (\S+?Z)", summary)
+rc, so, se, ev = replay(csv, os.path.join(tmp, "frozen"))
+diag = [e for e in ev if e["alarm"] == "C402_DIAG" and e["state"] == "UNACK"]
+ok(len(diag) == 1 and diag[0].get("reason") == "frozen", "frozen DP raises C402_DIAG (frozen)",
+   ev)
+ok(not any(e["section"] == "C402" and e["kind"] != "diagnostic" and e["state"] == "UNACK"
+           for e in ev), "frozen DP raises no process alarm", ev)
+if fm and diag:
+    # frozen_s = 120 and on_delay_s = 10 in the demo config
+    ok(fm.group(1) < diag[0]["t"] < fm.group(2), "diagnostic inside the frozen window",
+       (fm.groups(), diag[0]["t"]))
+
+# --- weeping: the low alarm
+csv = os.path.join(tmp, "weep.csv")
+rc, summary = simulate("weep", csv)
+wm = re.search(r"weep_pct below 100 % from (\S+?Z)", summary)
+rc, so, se, ev = replay(csv, os.path.join(tmp, "weep"))
+weep = [e for e in ev if e["alarm"] == "C401_WEEP_L" and e["state"] == "UNACK"]
+ok(len(weep) >= 1, "weeping raises C401_WEEP_L", ev)
+if wm and weep:
+    # the low alarm's setpoint is 110 %: it warns before the model says "weeping"
+    ok(weep[0]["t"] < wm.group(1), "weep alarm before weep_pct falls below 100 %",
+       (weep[0]["t"], wm.group(1)))
+ok(not any(e["alarm"].endswith("FLOOD_H") for e in ev), "no flood alarm while weeping")
+
+# --- communication gap: diagnostics only
+csv = os.path.join(tmp, "gap.csv")
+simulate("gap", csv)
+rc, so, se, ev = replay(csv, os.path.join(tmp, "gap"))
+stale = [e for e in ev if e["kind"] == "diagnostic" and e["state"] == "UNACK"]
+ok(len(stale) >= 1 and all(e.get("reason") == "stale" for e in stale),
+   "the gap raises stale diagnostics", ev)
+ok(all(e["kind"] == "diagnostic" for e in ev), "the gap raises no process alarm", ev)
+
+# --- bad files
+hdr = open("replay/data/demo-steady.csv").readline().strip()
+row = open("replay/data/demo-steady.csv").readlines()[1].strip()
+ncol = len(hdr.split(","))
+bad = {
+    "truncated": hdr + "\n" + row + "\n" + ",".join(row.split(",")[:5]) + "\n",
+    "text": hdr + "\n" + row + "\n" + row.replace("2026-03-02T06:00:00Z", "2026-03-02T06:00:02Z")
+    .replace(row.split(",")[3], "abc", 1) + "\n",
+    "unsorted": hdr + "\n" + row.replace("06:00:00Z", "06:00:10Z") + "\n" + row + "\n",
+}
+for name, text in bad.items():
+    p = os.path.join(tmp, name + ".csv")
+    open(p, "w").write(text)
+    rc, so, se, ev = replay(p, os.path.join(tmp, "bad-" + name))
+    ok(rc == 0 and re.search(re.escape(p) + r":3: \w+ row skipped", se) is not None,
+       f"{name} row: warned with its line number and skipped", se)
+cases = {
+    "empty": ("", 2, "empty file"),
+    "header only": (hdr + "\n", 2, "no data rows"),
+    "missing column": (hdr.replace(",C401_PDI", ",C401_PDX") + "\n" + row + "\n", 2, "C401_PDI"),
+}
+for name, (text, want, msg) in cases.items():
+    p = os.path.join(tmp, name.replace(" ", "_") + ".csv")
+    open(p, "w").write(text)
+    rc, so, se, ev = replay(p, os.path.join(tmp, "bad-" + name.replace(" ", "_")))
+    ok(rc == want and msg in se, f"{name}: exit {want} with '{msg}'", (rc, se))
+rc, so, se = fg("replay", "-c", DEMO, os.path.join(tmp, "nonexistent.csv"),
+                "--out", os.path.join(tmp, "x"))
+ok(rc == 2 and "nonexistent.csv" in se, "missing file: exit 2 naming it", se)
+
+shutil.rmtree(tmp)
+done()
