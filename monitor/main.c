@@ -13,6 +13,8 @@ struct command {
 };
 
 static const struct command commands[] = {
+	{"run", cmd_run, "the monitor: poll the plant, evaluate, alarm, publish (a daemon)"},
+	{"feed", cmd_feed, "serve recorded data as Modbus registers: a stand-in for the plant"},
 	{"check", cmd_check, "validate a config file and say what is wrong"},
 	{"rate", cmd_rate, "evaluate one operating point of a section and print every result"},
 	{"replay", cmd_replay, "run the engine over recorded data; write results, events, report"},

@@ -62,7 +62,7 @@ for t in tests/ref/*.py; do
 	run_one "${t#tests/}" "$PY" "$t"
 done
 
-for t in tests/cli/*.sh tests/cli/*.py tests/integration/*.sh tests/integration/*.py; do
+for t in tests/cli/*.sh tests/cli/test_*.py tests/integration/*.sh tests/integration/test_*.py; do
 	[ -f "$t" ] || continue
 	case "$t" in
 	*.py) run_one "${t#tests/}" "$PY" "$t" ;;

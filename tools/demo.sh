@@ -38,7 +38,9 @@ if command -v mosquitto >/dev/null 2>&1 || [ -x /usr/sbin/mosquitto ]; then
 		printf 'listener %s 127.0.0.1\nallow_anonymous true\npersistence false\n' \
 			$MQTT_PORT >"$DIR/mosquitto.conf"
 		MOSQ=$(command -v mosquitto || echo /usr/sbin/mosquitto)
-		"$MOSQ" -c "$DIR/mosquitto.conf" >"$DIR/mosquitto.log" 2>&1 &
+		# Its own session: Ctrl-C must reach the daemon, not the broker it
+		# still has to say "offline" to.
+		setsid "$MOSQ" -c "$DIR/mosquitto.conf" >"$DIR/mosquitto.log" 2>&1 &
 		broker_pid=$!
 		for _ in $(seq 50); do port_busy $MQTT_PORT && break; sleep 0.1; done
 		echo "demo: mosquitto on 127.0.0.1:$MQTT_PORT; watch it with"
@@ -50,7 +52,7 @@ else
 	CFG=$DIR/demo-nomqtt.ini
 fi
 
-"$FG" feed -c "$CFG" "$DATA" --speed "$SPEED" >"$DIR/feed.log" 2>&1 &
+setsid "$FG" feed -c "$CFG" "$DATA" --speed "$SPEED" >"$DIR/feed.log" 2>&1 &
 feed_pid=$!
 for _ in $(seq 50); do port_busy 15020 && break; sleep 0.1; done
 echo "demo: plant stand-in serving $DATA at ${SPEED}x on 127.0.0.1:15020"

@@ -1,0 +1,44 @@
+/*
+ * daemon.h - `floodgauge run`: the live loop.
+ *
+ * A flat list of steps per period, scheduled on CLOCK_MONOTONIC against the
+ * start time (so hours of running do not drift): poll the plant, step the
+ * engine at the wall-clock time of the poll, take the events (log, events
+ * file, MQTT alarm topics, state file), act on MQTT commands, publish the
+ * section states, update the Modbus export, draw the live view, then act on
+ * the signal flags: SIGTERM/SIGINT finish the cycle, publish offline, save
+ * the alarm state and exit 0; SIGHUP reloads the config (kept when invalid).
+ */
+#ifndef DAEMON_H
+#define DAEMON_H
+
+#include <stdbool.h>
+#include <stdio.h>
+
+#include "engine.h"
+#include "export.h"
+#include "plant.h"
+#include "publish.h"
+
+struct daemon {
+	const char *cfg_path;
+	bool once;                 /* one cycle, then exit */
+	bool view;                 /* stdout is a terminal: live view */
+	struct fg_config *cfg;
+	struct engine *eng;
+	struct plant plant;
+	struct export exp;
+	struct publisher pub;
+	FILE *events;
+	bool state_dirty;
+	int64_t start_mono_ms;
+	uint64_t cycle;
+	unsigned overruns;
+	int64_t last_state_pub_mono_ms;
+	double values[FG_TAGS_MAX];
+	enum tag_status status[FG_TAGS_MAX];
+};
+
+int daemon_main(struct daemon *d);
+
+#endif

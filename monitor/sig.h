@@ -1,0 +1,16 @@
+/*
+ * sig.h - signal flags. The handlers only set these (the only thing a
+ * handler may portably do); the loops look at them once per iteration.
+ */
+#ifndef SIG_H
+#define SIG_H
+
+#include <signal.h>
+
+extern volatile sig_atomic_t sig_stop;   /* SIGTERM or SIGINT */
+extern volatile sig_atomic_t sig_reload; /* SIGHUP */
+
+/* Installs the handlers (without SA_RESTART, so sleeps return early). */
+void sig_install(void);
+
+#endif
