@@ -21,6 +21,8 @@
 
 #include <ini.h>
 
+#include "mqttlink.h"
+
 /* libinih's line buffer in Debian's build (ini_max_line default). */
 #define CONFIG_LINE_MAX 200
 
@@ -526,8 +528,9 @@ static int mqtt_key(struct config_ctx *c, const char *key, const char *v)
 	case 4: return copy_text(c, key, v, m->username, sizeof(m->username));
 	case 5: return copy_text(c, key, v, m->password_file, sizeof(m->password_file));
 	case 6: return copy_text(c, key, v, m->ca_file, sizeof(m->ca_file));
-	case 7: return config_parse_double(c, key, v, 1.0, 3600.0, &m->keepalive_s);
-	case 8: return parse_uint(c, key, v, 1, 100000, &m->buffer_messages);
+	case 7: return config_parse_double(c, key, v, MQTTLINK_KEEPALIVE_MIN_S,
+					   MQTTLINK_KEEPALIVE_MAX_S, &m->keepalive_s);
+	case 8: return parse_uint(c, key, v, 1, MQTTLINK_BUFFER_MAX, &m->buffer_messages);
 	case 9: return config_parse_double(c, key, v, 0.0, 3600.0, &m->state_interval_s);
 	default: assert(0);
 	}

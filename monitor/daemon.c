@@ -18,6 +18,8 @@
 #include "sig.h"
 #include "timefmt.h"
 
+_Static_assert(COMMAND_SHELVE_MAX_S == ALARM_SHELVE_MAX_S, "shelve limits agree");
+
 static int64_t mono_ms(void)
 {
 	struct timespec ts;

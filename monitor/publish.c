@@ -34,7 +34,7 @@ int publish_open(struct publisher *p, const struct fg_config *cfg)
 	snprintf(lc.password_file, sizeof(lc.password_file), "%s", m->password_file);
 	snprintf(lc.ca_file, sizeof(lc.ca_file), "%s", m->ca_file);
 	snprintf(lc.topic_prefix, sizeof(lc.topic_prefix), "%s", m->topic_prefix);
-	lc.keepalive_s = (unsigned)lround(m->keepalive_s);
+	lc.keepalive_s = (unsigned)lround(m->keepalive_s); /* config: 1..3600 s */
 	lc.buffer_messages = m->buffer_messages;
 	lc.log = link_log;
 	int rc = mqttlink_open(&p->link, &lc);

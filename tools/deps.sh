@@ -7,7 +7,7 @@
 set -eu
 
 PKGS="gcc make pkg-config libmodbus-dev libpaho-mqtt-dev libinih-dev libcjson-dev \
-libcmocka-dev mosquitto mosquitto-clients python3 python3-fluids chromium"
+libcmocka-dev mosquitto mosquitto-clients openssl python3 python3-fluids chromium"
 
 missing=""
 for p in $PKGS; do
