@@ -18,7 +18,7 @@
 #include "sig.h"
 #include "timefmt.h"
 
-_Static_assert(COMMAND_SHELVE_MAX_S == ALARM_SHELVE_MAX_S, "shelve limits agree");
+_Static_assert((long)COMMAND_SHELVE_MAX_S == (long)ALARM_SHELVE_MAX_S, "shelve limits agree");
 
 static int64_t mono_ms(void)
 {
