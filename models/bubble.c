@@ -12,10 +12,6 @@
 
 #include "section.h"
 
-#ifndef M_PI
-#define M_PI 3.14159265358979323846
-#endif
-
 #define AY_BISECT_STEPS 60
 
 /* Ranges, from memory of the papers (see bubble.h). */
@@ -214,7 +210,7 @@ void bubble_eval(const struct section_geom *g, const struct fluid_state *f,
 	r->regime = bubble_regime_at(ug, u_trans);
 
 	double h0 = isfinite(p->level_m) ? p->level_m : g->bubble.clear_liquid_height_m;
-	double area_m2 = M_PI * g->diameter_m * g->diameter_m / 4.0;
+	double area_m2 = section_area_m2(g);
 	double level = bubble_expanded_level_m(h0, eps);
 	r->v[RF_EXPANDED_LEVEL_M] = level;
 	if (isfinite(eps) && eps <= 1.0)

@@ -25,10 +25,6 @@
 #include <math.h>
 #include <stddef.h>
 
-#ifndef M_PI
-#define M_PI 3.14159265358979323846
-#endif
-
 #define BISECT_MAX 200          /* hard cap; intervals collapse well before */
 #define FLOOD_U_LO_MS 1e-6      /* search range of the flood solve, m/s */
 #define FLOOD_U_HI_MS 1e3
@@ -669,7 +665,7 @@ void packed_eval(const struct section_geom *g, const struct fluid_state *f,
 	struct pe e = {.c = &g->packed.c, .f = f, .missing = 0};
 	/* The tower cross-section, computed here so this file needs only the
 	 * geometry (section_area_m2 gives the same pi d^2/4). */
-	e.area_m2 = 0.25 * M_PI * g->diameter_m * g->diameter_m;
+	e.area_m2 = section_area_m2(g);
 	e.height_m = g->packed.height_m;
 	e.gas_flux = p->gas_kgs / e.area_m2;
 	e.liq_flux = p->liquid_kgs / e.area_m2;

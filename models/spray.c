@@ -16,10 +16,6 @@
 
 #include "section.h"
 
-#ifndef M_PI
-#define M_PI 3.14159265358979323846
-#endif
-
 #define RE_LO 1.0e-12
 #define RE_HI 1.0e9
 #define BISECT_STEPS 64
@@ -194,7 +190,7 @@ void spray_eval(const struct section_geom *g, const struct fluid_state *f,
 		fg_quality_raise(&r->quality, FG_QUALITY_UNCERTAIN);
 		return;
 	}
-	double area_m2 = M_PI * g->diameter_m * g->diameter_m / 4.0;
+	double area_m2 = section_area_m2(g);
 	double ul = p->liquid_kgs / (f->rho_l_kgm3 * area_m2);
 	double h = spray_holdup_frac(ul, vt, ug, &r->extrap);
 	r->v[RF_LIQUID_HOLDUP_FRAC] = h;

@@ -47,9 +47,6 @@ static const char WHY_CAP[] =
 
 static const char WHY_ABOVE_FLOOD[] = "tray: gas above the jet-flood point";
 
-/* pi, spelt out: M_PI is not standard C. */
-#define TRAY_PI 3.14159265358979323846
-
 /* 1 m3/(h m) in m3/(s m). */
 #define PER_HOUR (1.0 / 3600.0)
 
@@ -411,7 +408,7 @@ static struct areas areas_of(const struct section_geom *g)
 {
 	assert(g != NULL);
 	struct areas a;
-	a.tower = TRAY_PI / 4.0 * g->diameter_m * g->diameter_m;
+	a.tower = section_area_m2(g);
 	a.dc = a.tower * g->tray.downcomer_area_frac;
 	a.net = a.tower - a.dc;
 	a.active = a.tower * g->tray.active_area_frac;
