@@ -28,7 +28,6 @@ const struct result_field_desc result_fields[RF_COUNT] = {
 	[RF_DC_BACKUP_PCT] = {"dc_backup_pct", "%"},
 	[RF_WEEP_PCT] = {"weep_pct", "%"},
 	[RF_CLEAR_LIQUID_M] = {"clear_liquid_m", "m"},
-	[RF_ENTRAINMENT_FRAC] = {"entrainment_frac", "-"},
 	[RF_LOADING_PCT] = {"loading_pct", "%"},
 	[RF_CARRYOVER_FRAC] = {"carryover_frac", "-"},
 	[RF_GAS_HOLDUP_FRAC] = {"gas_holdup_frac", "-"},

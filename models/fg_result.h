@@ -42,7 +42,6 @@ enum result_field {
 	RF_DC_BACKUP_PCT,      /* tray: downcomer backup as % of its limit, % */
 	RF_WEEP_PCT,           /* tray: hole velocity as % of the weep-point velocity, % */
 	RF_CLEAR_LIQUID_M,     /* tray: clear liquid height on the tray, m */
-	RF_ENTRAINMENT_FRAC,   /* tray: fractional entrainment psi (Fair), - */
 	RF_LOADING_PCT,        /* packed: gas velocity as % of the loading-point velocity, % */
 	RF_CARRYOVER_FRAC,     /* spray: mass fraction of droplets carried over, - */
 	RF_GAS_HOLDUP_FRAC,    /* bubble: gas holdup from the correlation, - */

@@ -547,7 +547,7 @@ static void kind_notes(const struct section_geom *g, struct fg_extrap *x)
 
 static const enum result_field tray_fields[] = {
 	RF_FLOOD_PCT, RF_JET_FLOOD_PCT, RF_DC_BACKUP_PCT, RF_WEEP_PCT, RF_CLEAR_LIQUID_M,
-	RF_ENTRAINMENT_FRAC, RF_DP_MODEL_PA, RF_DP_FLOOD_PCT, RF_LIQUID_HOLDUP_M3,
+	RF_DP_MODEL_PA, RF_DP_FLOOD_PCT, RF_LIQUID_HOLDUP_M3,
 	RF_LIQUID_HOLDUP_FRAC,
 };
 
@@ -600,7 +600,6 @@ void tray_eval(const struct section_geom *g, const struct fluid_state *f,
 	r->basis = jet ? FLOOD_BASIS_JET : FLOOD_BASIS_DOWNCOMER;
 	r->v[RF_WEEP_PCT] = h.weep_pct;
 	r->v[RF_CLEAR_LIQUID_M] = h.hl;
-	r->v[RF_ENTRAINMENT_FRAC] = NAN; /* Fair's psi chart: no fit we can justify */
 	r->v[RF_DP_MODEL_PA] = h.dp_pa * trays;
 	double per_tray = tray_liquid_per_tray_m3(h.hl, a.active, h.hb, a.dc);
 	r->v[RF_LIQUID_HOLDUP_M3] = per_tray * trays;
