@@ -9,7 +9,7 @@
  *    example of Sinnott, Coulson & Richardson's Chemical Engineering Vol. 6
  *    (4th ed., Example 11.11, from memory);
  *  - the original equations evaluated by hand (with /usr/bin/python3, not
- *    with this code) at a stated point: guards the transcription;
+ *    with this code) at a stated point: guards our typing of the equations;
  *  - one comparison between the two flood methods against a published
  *    comparison of their spread.
  */
@@ -147,7 +147,7 @@ static void test_orifice_coefficient_matches_sinnott_reading(void **state)
 
 /* The orifice-coefficient fit (from memory) evaluated by hand: Ah/Aa 0.10,
  * t/d 1.0 gives 0.837379; Ah/Aa 0.15, t/d 0.6 gives 0.790771 (python3).
- * Tolerance 1e-5: arithmetic only; guards the transcription. */
+ * Tolerance 1e-5: arithmetic only; guards our typing of the equations. */
 static void test_orifice_coefficient_hand_evaluation(void **state)
 {
 	(void)state;
