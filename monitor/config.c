@@ -415,7 +415,10 @@ static int tag_key(struct config_ctx *c, unsigned ti, const char *key, const cha
 	case 1: rc = parse_choice(c, key, v, table_names, &ch); t->table = (enum tag_table)ch; return rc;
 	case 2: return parse_uint(c, key, v, 0, 65535, &t->address);
 	case 3: rc = parse_choice(c, key, v, type_names_tag, &ch); t->type = (enum tag_type)ch; return rc;
-	case 4: rc = parse_choice(c, key, v, order_names, &ch); t->order = (enum tag_word_order)ch; return rc;
+	case 4:
+		rc = parse_choice(c, key, v, order_names, &ch);
+		t->order = (enum tag_word_order)ch;
+		return rc;
 	case 5: return config_parse_double(c, key, v, -big, big, &t->scale);
 	case 6: return config_parse_double(c, key, v, -big, big, &t->offset);
 	case 7:
@@ -466,7 +469,10 @@ static int source_key(struct config_ctx *c, unsigned si, const char *key, const 
 	int ch = 0, rc = 0;
 	unsigned u = 0;
 	switch (k) {
-	case 0: rc = parse_choice(c, key, v, protocol_names, &ch); s->protocol = (enum source_protocol)ch; return rc;
+	case 0:
+		rc = parse_choice(c, key, v, protocol_names, &ch);
+		s->protocol = (enum source_protocol)ch;
+		return rc;
 	case 1: return copy_text(c, key, v, s->host, sizeof(s->host));
 	case 2: rc = parse_uint(c, key, v, 1, 65535, &u); s->port = (int)u; return rc;
 	case 3: rc = parse_uint(c, key, v, 0, 255, &u); s->unit_id = (int)u; return rc;

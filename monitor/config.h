@@ -38,7 +38,13 @@ struct source_cfg {
 };
 
 enum tag_table { TAG_TABLE_INPUT, TAG_TABLE_HOLDING };
-enum tag_type { TAG_TYPE_INT16, TAG_TYPE_UINT16, TAG_TYPE_INT32, TAG_TYPE_UINT32, TAG_TYPE_FLOAT32 };
+enum tag_type {
+	TAG_TYPE_INT16,
+	TAG_TYPE_UINT16,
+	TAG_TYPE_INT32,
+	TAG_TYPE_UINT32,
+	TAG_TYPE_FLOAT32
+};
 enum tag_word_order { TAG_ORDER_ABCD, TAG_ORDER_BADC, TAG_ORDER_CDAB, TAG_ORDER_DCBA };
 
 struct tag_cfg {

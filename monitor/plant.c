@@ -13,7 +13,8 @@ _Static_assert((int)TAG_TYPE_FLOAT32 == (int)REGCODEC_FLOAT32 &&
 		       (int)TAG_TYPE_INT16 == (int)REGCODEC_INT16 &&
 		       (int)TAG_TYPE_UINT32 == (int)REGCODEC_UINT32,
 	       "tag types and codec types share their order");
-_Static_assert((int)TAG_ORDER_DCBA == (int)REGCODEC_DCBA && (int)TAG_ORDER_ABCD == (int)REGCODEC_ABCD,
+_Static_assert((int)TAG_ORDER_DCBA == (int)REGCODEC_DCBA &&
+		       (int)TAG_ORDER_ABCD == (int)REGCODEC_ABCD,
 	       "word orders share their order");
 
 struct mbclient_point plant_point_of(const struct tag_cfg *t)
