@@ -1,7 +1,8 @@
 /*
- * config_int.h - state shared by the two halves of the config loader:
- * config.c reads the INI text, config_resolve.c resolves references and
- * checks the whole. Not for use outside them.
+ * config_int.h - state shared by the three files of the config loader:
+ * config.c reads the INI text, config_keys.c takes each section's keys, and
+ * config_resolve.c resolves references and checks the whole. Not for use
+ * outside them.
  */
 #ifndef CONFIG_INT_H
 #define CONFIG_INT_H
@@ -73,5 +74,30 @@ int config_parse_double(struct config_ctx *c, const char *key, const char *v, do
 			double hi, double *out);
 int config_parse_prop(struct config_ctx *c, const char *key, const char *v,
 		      struct prop_table *out);
+int config_parse_uint(struct config_ctx *c, const char *key, const char *v, unsigned lo,
+		      unsigned hi, unsigned *out);
+int config_parse_bool(struct config_ctx *c, const char *key, const char *v, bool *out);
+/* Copies v into dst of cap bytes; a value that does not fit is refused, not cut. */
+int config_copy_text(struct config_ctx *c, const char *key, const char *v, char *dst,
+		     size_t cap);
+/* Looks v up in a NULL-terminated list of names; *out is its index. */
+int config_parse_choice(struct config_ctx *c, const char *key, const char *v,
+			const char *const *names, int *out);
+
+/*
+ * Key handlers, one per section kind (config_keys.c). Each takes one
+ * "key = v" line of the current section (object index ti/si/ai where there
+ * are many), at line c->line. 0 on success, -EINVAL with an error reported.
+ */
+int config_monitor_key(struct config_ctx *c, const char *key, const char *v);
+int config_source_key(struct config_ctx *c, unsigned si, const char *key, const char *v);
+int config_tag_key(struct config_ctx *c, unsigned ti, const char *key, const char *v);
+int config_section_key(struct config_ctx *c, struct section_cfg *s, struct section_pending *sp,
+		       const char *key, const char *v);
+int config_alarm_key(struct config_ctx *c, unsigned ai, const char *key, const char *v);
+int config_mqtt_key(struct config_ctx *c, const char *key, const char *v);
+int config_export_key(struct config_ctx *c, const char *key, const char *v);
+/* Applicability and required keys of section si, once its type is known. */
+int config_section_keys_check(struct config_ctx *c, unsigned si);
 
 #endif

@@ -16,8 +16,6 @@
 #include "mbclient.h"
 #include "packing.h"
 
-int config_section_keys_check(struct config_ctx *c, unsigned si);
-
 int config_tag_index(const struct fg_config *cfg, const char *name)
 {
 	for (unsigned i = 0; i < cfg->tag_count; i++)
