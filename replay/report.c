@@ -1,6 +1,6 @@
 /*
  * report.c - the replay report: layout, bounded series summary, alarm
- * events and periods. The page itself is written by report_html.c.
+ * events and periods. The page itself is written by report_html.c (charts: report_svg.c).
  *
  * Collection. Every section shares one grid of time buckets (struct
  * report_slot for the rows, struct report_cell per series, struct

@@ -1,16 +1,20 @@
 /*
- * report_int.h - private to replay/report.c and replay/report_html.c: what
- * the collecting half of the replay report and the page writer share. Not
- * for use outside these two files; everything else goes through report.h.
+ * report_int.h - private to replay/report.c, replay/report_html.c and
+ * replay/report_svg.c: what the collecting half of the replay report, the
+ * page writer and the chart writer share. Not for use outside these three
+ * files; everything else goes through report.h.
  *
- * report.c owns the tables declared here; the index helpers are static
- * inline so both files compute the same offsets into the grid.
+ * report.c owns the tables declared first; the index helpers are static
+ * inline so all three files compute the same offsets into the grid. The
+ * page writer's output helpers and the chart writer's entry point follow.
  */
 #ifndef REPORT_INT_H
 #define REPORT_INT_H
 
 #include <assert.h>
 #include <stddef.h>
+#include <stdint.h>
+#include <stdio.h>
 
 #include "report.h"
 
@@ -46,5 +50,40 @@ static inline struct report_period *periods_of(const struct report *rp, unsigned
 	assert(p < SHADE_KINDS);
 	return &rp->periods[((size_t)k * SHADE_KINDS + p) * REPORT_PERIODS_MAX];
 }
+
+/* ------------------------------------------- report_html.c, for the charts */
+
+/* Shading colour per kind (priority or "other"), a CSS colour for both the
+ * SVG fills and the HTML swatches. */
+extern const char *const report_html_shade_css[SHADE_KINDS];
+
+/* Writes s to f with & < > " ' escaped and control characters replaced. */
+void report_html_put_escaped(FILE *f, const char *s);
+
+/* Writes v to f through report_format_fixed ("-" for NAN and inf). */
+void report_html_put_fixed(FILE *f, double v, int decimals);
+
+/* Decimals that show a plant value to about three significant figures. */
+int report_html_auto_decimals(double v);
+
+/* Name of enum result_field field, "quality" for -1; a static string. */
+const char *report_html_alarm_field_name(int field);
+
+/* ------------------------------------------- report_svg.c, for the page */
+
+/* Where one chart draws: time span, plot box, value range, gap threshold. */
+struct report_svg_frame {
+	int64_t t0_ms, t1_ms;
+	double y_top, y_bot;
+	double lo, hi, step;
+	int decimals;                   /* of the y tick labels */
+	int64_t gap_ms;                 /* intervals above this break the lines */
+};
+
+/* Writes the charts of section k. The caller sets fr's time span and gap
+ * threshold once per page; each chart overwrites the plot box and value
+ * range. */
+void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg_frame *fr,
+			     unsigned k);
 
 #endif
