@@ -362,6 +362,20 @@ static void write_time_axis(FILE *f, const struct report_svg_frame *fr, bool lab
 	}
 }
 
+/* A horizontal line across the plot at y, of CSS class cls, and a newline. */
+static void put_hline(FILE *f, const char *cls, double y)
+{
+	fprintf(f, "<line class=\"%s\" x1=\"", cls);
+	report_html_put_fixed(f, PLOT_X0, 1);
+	fputs("\" x2=\"", f);
+	report_html_put_fixed(f, PLOT_X1, 1);
+	fputs("\" y1=\"", f);
+	report_html_put_fixed(f, y, 1);
+	fputs("\" y2=\"", f);
+	report_html_put_fixed(f, y, 1);
+	fputs("\"/>\n", f);
+}
+
 static void write_value_axis(FILE *f, const struct report_svg_frame *fr, const char *y_title)
 {
 	for (unsigned i = 0; i <= 20; i++) {
@@ -369,15 +383,8 @@ static void write_value_axis(FILE *f, const struct report_svg_frame *fr, const c
 		if (v > fr->hi + fr->step * 1e-6)
 			break;
 		const double y = frame_y(fr, v);
-		fputs("<line class=\"grid\" x1=\"", f);
-		report_html_put_fixed(f, PLOT_X0, 1);
-		fputs("\" x2=\"", f);
-		report_html_put_fixed(f, PLOT_X1, 1);
-		fputs("\" y1=\"", f);
-		report_html_put_fixed(f, y, 1);
-		fputs("\" y2=\"", f);
-		report_html_put_fixed(f, y, 1);
-		fputs("\"/>\n<text text-anchor=\"end\" x=\"", f);
+		put_hline(f, "grid", y);
+		fputs("<text text-anchor=\"end\" x=\"", f);
 		report_html_put_fixed(f, PLOT_X0 - 6.0, 1);
 		fputs("\" y=\"", f);
 		report_html_put_fixed(f, y + 3.5, 1);
@@ -415,15 +422,8 @@ static unsigned write_setpoints(FILE *f, const struct report *rp, const struct r
 		for (unsigned u = 0; u < used; u++)
 			if (fabs(used_y[u] - y) < 12.0 && used_left[u] - 10.0 < right)
 				right = used_left[u] - 10.0;
-		fputs("<line class=\"sp\" x1=\"", f);
-		report_html_put_fixed(f, PLOT_X0, 1);
-		fputs("\" x2=\"", f);
-		report_html_put_fixed(f, PLOT_X1, 1);
-		fputs("\" y1=\"", f);
-		report_html_put_fixed(f, y, 1);
-		fputs("\" y2=\"", f);
-		report_html_put_fixed(f, y, 1);
-		fputs("\"/>\n<text class=\"spl\" text-anchor=\"end\" x=\"", f);
+		put_hline(f, "sp", y);
+		fputs("<text class=\"spl\" text-anchor=\"end\" x=\"", f);
 		report_html_put_fixed(f, right, 1);
 		fputs("\" y=\"", f);
 		report_html_put_fixed(f, y - 4.0 < fr->y_top + 10.0 ? y + 12.0 : y - 4.0, 1);
