@@ -25,6 +25,11 @@ ok(rc == 2 and "unknown command" in err, "unknown command exits 2")
 rc, out, err = fg("check", "-c", DEMO)
 ok(rc == 0 and "4 section(s)" in out, "check accepts the demo config", out + err)
 
+rc, out, err = fg("check", "-c", "configs/site-template.ini")
+ok(rc == 0 and "2 source(s)" in out, "the site template is a valid config", out + err)
+rc, out, err = fg("rate", "-c", "configs/site-template.ini", "--section", "K701", "--json")
+ok(rc == 0 and '"quality":"good"' in out, "the site template rates at good quality", out + err)
+
 bad = "build/test-bad.ini"
 os.makedirs("build", exist_ok=True)
 with open(bad, "w") as f:
