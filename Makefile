@@ -106,6 +106,7 @@ install: all
 	install -m 0755 $(BIN) $(DESTDIR)$(PREFIX)/bin/floodgauge
 	install -m 0644 docs/floodgauge.1 $(DESTDIR)$(PREFIX)/share/man/man1/floodgauge.1
 	install -m 0644 configs/demo.ini $(DESTDIR)$(PREFIX)/share/floodgauge/demo.ini
+	install -m 0644 configs/site-template.ini $(DESTDIR)$(PREFIX)/share/floodgauge/site-template.ini
 	sed 's|/usr/local|$(PREFIX)|g' configs/floodgauge.service \
 		>$(DESTDIR)$(PREFIX)/share/floodgauge/floodgauge.service
 
