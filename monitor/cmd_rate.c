@@ -151,7 +151,8 @@ static void print_table(const struct fg_config *cfg, const struct section_cfg *s
 	printf("    %-22s %12s\n", "extrapolated", r->extrap.count ? "yes" : "no");
 	if (r->extrap.first)
 		printf("      (%s%s)\n", r->extrap.first, r->extrap.count > 1 ? ", and more" : "");
-	printf("\n%s\n", fg_caution);
+	putchar('\n');
+	fg_caution_print(stdout);
 }
 
 static int print_json(const struct section_cfg *s, const struct section_result *r)

@@ -348,8 +348,8 @@ static void print_summary(const struct replay *rp)
 	for (unsigned i = 0; i < cfg->alarm_count; i++)
 		if (isfinite(s->above_setpoint_s[i]))
 			printf("    %-24s %10.0f s\n", cfg->alarms[i].name, s->above_setpoint_s[i]);
-	printf("  wrote %s, %s, %s\n%s\n", rp->path_results, rp->path_events, rp->path_report,
-	       fg_caution);
+	printf("  wrote %s, %s, %s\n", rp->path_results, rp->path_events, rp->path_report);
+	fg_caution_print(stdout);
 }
 
 static int replay_run(struct replay *rp)

@@ -6,6 +6,8 @@
 #ifndef COMMANDS_H
 #define COMMANDS_H
 
+#include <stdio.h>
+
 #define EXIT_RUNTIME 1
 #define EXIT_USAGE 2
 
@@ -18,5 +20,8 @@ int cmd_feed(int argc, char **argv);
 
 /* The advisory caution every human-facing output carries. */
 extern const char *const fg_caution;
+
+/* Prints it wrapped for a terminal. */
+void fg_caution_print(FILE *f);
 
 #endif

@@ -28,8 +28,8 @@ static void usage(FILE *f)
 		   "alarms for tray, packed, spray and bubble-column sections.\n\ncommands:\n");
 	for (size_t i = 0; i < sizeof(commands) / sizeof(commands[0]); i++)
 		fprintf(f, "  %-10s %s\n", commands[i].name, commands[i].summary);
-	fprintf(f, "\nexit status: 0 ok, 1 runtime failure, 2 usage or config error\n\n%s\n",
-		fg_caution);
+	fprintf(f, "\nexit status: 0 ok, 1 runtime failure, 2 usage or config error\n\n");
+	fg_caution_print(f);
 }
 
 int main(int argc, char **argv)
