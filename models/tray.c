@@ -243,14 +243,14 @@ double tray_clear_liquid_m(double alpha_e, double weir_height_m, double liquid_m
 {
 	/* Bennett, Agrawal & Cook (1983), from memory:
 	 * hL = alpha_e [hw + C (QL/(lw alpha_e))^0.67], C = 0.501 + 0.438 exp(-137.8 hw),
-	 * SI (m, m3/s). The exponent is written 2/3 here; the paper's 0.67 is
-	 * its rounding. */
+	 * SI (m, m3/s), with the exponent 0.67 as the paper prints it (not 2/3:
+	 * the correlation was fitted with 0.67). */
 	if (!isfinite(alpha_e) || alpha_e <= 0.0 || alpha_e > 1.0 ||
 	    !finite_nonneg(weir_height_m) || !finite_nonneg(liquid_m3s) ||
 	    !finite_pos(weir_length_m))
 		return NAN;
 	double c = 0.501 + 0.438 * exp(-137.8 * weir_height_m);
-	double crest = c * pow(liquid_m3s / (weir_length_m * alpha_e), 2.0 / 3.0);
+	double crest = c * pow(liquid_m3s / (weir_length_m * alpha_e), 0.67);
 	return alpha_e * (weir_height_m + crest);
 }
 
