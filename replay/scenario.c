@@ -788,9 +788,10 @@ static void summary_flood(const struct scenario *sc, FILE *f)
 		enum section_type type = sc->cfg->sections[si].geom.type;
 		if (type != SECTION_TRAY && type != SECTION_PACKED)
 			continue;
-		fprintf(f, "; %s flood point (model flood_pct 100 %%, %s) at %s, ramp stopped at %s "
+		const char *basis = flood_basis_name(sec->flood_basis);
+		fprintf(f, "; %s flood point (model flood_pct 100 %%%s%s) at %s, ramp stopped at %s "
 			   "(load %.0f %%, flood_pct %.0f %%), back at design at %s",
-			sc->cfg->sections[si].name, flood_basis_name(sec->flood_basis),
+			sc->cfg->sections[si].name, basis[0] ? ", " : "", basis,
 			when(sec->flood_t_ms, a, sizeof(a)),
 			when(sec->peak_t_ms, b, sizeof(b)), 100.0 * sec->peak_load,
 			sec->peak_flood_pct, when(sec->recovered_t_ms, c, sizeof(c)));
