@@ -104,22 +104,6 @@ static int apply_set(const struct fg_config *cfg, const char *arg, double *value
 	return 0;
 }
 
-/* Is signal k of section s needed for an evaluation? */
-static bool signal_required(const struct fg_config *cfg, const struct section_cfg *s, int k,
-			    const double *values)
-{
-	int dens = s->signal[SIGNAL_GAS_DENSITY];
-	bool have_density = dens >= 0 && isfinite(values[dens]);
-	(void)cfg;
-	switch (k) {
-	case SIGNAL_GAS_FLOW: return true;
-	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
-	case SIGNAL_PRESSURE:
-	case SIGNAL_TEMPERATURE: return !have_density;
-	default: return false;
-	}
-}
-
 static void print_table(const struct fg_config *cfg, const struct section_cfg *s,
 			const double *values, const struct section_result *r)
 {
@@ -190,9 +174,12 @@ static int rate_eval(const struct fg_config *cfg, const char *section, char **se
 			return EXIT_USAGE;
 	const struct section_cfg *s = &cfg->sections[si];
 	int missing = 0;
+	int dens = s->signal[SIGNAL_GAS_DENSITY];
+	bool have_density = dens >= 0 && isfinite(values[dens]);
 	for (int k = 0; k < SIGNAL_COUNT; k++) {
 		int ti = s->signal[k];
-		if (ti >= 0 && !isfinite(values[ti]) && signal_required(cfg, s, k, values)) {
+		if (ti >= 0 && !isfinite(values[ti]) &&
+		    point_signal_required(s, (enum section_signal)k, have_density)) {
 			fprintf(stderr, "floodgauge rate: %s needs a value for tag '%s' (%s): give "
 					"--set %s=VALUE or 'nominal =' in [tag.%s]\n", s->name,
 				cfg->tags[ti].name, config_signal_name((enum section_signal)k),

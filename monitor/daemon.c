@@ -68,9 +68,9 @@ static void take_events(struct daemon *d)
 	engine_events_clear(d->eng);
 }
 
-static int apply_command(struct daemon *d, const struct command *c, int64_t t_ms)
+/* Carries out a parsed command on alarm ai (-1: no such alarm). */
+static int apply_command(struct daemon *d, const struct command *c, int ai, int64_t t_ms)
 {
-	int ai = config_alarm_index(d->cfg, c->alarm);
 	if (ai < 0)
 		return -ENOENT;
 	switch (c->op) {
@@ -101,20 +101,20 @@ static void commands(struct daemon *d, int64_t t_ms)
 	while ((n = publish_take_command(&d->pub, payload, sizeof(payload))) > 0) {
 		struct command c;
 		int rc = command_parse(payload, (size_t)n, &c, err, sizeof(err));
+		bool parsed = rc == 0;
 		const char *state = NULL;
-		if (rc == 0) {
-			rc = apply_command(d, &c, t_ms);
+		if (parsed) {
 			int ai = config_alarm_index(d->cfg, c.alarm);
+			rc = apply_command(d, &c, ai, t_ms);
 			if (ai >= 0)
 				state = alarm_state_name(d->eng->alarms[ai].state);
-			snprintf(err, sizeof(err), "%s", rc == 0 ? "" : command_error_text(rc));
-		} else {
-			memset(&c, 0, sizeof(c));
+			if (rc != 0)
+				snprintf(err, sizeof(err), "%s", command_error_text(rc));
 		}
 		log_msg(rc == 0 ? LOG_INFO : LOG_WARNING, "command %.120s: %s", payload,
 			rc == 0 ? "done" : err);
-		if (command_reply_json(rc == 0 || c.op != COMMAND_OP_NONE ? &c : NULL, rc == 0,
-				       rc == 0 ? NULL : err, state, reply, sizeof(reply)) > 0)
+		if (command_reply_json(parsed ? &c : NULL, rc == 0, rc == 0 ? NULL : err, state,
+				       reply, sizeof(reply)) > 0)
 			publish_reply(&d->pub, reply);
 		take_events(d);
 	}

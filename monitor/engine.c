@@ -34,17 +34,6 @@ int engine_init(struct engine *e, const struct fg_config *cfg)
 	return 0;
 }
 
-static bool signal_required(const struct section_cfg *s, int k, bool density_good)
-{
-	switch (k) {
-	case SIGNAL_GAS_FLOW: return true;
-	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
-	case SIGNAL_PRESSURE:
-	case SIGNAL_TEMPERATURE: return !density_good;
-	default: return false;
-	}
-}
-
 /* Collects the section's signals in SI and the worst input quality. */
 static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
 {
@@ -67,7 +56,7 @@ static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
 			es->diag_reason = ts->reason;
 			es->diag_tag = ti;
 		}
-		if (ts->quality == FG_QUALITY_BAD && signal_required(s, k, density_good))
+		if (ts->quality == FG_QUALITY_BAD && point_signal_required(s, (enum section_signal)k, density_good))
 			fg_quality_raise(&q, FG_QUALITY_BAD);
 		else if (ts->quality != FG_QUALITY_GOOD)
 			fg_quality_raise(&q, FG_QUALITY_UNCERTAIN);
@@ -85,18 +74,12 @@ static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
 	struct section_result *r = &es->r;
 	const struct section_point *p = &es->point;
 	double raw_model = r->v[RF_DP_MODEL_PA];
+	double rho_l = prop_table_at(&s->props.liquid_density_kgm3, p->temperature_k, NULL);
 	double liquid_out = NAN;
 	int lo = s->signal[SIGNAL_LIQUID_OUT_FLOW];
-	if (lo >= 0 && e->tags[lo].quality != FG_QUALITY_BAD) {
-		struct section_point q = *p;
-		double sig[SIGNAL_COUNT];
-		for (int k = 0; k < SIGNAL_COUNT; k++)
-			sig[k] = NAN;
-		sig[SIGNAL_LIQUID_FLOW] = e->tags[lo].value_si;
-		sig[SIGNAL_TEMPERATURE] = p->temperature_k;
-		point_from_si(s, e->cfg, sig, &q); /* same volume-to-mass rule */
-		liquid_out = q.liquid_kgs;
-	}
+	if (lo >= 0 && e->tags[lo].quality != FG_QUALITY_BAD) /* by its own tag's unit */
+		liquid_out = point_mass_flow_kgs(&e->cfg->tags[lo], e->tags[lo].value_si, rho_l,
+						 s->props.gas_molar_mass_kgkmol);
 	struct softsense_input in = {
 		.gas_kgs = p->gas_kgs,
 		.dp_pa = r->v[RF_DP_PA],
@@ -105,7 +88,7 @@ static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
 		.liquid_in_kgs = p->liquid_kgs,
 		.liquid_out_kgs = liquid_out,
 		.level_m = p->level_m,
-		.rho_l_kgm3 = prop_table_at(&s->props.liquid_density_kgm3, p->temperature_k, NULL),
+		.rho_l_kgm3 = rho_l,
 		.sump_area_m2 = isfinite(s->sump_area_m2) ? s->sump_area_m2 : section_area_m2(&s->geom),
 		.normal = r->quality == FG_QUALITY_GOOD && es->in_service &&
 			  r->v[RF_FLOOD_INDEX] < SOFTSENSE_NORMAL_FLOOD_PCT,

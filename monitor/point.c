@@ -8,17 +8,23 @@
 
 #include "gas.h"
 
-static const struct unit *signal_unit(const struct fg_config *cfg, const struct section_cfg *s,
-				      int k)
+bool point_signal_required(const struct section_cfg *s, enum section_signal k,
+			   bool have_density)
 {
-	int ti = s->signal[k];
-	return ti >= 0 ? cfg->tags[ti].unit : NULL;
+	assert(s != NULL);
+	switch (k) {
+	case SIGNAL_GAS_FLOW: return true;
+	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
+	case SIGNAL_PRESSURE:
+	case SIGNAL_TEMPERATURE: return !have_density;
+	default: return false;
+	}
 }
 
-/* Volume flow (m3/s) to mass flow with the density that fits the unit. */
-static double to_mass_flow(const struct unit *u, double si, double rho_actual_kgm3,
+double point_mass_flow_kgs(const struct tag_cfg *t, double si, double rho_actual_kgm3,
 			   double molar_mass_kgkmol)
 {
+	const struct unit *u = t != NULL ? t->unit : NULL;
 	if (u == NULL || !isfinite(si))
 		return si;
 	switch (u->kind) {
@@ -47,10 +53,11 @@ void point_from_si(const struct section_cfg *s, const struct fg_config *cfg,
 					 s->props.gas_compressibility, NULL);
 	double rho_l = prop_table_at(&s->props.liquid_density_kgm3, p->temperature_k, NULL);
 	double M = s->props.gas_molar_mass_kgkmol;
-	p->gas_kgs = to_mass_flow(signal_unit(cfg, s, SIGNAL_GAS_FLOW), signal_si[SIGNAL_GAS_FLOW],
-				  rho_g, M);
-	p->liquid_kgs = to_mass_flow(signal_unit(cfg, s, SIGNAL_LIQUID_FLOW),
-				     signal_si[SIGNAL_LIQUID_FLOW], rho_l, M);
+	int tg = s->signal[SIGNAL_GAS_FLOW], tl = s->signal[SIGNAL_LIQUID_FLOW];
+	p->gas_kgs = point_mass_flow_kgs(tg >= 0 ? &cfg->tags[tg] : NULL,
+					 signal_si[SIGNAL_GAS_FLOW], rho_g, M);
+	p->liquid_kgs = point_mass_flow_kgs(tl >= 0 ? &cfg->tags[tl] : NULL,
+					    signal_si[SIGNAL_LIQUID_FLOW], rho_l, M);
 }
 
 void point_from_tags(const struct fg_config *cfg, unsigned si, const double *tag_values,

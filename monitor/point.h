@@ -21,4 +21,17 @@ void point_from_tags(const struct fg_config *cfg, unsigned si, const double *tag
 void point_from_si(const struct section_cfg *s, const struct fg_config *cfg,
 		   const double *signal_si /* [SIGNAL_COUNT] */, struct section_point *p);
 
+/* Is signal k needed to evaluate section s at all? Gas flow always; liquid
+ * flow except in a bubble column; pressure and temperature unless a gas
+ * density is available. Used by the engine (bad input -> bad result) and by
+ * `rate` (a missing value is a usage error). */
+bool point_signal_required(const struct section_cfg *s, enum section_signal k,
+			   bool have_density);
+
+/* Mass flow, kg/s, of a flow tag's SI value (kg/s, m3/s or Nm3/s by the
+ * tag's unit): actual volume flows with rho_actual_kgm3, normal volume flows
+ * with the molar volume at 0 degC and 1 atm and molar_mass_kgkmol. */
+double point_mass_flow_kgs(const struct tag_cfg *t, double si, double rho_actual_kgm3,
+			   double molar_mass_kgkmol);
+
 #endif

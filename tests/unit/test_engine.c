@@ -186,6 +186,24 @@ static void test_alarm_state_survives_a_restart(void **state)
 	unlink(path);
 }
 
+static void test_inventory_converts_each_flow_by_its_own_unit(void **state)
+{
+	struct rig *r = *state;
+	/* Wire C401's liquid out to a tag in m3/h (C402_FI_LIQ, 30 m3/h) while its
+	 * liquid in is in t/h (C401_FI_LIQ, 40 t/h), with a steady level. Hand
+	 * arithmetic, liquid density 950.9 kg/m3 at the fixed 110 degC (the
+	 * config's table point): in 40000/3600 = 11.1111 kg/s, out 30/3600 x 950.9
+	 * = 7.92417 kg/s, so 3.35150e-3 m3/s stays in the column: 0.335150 m3 over
+	 * 100 s. Tolerance 1e-6 relative: arithmetic only. */
+	struct section_cfg *c401 = &r->cfg.sections[0];
+	c401->signal[SIGNAL_LIQUID_OUT_FLOW] = tag(r, "C402_FI_LIQ");
+	c401->signal[SIGNAL_LEVEL] = tag(r, "R404_LI");
+	r->values[tag(r, "C401_TI")] = 110.0;
+	run(r, 0, 101, -1, ALARM_STATE_UNACK);
+	double inv = r->eng.sec[0].r.v[RF_INVENTORY_M3];
+	assert_true(fabs(inv - 0.335150) <= 1e-6 * 0.335150 + 1e-9);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -200,6 +218,8 @@ int main(void)
 						rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_alarm_state_survives_a_restart, rig_setup,
 						rig_teardown),
+		cmocka_unit_test_setup_teardown(test_inventory_converts_each_flow_by_its_own_unit,
+						rig_setup, rig_teardown),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
