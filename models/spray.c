@@ -19,7 +19,6 @@
 #define RE_LO 1.0e-12
 #define RE_HI 1.0e9
 #define BISECT_STEPS 64
-#define SPRAY_DILUTE_MAX 0.1
 
 double spray_drag_coefficient(double re)
 {
@@ -129,8 +128,11 @@ double spray_holdup_frac(double ul_ms, double vt_ms, double ug_ms, struct fg_ext
 	if (!(vt_ms > ug_ms))
 		return NAN;
 	double h = ul_ms / (vt_ms - ug_ms);
-	if (h > SPRAY_DILUTE_MAX)
-		fg_extrap_note(x, "spray: liquid in flight above 10 % (not a dilute spray)");
+	if (h > SPRAY_DILUTE_MAX) {
+		fg_extrap_note(x, "spray: liquid in flight above 10 % (not a dilute spray); "
+				  "holdup undefined");
+		return NAN;
+	}
 	return h;
 }
 
@@ -193,6 +195,11 @@ void spray_eval(const struct section_geom *g, const struct fluid_state *f,
 	double area_m2 = section_area_m2(g);
 	double ul = p->liquid_kgs / (f->rho_l_kgm3 * area_m2);
 	double h = spray_holdup_frac(ul, vt, ug, &r->extrap);
+	if (isnan(h)) {
+		/* Not a dilute spray: no value rather than a made-up one. */
+		fg_quality_raise(&r->quality, FG_QUALITY_UNCERTAIN);
+		return;
+	}
 	r->v[RF_LIQUID_HOLDUP_FRAC] = h;
 	r->v[RF_LIQUID_HOLDUP_M3] = h * area_m2 * s->height_m;
 }

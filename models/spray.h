@@ -32,6 +32,11 @@
  * 4 mm 17 %; below Eo 0.3 the two agree within the measurement scatter. */
 #define SPRAY_EOTVOS_MAX 0.5
 
+/* Largest liquid volume fraction in flight for which the droplets are taken
+ * to fall independently at their terminal velocity (a dilute spray, common
+ * practice). Above it the holdup is not published. */
+#define SPRAY_DILUTE_MAX 0.1
+
 /* Drag coefficient of a rigid sphere at particle Reynolds number re (-),
  * Clift, Grace & Weber (1978) Table 5.2, re > 0. Valid to re = 3.38e5; above
  * it the 4.4e4..3.38e5 piece is extended (no note here: the callers note).
@@ -71,8 +76,10 @@ double spray_rosin_rammler_finer(double d_m, double d_size_m, double n);
  * downward velocity (vt - ug), from the residence time H / (vt - ug) of the
  * design droplet; the height cancels. Returns NAN when vt_ms <= ug_ms (the
  * design droplet does not fall: carried over) or inputs are not finite or
- * negative. Dilute spray: the droplets do not interact; noted in x above
- * 0.1 (common practice for "dilute"). */
+ * negative. Dilute spray: the droplets do not interact. Above
+ * SPRAY_DILUTE_MAX the premise fails (near the terminal velocity the
+ * expression runs away, to values above 1 that no volume fraction can
+ * take), so it returns NAN and notes why in x. */
 double spray_holdup_frac(double ul_ms, double vt_ms, double ug_ms, struct fg_extrap *x);
 
 #endif

@@ -144,8 +144,30 @@ static void test_holdup_is_liquid_velocity_over_fall_velocity(void **state)
 	assert_int_equal(x.count, 0);
 	assert_true(isnan(spray_holdup_frac(0.004, 1.0, 1.0, &x)));
 	assert_true(isnan(spray_holdup_frac(0.004, 0.9, 1.0, &x)));
-	(void)spray_holdup_frac(0.05, 1.2, 1.0, &x);
+	/* 0.05/(1.2 - 1.0) = 0.25: no longer a dilute spray, no value. */
+	assert_true(isnan(spray_holdup_frac(0.05, 1.2, 1.0, &x)));
 	assert_int_equal(x.count, 1);
+}
+
+/* Near the terminal velocity u_L/(v_t - u_G) runs away (1394 at the demo
+ * quench's flood load before the fix): a volume fraction above the dilute
+ * limit is never published; the field is absent and the quality uncertain. */
+static void test_holdup_near_terminal_velocity_is_absent_not_above_one(void **state)
+{
+	(void)state;
+	struct section_geom g = spray_geom();
+	struct fluid_state f = air_water();
+	double vt = spray_terminal_velocity_ms(1e-3, RHO_L, RHO_G, MU_G, NULL);
+	static const double frac_of_vt[] = {0.99, 0.999, 0.99999};
+	for (size_t i = 0; i < sizeof frac_of_vt / sizeof frac_of_vt[0]; i++) {
+		struct section_result r;
+		eval_at(&g, &f, frac_of_vt[i] * vt, 50.0, &r);
+		double h = r.v[RF_LIQUID_HOLDUP_FRAC];
+		assert_true(isnan(h));
+		assert_true(isnan(r.v[RF_LIQUID_HOLDUP_M3]));
+		assert_int_equal(r.quality, FG_QUALITY_UNCERTAIN);
+		assert_true(isfinite(r.v[RF_FLOOD_PCT]));
+	}
 }
 
 static void test_eval_fills_flood_carryover_and_holdup(void **state)
@@ -305,6 +327,7 @@ int main(void)
 		cmocka_unit_test(test_approach_is_gas_over_terminal_velocity),
 		cmocka_unit_test(test_rosin_rammler_gives_63_percent_finer_than_size_parameter),
 		cmocka_unit_test(test_holdup_is_liquid_velocity_over_fall_velocity),
+		cmocka_unit_test(test_holdup_near_terminal_velocity_is_absent_not_above_one),
 		cmocka_unit_test(test_eval_fills_flood_carryover_and_holdup),
 		cmocka_unit_test(test_flood_and_carryover_rise_with_gas_rate),
 		cmocka_unit_test(test_zero_gas_gives_zero_flood_and_no_carryover),
