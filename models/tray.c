@@ -606,10 +606,14 @@ void tray_eval(const struct section_geom *g, const struct fluid_state *f,
 	r->v[RF_LIQUID_HOLDUP_FRAC] = per_tray / (a.tower * g->tray.spacing_m);
 
 	if (isfinite(p->dp_pa)) {
+		/* The flood point is another operating point (more gas, a lower
+		 * flow parameter): its range notes describe that point, not this
+		 * one, so they go to a scratch record and are dropped. */
 		struct hyd hf;
+		struct fg_extrap flood_notes = {0, NULL};
 		double gf = flood_gas_kgs(g, f, &a, p->liquid_kgs);
 		if (isfinite(gf)) {
-			hydraulics(g, f, &a, gf, p->liquid_kgs, &hf, &r->extrap);
+			hydraulics(g, f, &a, gf, p->liquid_kgs, &hf, &flood_notes);
 			r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / trays) / hf.dp_pa;
 		}
 	}

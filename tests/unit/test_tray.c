@@ -517,6 +517,33 @@ static void test_gas_above_flood_is_finite_above_100_and_noted(void **state)
 	assert_int_equal(r.extrap.count, 0);
 }
 
+/* The flood-point evaluation behind dp_flood_pct runs the tray at a higher gas
+ * rate, where the flow parameter is lower. Its range notes are about that
+ * other point and must not reach the operating point's result: at FLV 0.012
+ * (inside Fair's chart) the result is not extrapolated whether or not a DP is
+ * measured. Before the fix the DP case read "flow parameter outside Fair
+ * chart" (the flood point lies at FLV 0.008). */
+static void test_flood_point_evaluation_leaves_no_notes(void **state)
+{
+	(void)state;
+	struct section_geom g = geom();
+	struct fluid_state f = fluids();
+	double gas = 5.0, liq = 5.0 * 0.012 / sqrt(2.5 / 800.0);
+	struct section_point p = point(gas, liq);
+	struct section_result plain = eval(&g, &f, &p);
+	double jet = plain.v[RF_JET_FLOOD_PCT];
+	assert_true(jet > 60.0);
+	assert_true(jet < 100.0);
+	assert_true(0.012 * jet / 100.0 < 0.01); /* the flood point is off the chart */
+	assert_int_equal(plain.extrap.count, 0);
+	p.dp_pa = 8000.0;
+	struct section_result with_dp = eval(&g, &f, &p);
+	assert_true(isfinite(with_dp.v[RF_DP_FLOOD_PCT]));
+	assert_int_equal(with_dp.extrap.count, 0);
+	assert_int_equal(with_dp.quality, FG_QUALITY_GOOD);
+	assert_true(with_dp.v[RF_JET_FLOOD_PCT] == jet);
+}
+
 static void assert_all_tray_fields_nan(const struct section_result *r)
 {
 	assert_int_equal(r->quality, FG_QUALITY_BAD);
@@ -795,6 +822,7 @@ int main(void)
 		cmocka_unit_test(test_zero_gas_gives_zero_flood_and_weep),
 		cmocka_unit_test(test_zero_liquid_is_finite),
 		cmocka_unit_test(test_gas_above_flood_is_finite_above_100_and_noted),
+		cmocka_unit_test(test_flood_point_evaluation_leaves_no_notes),
 		cmocka_unit_test(test_bad_properties_give_bad_quality_and_nan_fields),
 		cmocka_unit_test(test_bad_flows_or_geometry_give_bad_quality),
 		cmocka_unit_test(test_dp_flood_pct_only_with_measured_dp),
