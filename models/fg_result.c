@@ -63,6 +63,8 @@ void result_clear(struct section_result *r)
 	r->quality = FG_QUALITY_GOOD;
 	r->extrap.count = 0;
 	r->extrap.first = NULL;
+	r->missing.count = 0;
+	r->missing.first = NULL;
 }
 
 void fg_extrap_note(struct fg_extrap *x, const char *why)

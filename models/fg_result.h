@@ -84,6 +84,10 @@ struct section_result {
 	enum bubble_regime regime;/* bubble columns only */
 	enum fg_quality quality;
 	struct fg_extrap extrap;  /* extrapolated = extrap.count > 0 */
+	/* Optional constants not given, so a field is absent or another method
+	 * stood in (packed beds). Not an extrapolation: it does not touch
+	 * quality or `extrapolated`; rate and check print the first reason. */
+	struct fg_extrap missing;
 };
 
 /* Field descriptor: name is the external key; unit is for display. */

@@ -531,7 +531,6 @@ struct pe {
 	double u_g, u_l;          /* superficial velocities, m/s */
 	double gas_flux, liq_flux;/* mass fluxes, kg/(s m2) */
 	double area_m2, height_m;
-	unsigned missing;         /* notes about missing constants (not extrapolation) */
 };
 
 static bool has_bs_flood(const struct packing_constants *c)
@@ -539,10 +538,12 @@ static bool has_bs_flood(const struct packing_constants *c)
 	return has_geometry(c) && pos_finite(c->billet_cfl);
 }
 
+/* A constant the table or config does not give: the field is left out or
+ * another method stands in. Kept apart from the extrapolation notes. */
 static void note_missing(struct pe *e, struct section_result *r, const char *why)
 {
-	fg_extrap_note(&r->extrap, why);
-	e->missing++;
+	(void)e;
+	fg_extrap_note(&r->missing, why);
 }
 
 /* Flood % by the configured method, falling back to the other one when the
@@ -662,7 +663,7 @@ void packed_eval(const struct section_geom *g, const struct fluid_state *f,
 		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
 		return;
 	}
-	struct pe e = {.c = &g->packed.c, .f = f, .missing = 0};
+	struct pe e = {.c = &g->packed.c, .f = f};
 	/* The tower cross-section, computed here so this file needs only the
 	 * geometry (section_area_m2 gives the same pi d^2/4). */
 	e.area_m2 = section_area_m2(g);
@@ -677,7 +678,8 @@ void packed_eval(const struct section_geom *g, const struct fluid_state *f,
 	eval_dp(&e, r);
 	eval_dp_flood(&e, g, p, r);
 	eval_holdup(&e, r);
-	/* Notes other than missing constants are extrapolations: uncertain. */
-	if (r->extrap.count - before > e.missing)
+	/* Missing constants go to r->missing; what reaches r->extrap here is
+	 * a real extrapolation: uncertain. */
+	if (r->extrap.count > before)
 		fg_quality_raise(&r->quality, FG_QUALITY_UNCERTAIN);
 }

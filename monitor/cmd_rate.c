@@ -135,6 +135,9 @@ static void print_table(const struct fg_config *cfg, const struct section_cfg *s
 	printf("    %-22s %12s\n", "extrapolated", r->extrap.count ? "yes" : "no");
 	if (r->extrap.first)
 		printf("      (%s%s)\n", r->extrap.first, r->extrap.count > 1 ? ", and more" : "");
+	if (r->missing.first)
+		printf("    %-22s %12s\n      (%s%s)\n", "not computed", "", r->missing.first,
+		       r->missing.count > 1 ? ", and more" : "");
 	putchar('\n');
 	fg_caution_print(stdout);
 }

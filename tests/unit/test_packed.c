@@ -424,8 +424,9 @@ static void test_eval_fills_flood_holdup_and_dp_for_a_normal_point(void **state)
 	assert_true(close_rel(r.v[RF_DP_FLOOD_PCT], 100.0 * 400.0 / kg, 1e-9));
 	/* No B-S constants for this packing: no loading point, said so. */
 	assert_true(isnan(r.v[RF_LOADING_PCT]));
+	assert_true(r.missing.count >= 1);
 	/* Its Fp (110 1/ft) lies above the Kister-Gill data: flagged, uncertain. */
-	assert_true(r.extrap.count >= 2);
+	assert_true(r.extrap.count >= 1);
 	assert_int_equal(r.quality, FG_QUALITY_UNCERTAIN);
 	/* Without the DP signal the Kister-Gill part is not used: good. */
 	p.dp_pa = NAN;
@@ -455,7 +456,7 @@ static void test_eval_billet_schultes_packing_uses_bs_and_notes_missing_dp(void 
 	assert_true(isnan(r.v[RF_DP_MODEL_PA]));
 	assert_true(isnan(r.v[RF_DP_FLOOD_PCT])); /* no dp signal */
 	assert_int_equal(r.quality, FG_QUALITY_GOOD);
-	assert_true(r.extrap.count >= 1);
+	assert_true(r.missing.count >= 1);
 }
 
 static void test_eval_falls_back_to_robbins_and_other_flood_method(void **state)
@@ -474,7 +475,7 @@ static void test_eval_falls_back_to_robbins_and_other_flood_method(void **state)
 	assert_true(close_rel(r.v[RF_DP_MODEL_PA], rob * 6.0, 1e-9));
 	double u_fl = packed_bs_flood_ms(&g.packed.c, ul, &f, NULL);
 	assert_true(close_rel(r.v[RF_FLOOD_PCT], 100.0 * ug / u_fl, 1e-9));
-	assert_non_null(strstr(r.extrap.first, "Billet-Schultes"));
+	assert_non_null(strstr(r.missing.first, "Billet-Schultes"));
 }
 
 static void test_eval_dry_bed_does_not_flood(void **state)
@@ -596,8 +597,55 @@ static void test_eval_missing_all_constants_leaves_fields_nan_with_notes(void **
 	assert_true(isnan(r.v[RF_DP_FLOOD_PCT]));
 	assert_true(isnan(r.v[RF_LIQUID_HOLDUP_FRAC]));
 	assert_int_equal(r.basis, FLOOD_BASIS_NONE);
-	assert_int_equal(r.extrap.count, 5);
+	assert_int_equal(r.missing.count, 5);
+	assert_int_equal(r.extrap.count, 0);
 	assert_int_equal(r.quality, FG_QUALITY_GOOD);
+}
+
+static struct section_props air_water_props(void)
+{
+	struct section_props pr;
+	memset(&pr, 0, sizeof pr);
+	pr.gas_molar_mass_kgkmol = 28.96;
+	pr.gas_compressibility = 1.0;
+	struct prop_table one = {.point_count = 1};
+	one.value[0] = 1.8e-5;
+	pr.gas_viscosity_pas = one;
+	one.value[0] = 1000.0;
+	pr.liquid_density_kgm3 = one;
+	one.value[0] = 1.0e-3;
+	pr.liquid_viscosity_pas = one;
+	one.value[0] = 0.072;
+	pr.surface_tension_nm = one;
+	return pr;
+}
+
+/* A packing without an optional constant (the saddle has no Billet-Schultes
+ * C_S, so no loading point) is not an extrapolation: through the whole
+ * section evaluation the result stays good and not extrapolated, the
+ * loading field is absent and the reason is kept apart from the
+ * extrapolation notes. Before the fix section_eval made every such section
+ * "uncertain" for good, and the engine's DP correction never learned on it. */
+static void test_section_missing_optional_constant_is_not_extrapolation(void **state)
+{
+	(void)state;
+	struct section_geom g = geom("ceramic-saddle-25mm", PACKED_FLOOD_STICHLMAIR);
+	struct section_props pr = air_water_props();
+	struct section_point p = point(0.6 * 1.2 * area(&g), 0.004 * 1000.0 * area(&g));
+	struct section_result r;
+	section_eval(&g, &pr, &p, &r);
+	assert_true(isfinite(r.v[RF_FLOOD_PCT]));
+	assert_true(r.v[RF_FLOOD_PCT] < 90.0);
+	assert_true(isnan(r.v[RF_LOADING_PCT]));
+	assert_int_equal(r.extrap.count, 0);
+	assert_int_equal(r.quality, FG_QUALITY_GOOD);
+	assert_true(r.missing.count >= 1);
+	assert_non_null(strstr(r.missing.first, "C_S"));
+	/* A real extrapolation still makes it uncertain: gas above flooding. */
+	p.gas_kgs *= 3.0;
+	section_eval(&g, &pr, &p, &r);
+	assert_true(r.extrap.count >= 1);
+	assert_int_equal(r.quality, FG_QUALITY_UNCERTAIN);
 }
 
 static void test_eval_flood_rises_with_gas_rate(void **state)
@@ -650,6 +698,7 @@ int main(void)
 		cmocka_unit_test(test_eval_liquid_lighter_than_gas_is_bad_and_all_nan),
 		cmocka_unit_test(test_eval_missing_liquid_flow_is_bad),
 		cmocka_unit_test(test_eval_missing_all_constants_leaves_fields_nan_with_notes),
+		cmocka_unit_test(test_section_missing_optional_constant_is_not_extrapolation),
 		cmocka_unit_test(test_eval_flood_rises_with_gas_rate),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
