@@ -89,7 +89,8 @@ enum mqttlink_log_level {
 typedef void mqttlink_log_fn(void *user, enum mqttlink_log_level level, const char *msg);
 
 /* Precious messages held until acknowledged: four per possible alarm (an
- * alarm goes through at most UNACK, ACKED, RTNUN, NORM in an outage before
+ * alarm goes through at most unacknowledged, acknowledged, returned_unacknowledged,
+ * normal in an outage before
  * repeating itself; beyond that the replace-in-place rule keeps the newest). */
 #define MQTTLINK_PRECIOUS_MAX (4 * FG_ALARMS_MAX)
 

@@ -9,6 +9,7 @@
  * Choices the standards leave open are ours and are documented in alarm.h.
  */
 #include "alarm.h"
+#include "numfmt.h"
 
 #include <assert.h>
 #include <errno.h>
@@ -33,6 +34,19 @@ static const char *const priority_names[ALARM_PRIORITY_COUNT] = {
 };
 
 static const char *const state_names[ALARM_STATE_COUNT] = {
+	[ALARM_STATE_NORM] = "normal",
+	[ALARM_STATE_UNACK] = "unacknowledged",
+	[ALARM_STATE_ACKED] = "acknowledged",
+	[ALARM_STATE_RTNUN] = "returned_unacknowledged",
+	[ALARM_STATE_SHLVD] = "shelved",
+	[ALARM_STATE_DSUPR] = "suppressed_by_design",
+	[ALARM_STATE_OOSRV] = "out_of_service",
+};
+
+/* The five-letter codes earlier versions wrote into state files. They are
+ * read (so an upgrade keeps the alarm states across the restart) but never
+ * written. */
+static const char *const legacy_state_names[ALARM_STATE_COUNT] = {
 	[ALARM_STATE_NORM] = "NORM",
 	[ALARM_STATE_UNACK] = "UNACK",
 	[ALARM_STATE_ACKED] = "ACKED",
@@ -103,6 +117,8 @@ int alarm_state_parse(const char *name, enum alarm_state *out)
 {
 	assert(out != NULL);
 	int i = parse_name(name, state_names, ALARM_STATE_COUNT);
+	if (i < 0)
+		i = parse_name(name, legacy_state_names, ALARM_STATE_COUNT);
 	if (i < 0)
 		return i;
 	*out = (enum alarm_state)i;
@@ -619,12 +635,8 @@ static void jnum(struct jbuf *b, double v)
 		jraw(b, "null");
 		return;
 	}
-	char num[32];
-	int n = snprintf(num, sizeof num, "%.6g", v);
-	if (n < 0 || (size_t)n >= sizeof num) {
-		b->full = true;
-		return;
-	}
+	char num[NUMFMT_FULL_SIZE];
+	int n = numfmt_full(v, num, sizeof num);
 	jput(b, num, (size_t)n);
 }
 

@@ -58,8 +58,10 @@ enum alarm_priority {
 	ALARM_PRIORITY_COUNT
 };
 
-/* Visible states. Names are the ISA-18.2 abbreviations, used verbatim in
- * events, MQTT payloads and the state file. */
+/* Visible states. Their names (alarm_state_name) are the words of ISA-18.2,
+ * in one spelling everywhere: events, MQTT payloads, the state file, the live
+ * view and the report. The enum constants keep the short codes for brevity
+ * in the code only. */
 enum alarm_state {
 	ALARM_STATE_NORM,  /* normal, nothing to acknowledge */
 	ALARM_STATE_UNACK, /* active, unacknowledged */
@@ -251,7 +253,10 @@ bool alarm_is_consistent(const struct alarm *a);
 /* Names (static strings) and parsers (0, or -EINVAL for an unknown name; *out
  * untouched then). Kind names: "high", "high-high", "low", "rate",
  * "deviation", "diagnostic"; priorities: "low", "medium", "high", "urgent";
- * states: "NORM", "UNACK", "ACKED", "RTNUN", "SHLVD", "DSUPR", "OOSRV". */
+ * states: "normal", "unacknowledged", "acknowledged",
+ * "returned_unacknowledged", "shelved", "suppressed_by_design",
+ * "out_of_service" (alarm_state_parse also reads the codes NORM, UNACK,
+ * ACKED, RTNUN, SHLVD, DSUPR, OOSRV that older state files hold). */
 const char *alarm_kind_name(enum alarm_kind k);
 const char *alarm_priority_name(enum alarm_priority p);
 const char *alarm_state_name(enum alarm_state s);
@@ -265,7 +270,7 @@ const char *alarm_reason_static(const char *reason);
 
 /* Formats ev as one JSON object, without a newline:
  *   {"t":T_ISO,"alarm":NAME,"section":SECTION,"kind":"high","priority":"high",
- *    "state":"UNACK","value":N,"setpoint":N}
+ *    "state":"unacknowledged","value":N,"setpoint":N}
  * with ,"reason":"frozen" (or null) before the closing brace for diagnostic
  * alarms. Numbers are %.6g in the C locale (the engine never calls
  * setlocale), NAN and infinities are null, strings are JSON-escaped. Returns

@@ -244,11 +244,11 @@ static bool parse_bool(int v, bool *out)
 /* Parses one alarm line (without its '\n') into *r. 0 or -EBADMSG. */
 static int parse_alarm(const char *line, struct record *r)
 {
-	char state[8];
+	char state[32]; /* "returned_unacknowledged" is the longest name */
 	int act, unack, shel, oos, supr, off = -1;
 	int64_t until;
 	int got = sscanf(line,
-			 "alarm %5s active=%d unacked=%d shelved=%d until_t_ms=%" SCNd64
+			 "alarm %31s active=%d unacked=%d shelved=%d until_t_ms=%" SCNd64
 			 " oos=%d dsupr=%d name=%n",
 			 state, &act, &unack, &shel, &until, &oos, &supr, &off);
 	if (got != 7 || off < 0)

@@ -7,7 +7,7 @@
  * occurrence awaits acknowledgement, the shelve and its expiry (absolute, ms
  * since the Unix epoch, so a shelve that ran out while the daemon was down
  * ends at the first evaluation after the restart), out of service, and
- * suppression by design (so a restart of a shut-down section shows DSUPR
+ * suppression by design (so a restart of a shut-down section shows suppressed_by_design
  * until the first evaluation says otherwise). Not kept: running on- and
  * off-delays, rate history and the diagnostic reason; they rebuild from the
  * first samples.
@@ -17,8 +17,8 @@
  *   floodgauge-alarmstate 1
  *   saved_t_ms 1767225600000
  *   count 2
- *   alarm UNACK active=1 unacked=1 shelved=0 until_t_ms=0 oos=0 dsupr=0 name=T1_flood_hi
- *   alarm SHLVD active=0 unacked=0 shelved=1 until_t_ms=1767229200000 oos=0 dsupr=0 name=T1_weep
+ *   alarm unacknowledged active=1 unacked=1 shelved=0 until_t_ms=0 oos=0 dsupr=0 name=T1_flood_hi
+ *   alarm shelved active=0 unacked=0 shelved=1 until_t_ms=1767229200000 oos=0 dsupr=0 name=T1_weep
  *   crc32 0x89abcdef
  *
  * - Line 1 names the format and its version. A different version is refused

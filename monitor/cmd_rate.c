@@ -12,6 +12,7 @@
 #include "commands.h"
 #include "config.h"
 #include "jsonw.h"
+#include "numfmt.h"
 #include "point.h"
 
 static struct fg_config *load_or_report(const char *path)
@@ -115,24 +116,29 @@ static void print_table(const struct fg_config *cfg, const struct section_cfg *s
 		if (ti < 0)
 			continue;
 		const struct tag_cfg *t = &cfg->tags[ti];
+		char num[NUMFMT_FULL_SIZE];
+		numfmt_human(values[ti], t->unit ? t->unit->name : NULL, num, sizeof num);
 		if (isfinite(values[ti]))
-			printf("    %-22s %12.6g %-8s (%s)\n", config_signal_name((enum section_signal)k),
-			       values[ti], t->unit ? t->unit->name : "", t->name);
+			printf("    %-22s %12s %-8s (%s)\n", config_signal_name((enum section_signal)k),
+			       num, t->unit ? t->unit->name : "", t->name);
 		else
 			printf("    %-22s %12s %-8s (%s)\n", config_signal_name((enum section_signal)k),
 			       "-", "", t->name);
 	}
 	printf("\n  results\n");
-	for (int i = 0; i < RF_COUNT; i++)
-		if (isfinite(r->v[i]))
-			printf("    %-22s %12.6g %s\n", result_fields[i].name, r->v[i],
-			       result_fields[i].unit);
+	for (int i = 0; i < RF_COUNT; i++) {
+		char num[NUMFMT_FULL_SIZE];
+		if (!isfinite(r->v[i]))
+			continue;
+		numfmt_human(r->v[i], result_fields[i].unit, num, sizeof num);
+		printf("    %-22s %12s %s\n", result_fields[i].name, num, result_fields[i].unit);
+	}
 	if (r->basis != FLOOD_BASIS_NONE)
 		printf("    %-22s %12s\n", "flood_basis", flood_basis_name(r->basis));
 	if (r->regime != BUBBLE_REGIME_NONE)
 		printf("    %-22s %12s\n", "regime", bubble_regime_name(r->regime));
 	printf("    %-22s %12s\n", "quality", fg_quality_name(r->quality));
-	printf("    %-22s %12s\n", "extrapolated", r->extrap.count ? "yes" : "no");
+	printf("    %-22s %12s\n", "extrapolated", r->extrap.count ? "true" : "false");
 	if (r->extrap.first)
 		printf("      (%s%s)\n", r->extrap.first, r->extrap.count > 1 ? ", and more" : "");
 	if (r->missing.first)

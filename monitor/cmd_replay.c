@@ -20,6 +20,7 @@
 #include "commands.h"
 #include "csvread.h"
 #include "engine.h"
+#include "numfmt.h"
 #include "report.h"
 #include "results.h"
 #include "timefmt.h"
@@ -325,9 +326,12 @@ static void print_summary(const struct replay *rp)
 		timefmt_format(s->first_t_ms, a, sizeof(a));
 		timefmt_format(s->last_t_ms, b, sizeof(b));
 	}
+	char span[NUMFMT_DURATION_SIZE];
+	numfmt_duration(rp->rows_used ? (double)(s->last_t_ms - s->first_t_ms) / 1000.0 : 0.0, span,
+			sizeof(span));
 	printf("replay of %s on %s\n", rp->data_path, cfg->monitor.name);
-	printf("  rows used %llu, from %s to %s (%.2f h)\n", (unsigned long long)rp->rows_used, a,
-	       b, rp->rows_used ? (double)(s->last_t_ms - s->first_t_ms) / 3.6e6 : 0.0);
+	printf("  rows used %llu, from %s to %s (%s)\n", (unsigned long long)rp->rows_used, a, b,
+	       span);
 	printf("  rows skipped: %llu malformed, %llu out of time order, %llu duplicate time, "
 	       "%llu outside --from/--to\n", (unsigned long long)s->rows_malformed,
 	       (unsigned long long)s->rows_unsorted, (unsigned long long)s->rows_duplicate,
@@ -344,10 +348,14 @@ static void print_summary(const struct replay *rp)
 			timefmt_format(s->first_alarm_t_ms[i], t, sizeof(t));
 		printf("    %-16s %s\n", cfg->sections[i].name, t);
 	}
-	printf("  time beyond setpoint:\n");
-	for (unsigned i = 0; i < cfg->alarm_count; i++)
-		if (isfinite(s->above_setpoint_s[i]))
-			printf("    %-24s %10.0f s\n", cfg->alarms[i].name, s->above_setpoint_s[i]);
+	printf("  time beyond setpoint (h:mm:ss):\n");
+	for (unsigned i = 0; i < cfg->alarm_count; i++) {
+		char d[NUMFMT_DURATION_SIZE];
+		if (!isfinite(s->above_setpoint_s[i]))
+			continue;
+		numfmt_duration(s->above_setpoint_s[i], d, sizeof(d));
+		printf("    %-24s %10s\n", cfg->alarms[i].name, d);
+	}
 	printf("  wrote %s, %s, %s\n", rp->path_results, rp->path_events, rp->path_report);
 	fg_caution_print(stdout);
 }

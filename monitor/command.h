@@ -12,7 +12,7 @@
  * first and the sender may have meant the second.
  *
  * The reply, published on PREFIX/cmd/reply, is
- *   {"id":..,"op":"ack","alarm":"X","ok":true,"state":"ACKED"}
+ *   {"id":..,"op":"ack","alarm":"X","ok":true,"state":"acknowledged"}
  *   {"id":..,"op":"ack","alarm":"X","ok":false,"error":"unknown alarm"}
  * where id, op and alarm appear only when the command got far enough to
  * have them (a payload that is not JSON has none of them).

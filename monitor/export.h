@@ -10,8 +10,8 @@
  *   base + 2F + S     heartbeat: evaluations since start, modulo 65536, so the
  *                     control system can tell a stalled monitor
  * Discrete inputs (function code 2) from 0: for alarm a (config order),
- * 2a = active (UNACK or ACKED), 2a + 1 = awaiting acknowledgement (UNACK or
- * RTNUN).
+ * 2a = active (unacknowledged or acknowledged), 2a + 1 = awaiting acknowledgement
+ * (unacknowledged or returned_unacknowledged).
  */
 #ifndef EXPORT_H
 #define EXPORT_H

@@ -9,6 +9,8 @@
 #include <stdarg.h>
 #include <stdio.h>
 
+#include "numfmt.h"
+
 void jsonw_init(struct jsonw *w, char *buf, size_t cap)
 {
 	assert(w != NULL);
@@ -86,9 +88,11 @@ void jsonw_str(struct jsonw *w, const char *k, const char *value)
 void jsonw_num(struct jsonw *w, const char *k, double value)
 {
 	key(w, k);
-	if (isfinite(value))
-		put(w, "%.6g", value == 0.0 ? 0.0 : value); /* no "-0" */
-	else
+	char num[NUMFMT_FULL_SIZE];
+	if (isfinite(value)) {
+		numfmt_full(value, num, sizeof num); /* full precision, no "-0" */
+		put(w, "%s", num);
+	} else
 		put(w, "null");
 }
 

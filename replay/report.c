@@ -14,7 +14,7 @@
  *
  * Alarm shading does not use the grid: each section and priority keeps its
  * own short list of exact active periods (from the first of its alarms going
- * to UNACK until the last one leaves UNACK/ACKED), joined pairwise when full.
+ * to unacknowledged until the last one leaves the active states), joined pairwise when full.
  */
 #include "report.h"
 
@@ -36,7 +36,8 @@ const char *const report_priority_names[REPORT_PRIORITY_COUNT] = {
 };
 
 static const char *const state_names[] = {
-	"NORM", "UNACK", "ACKED", "RTNUN", "SHLVD", "DSUPR", "OOSRV",
+	"normal", "unacknowledged", "acknowledged", "returned_unacknowledged",
+	"shelved", "suppressed_by_design", "out_of_service",
 };
 #define STATE_COUNT (sizeof state_names / sizeof state_names[0])
 
@@ -77,7 +78,7 @@ static int state_lookup(const char *state)
 static bool state_is_active(const char *state)
 {
 	assert(state != NULL);
-	return strcmp(state, "UNACK") == 0 || strcmp(state, "ACKED") == 0;
+	return strcmp(state, "unacknowledged") == 0 || strcmp(state, "acknowledged") == 0;
 }
 
 /* ------------------------------------------------------------- lifecycle */

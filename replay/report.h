@@ -98,7 +98,7 @@ struct report_summary {
 	uint64_t rows_duplicate;       /* skipped: same time as the previous row */
 	int64_t first_t_ms;            /* first row time, Unix ms UTC, or REPORT_T_NONE */
 	int64_t last_t_ms;             /* last row time, Unix ms UTC, or REPORT_T_NONE */
-	uint64_t raised[REPORT_PRIORITY_COUNT];        /* alarms raised (to UNACK) per priority */
+	uint64_t raised[REPORT_PRIORITY_COUNT];        /* alarms raised (to unacknowledged) per priority */
 	int64_t first_alarm_t_ms[FG_SECTIONS_MAX];     /* per section, or REPORT_T_NONE */
 	double above_setpoint_s[FG_ALARMS_MAX];        /* per alarm, s; NAN = not applicable */
 };
@@ -194,8 +194,10 @@ int report_init(struct report *rp, const struct report_layout *layout);
  * -EINVAL returned (the caller skips unsorted rows before this). Returns 0. */
 int report_add_row(struct report *rp, int64_t t_ms, const struct section_result *results);
 
-/* Records one alarm event. state is one of NORM, UNACK, ACKED, RTNUN, SHLVD,
- * DSUPR, OOSRV; an alarm counts as active (and is shaded) in UNACK and ACKED.
+/* Records one alarm event. state is one of the ISA-18.2 names alarm_state_name
+ * gives (normal, unacknowledged, acknowledged, returned_unacknowledged,
+ * shelved, suppressed_by_design, out_of_service); an alarm counts as active
+ * (and is shaded) in unacknowledged and acknowledged.
  * Returns 0, or -EINVAL for an unknown state (event ignored). */
 int report_add_event(struct report *rp, int64_t t_ms, int alarm_index, const char *state,
 		     double value);

@@ -20,6 +20,7 @@
 #include <unistd.h>
 
 #include "report_int.h"
+#include "numfmt.h"
 #include "timefmt.h"
 
 /* Shading colour per priority (and "other"), translucent so that overlapping
@@ -142,21 +143,19 @@ static void put_value(FILE *f, double v, const struct report_alarm *a)
 		fprintf(f, " %s", unit);
 }
 
-/* Duration as "1 d 02 h 03 min 04 s" (leading zero units left out). */
+/* Duration as h:mm:ss; under a minute with its milliseconds ("16.384 s"),
+ * where a whole second would hide the sampling period. */
 static void put_duration(FILE *f, int64_t ms)
 {
 	if (ms < 0)
 		ms = 0;
-	const int64_t s = ms / 1000;
-	const int64_t d = s / 86400, h = s / 3600 % 24, m = s / 60 % 60, sec = s % 60;
-	if (d > 0)
-		fprintf(f, "%" PRId64 " d %02" PRId64 " h %02" PRId64 " min", d, h, m);
-	else if (h > 0)
-		fprintf(f, "%" PRId64 " h %02" PRId64 " min %02" PRId64 " s", h, m, sec);
-	else if (m > 0)
-		fprintf(f, "%" PRId64 " min %02" PRId64 " s", m, sec);
-	else
-		fprintf(f, "%" PRId64 ".%03" PRId64 " s", sec, ms % 1000);
+	if (ms < 60000 && ms % 1000 != 0) {
+		fprintf(f, "%" PRId64 ".%03" PRId64 " s", ms / 1000, ms % 1000);
+		return;
+	}
+	char b[NUMFMT_DURATION_SIZE];
+	numfmt_duration((double)ms / 1000.0, b, sizeof b);
+	fputs(b, f);
 }
 
 static const char page_css[] =
@@ -192,8 +191,8 @@ static const char page_css[] =
 	".ln{display:inline-block;width:22px;height:0;vertical-align:middle;margin-right:4px;"
 	"border-top:3px solid}\n"
 	".st{font-weight:600}\n"
-	".st-UNACK{color:#a3231b}.st-ACKED{color:#a35f00}.st-RTNUN{color:#2d5f9a}"
-	".st-NORM{color:#2f6b35}\n"
+	".st-unacknowledged{color:#a3231b}.st-acknowledged{color:#a35f00}"
+	".st-returned_unacknowledged{color:#2d5f9a}.st-normal{color:#2f6b35}\n"
 	"footer{margin-top:24px;font-size:11px;color:#6b7378}\n"
 	/* SVG classes: lines, shading, strip, axes. */
 	"svg text{font-family:inherit;font-size:11px;fill:#3b4246}\n"
@@ -323,12 +322,9 @@ static void write_summary_alarms(FILE *f, const struct report *rp,
 		fputs("</td><td class=\"n\">", f);
 		put_value(f, a->setpoint, a);
 		fputs("</td><td class=\"n\">", f);
-		if (isfinite(sum->above_setpoint_s[i])) {
-			report_html_put_fixed(f, sum->above_setpoint_s[i], 1);
-			fputs(" s", f);
-		} else {
-			fputs("-", f);
-		}
+		char d[NUMFMT_DURATION_SIZE];
+		numfmt_duration(sum->above_setpoint_s[i], d, sizeof d);
+		fputs(d, f);
 		fputs("</td></tr>\n", f);
 	}
 	fputs("</table>\n", f);
@@ -349,7 +345,7 @@ static void write_legend(FILE *f)
 			   "%s</span>", lines[s][0], lines[s][1]);
 	fputs("<span class=\"i\"><span class=\"ln\" style=\"border-top:2px dashed #c0392b\">"
 	      "</span>alarm setpoint</span><br>\n", f);
-	fputs("Shaded: alarm active (UNACK or ACKED), by priority ", f);
+	fputs("Shaded: alarm active (unacknowledged or acknowledged), by priority ", f);
 	for (int p = 0; p < SHADE_KINDS; p++)
 		fprintf(f, "<span class=\"i\"><span class=\"sw\" style=\"background:%s\"></span>"
 			   "%s</span>", report_html_shade_css[p],

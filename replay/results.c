@@ -7,6 +7,7 @@
 #include <errno.h>
 #include <math.h>
 
+#include "numfmt.h"
 #include "timefmt.h"
 
 static const char *const text_columns[] = {"flood_basis", "regime", "quality", "extrapolated"};
@@ -39,13 +40,14 @@ int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 	for (unsigned s = 0; s < cfg->section_count; s++) {
 		const struct section_result *r = results[s];
 		for (int i = 0; i < RF_COUNT; i++) {
-			if (isfinite(r->v[i]))
-				fprintf(f, ",%.6g", r->v[i] == 0.0 ? 0.0 : r->v[i]);
-			else
-				fputc(',', f);
+			fputc(',', f);
+			if (isfinite(r->v[i])) {
+				char num[NUMFMT_FULL_SIZE];
+				fputs(numfmt_full(r->v[i], num, sizeof num) > 0 ? num : "", f);
+			}
 		}
-		fprintf(f, ",%s,%s,%s,%d", flood_basis_name(r->basis), bubble_regime_name(r->regime),
-			fg_quality_name(r->quality), r->extrap.count > 0);
+		fprintf(f, ",%s,%s,%s,%s", flood_basis_name(r->basis), bubble_regime_name(r->regime),
+			fg_quality_name(r->quality), r->extrap.count > 0 ? "true" : "false");
 	}
 	fputc('\n', f);
 	return ferror(f) ? -EIO : 0;

@@ -60,7 +60,7 @@ if m and ramp:
     out = os.path.join(tmp, "flood")
     rc, so, se, ev = replay(csv, out)
     ok(rc == 0, "replay of the flood set exits 0", se)
-    raised = [e for e in ev if e["alarm"] == "C401_FLOOD_H" and e["state"] == "UNACK"]
+    raised = [e for e in ev if e["alarm"] == "C401_FLOOD_H" and e["state"] == "unacknowledged"]
     ok(len(raised) >= 1, "C401 flood alarm raised", ev)
     if raised:
         ok(raised[0]["t"] < flood_point,
@@ -104,10 +104,10 @@ csv = os.path.join(tmp, "frozen.csv")
 rc, summary = simulate("frozen", csv)
 fm = re.search(r"C402_PDI frozen from (\S+?Z) to (\S+?Z)", summary)
 rc, so, se, ev = replay(csv, os.path.join(tmp, "frozen"))
-diag = [e for e in ev if e["alarm"] == "C402_DIAG" and e["state"] == "UNACK"]
+diag = [e for e in ev if e["alarm"] == "C402_DIAG" and e["state"] == "unacknowledged"]
 ok(len(diag) == 1 and diag[0].get("reason") == "frozen", "frozen DP raises C402_DIAG (frozen)",
    ev)
-ok(not any(e["section"] == "C402" and e["kind"] != "diagnostic" and e["state"] == "UNACK"
+ok(not any(e["section"] == "C402" and e["kind"] != "diagnostic" and e["state"] == "unacknowledged"
            for e in ev), "frozen DP raises no process alarm", ev)
 if fm and diag:
     # frozen_s = 120 and on_delay_s = 10 in the demo config
@@ -119,7 +119,7 @@ csv = os.path.join(tmp, "weep.csv")
 rc, summary = simulate("weep", csv)
 wm = re.search(r"weep_pct below 100 % from (\S+?Z)", summary)
 rc, so, se, ev = replay(csv, os.path.join(tmp, "weep"))
-weep = [e for e in ev if e["alarm"] == "C401_WEEP_L" and e["state"] == "UNACK"]
+weep = [e for e in ev if e["alarm"] == "C401_WEEP_L" and e["state"] == "unacknowledged"]
 ok(len(weep) >= 1, "weeping raises C401_WEEP_L", ev)
 if wm and weep:
     # the low alarm's setpoint is 110 %: it warns before the model says "weeping"
@@ -131,7 +131,7 @@ ok(not any(e["alarm"].endswith("FLOOD_H") for e in ev), "no flood alarm while we
 csv = os.path.join(tmp, "gap.csv")
 simulate("gap", csv)
 rc, so, se, ev = replay(csv, os.path.join(tmp, "gap"))
-stale = [e for e in ev if e["kind"] == "diagnostic" and e["state"] == "UNACK"]
+stale = [e for e in ev if e["kind"] == "diagnostic" and e["state"] == "unacknowledged"]
 ok(len(stale) >= 1 and all(e.get("reason") == "stale" for e in stale),
    "the gap raises stale diagnostics", ev)
 ok(all(e["kind"] == "diagnostic" for e in ev), "the gap raises no process alarm", ev)

@@ -200,12 +200,12 @@ try:
     ok(mb_read_input_floats(exp_port, 0, 1)[0] != 1234, "and changes nothing")
 
     # the flood alarm, acknowledged by a command
-    al = sub.wait_for(lambda m: m[0] == "alarm/C401_FLOOD_H" and '"UNACK"' in m[1], 30)
+    al = sub.wait_for(lambda m: m[0] == "alarm/C401_FLOOD_H" and '"unacknowledged"' in m[1], 30)
     ok(al is not None, "C401_FLOOD_H raised on its retained topic")
     pub(mqtt_port, prefix + "/cmd", '{"op":"ack","alarm":"C401_FLOOD_H","id":7}')
     rep = sub.wait_for(lambda m: m[0] == "cmd/reply" and '"id":7' in m[1], 10)
     ok(rep is not None and json.loads(rep[1]).get("ok") is True, "ack replied ok", rep)
-    acked = sub.wait_for(lambda m: m[0] == "alarm/C401_FLOOD_H" and '"ACKED"' in m[1], 10)
+    acked = sub.wait_for(lambda m: m[0] == "alarm/C401_FLOOD_H" and '"acknowledged"' in m[1], 10)
     ok(acked is not None, "alarm topic shows ACKED")
     pub(mqtt_port, prefix + "/cmd", '{"op":"ack","alarm":')
     bad = sub.wait_for(lambda m: m[0] == "cmd/reply" and '"ok":false' in m[1], 10)
@@ -251,7 +251,7 @@ try:
 
     ok(len(seq(rep_ev)) > 0 and seq(live) == seq(rep_ev), "live alarm sequence equals replay's",
        (seq(live), seq(rep_ev)))
-    ok(any(e["alarm"] == "C401_FLOOD_H" and e["state"] == "UNACK" for e in rep_ev),
+    ok(any(e["alarm"] == "C401_FLOOD_H" and e["state"] == "unacknowledged" for e in rep_ev),
        "replay raises the same flood alarm")
 
     # a clean stop: --once publishes offline itself and saves the state

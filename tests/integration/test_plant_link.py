@@ -90,7 +90,7 @@ try:
     end = time.time() + 20
     while time.time() < end and diag is None:
         diag = next((e for e in events(ev_path)
-                     if e["alarm"] == "C401_DIAG" and e["state"] == "UNACK"), None)
+                     if e["alarm"] == "C401_DIAG" and e["state"] == "unacknowledged"), None)
         time.sleep(0.2)
     ok(diag is not None and diag.get("reason") == "comm_fail",
        "C401_DIAG raised with reason comm_fail", events(ev_path))
@@ -108,9 +108,9 @@ try:
     end = time.time() + 20
     while time.time() < end and back is None:
         back = next((e for e in events(ev_path)
-                     if e["alarm"] == "C401_DIAG" and e["state"] == "RTNUN"), None)
+                     if e["alarm"] == "C401_DIAG" and e["state"] == "returned_unacknowledged"), None)
         time.sleep(0.2)
-    ok(back is not None, "C401_DIAG returns to normal (RTNUN) after the recovery")
+    ok(back is not None, "C401_DIAG returns to normal (returned_unacknowledged) after the recovery")
     daemon.terminate()
     ok(daemon.wait(timeout=20) == 0, "SIGTERM: clean exit 0")
 finally:

@@ -893,7 +893,11 @@ static void test_names_parse_back_to_their_values(void **state)
 	static const char *const kinds[] = {"high", "high-high", "low", "rate", "deviation",
 					    "diagnostic"};
 	static const char *const prios[] = {"low", "medium", "high", "urgent"};
-	static const char *const states[] = {"NORM", "UNACK", "ACKED", "RTNUN",
+	static const char *const states[] = {"normal", "unacknowledged", "acknowledged",
+					     "returned_unacknowledged", "shelved",
+					     "suppressed_by_design", "out_of_service"};
+	/* The codes of older state files are still read, never written. */
+	static const char *const legacy[] = {"NORM", "UNACK", "ACKED", "RTNUN",
 					     "SHLVD", "DSUPR", "OOSRV"};
 	for (int i = 0; i < ALARM_KIND_COUNT; i++) {
 		enum alarm_kind k;
@@ -912,6 +916,9 @@ static void test_names_parse_back_to_their_values(void **state)
 		assert_int_equal(alarm_state_parse(states[i], &s), 0);
 		assert_int_equal(s, i);
 		assert_string_equal(alarm_state_name(s), states[i]);
+		enum alarm_state l;
+		assert_int_equal(alarm_state_parse(legacy[i], &l), 0);
+		assert_int_equal(l, i);
 	}
 	enum alarm_kind k = ALARM_KIND_LOW;
 	assert_int_equal(alarm_kind_parse("High", &k), -EINVAL);
@@ -998,7 +1005,7 @@ static struct alarm_event sample_event(void)
 	return ev;
 }
 
-/* DESIGN.md "Alarm events": the keys in order, %.6g numbers. */
+/* DESIGN.md "Alarm events": the keys in order, numbers in full precision. */
 static void test_event_json_has_contract_keys(void **state)
 {
 	(void)state;
@@ -1009,13 +1016,14 @@ static void test_event_json_has_contract_keys(void **state)
 	int n = alarm_event_json(&ev, &c, "T1_top", "2026-01-01T00:00:00Z", buf, sizeof buf);
 	const char *want = "{\"t\":\"2026-01-01T00:00:00Z\",\"alarm\":\"T1_flood_hh\","
 			   "\"section\":\"T1_top\",\"kind\":\"high-high\",\"priority\":\"high\","
-			   "\"state\":\"UNACK\",\"value\":81.2346,\"setpoint\":80}";
+			   "\"state\":\"unacknowledged\",\"value\":81.23456789,\"setpoint\":80}";
 	assert_string_equal(buf, want);
 	assert_int_equal(n, (int)strlen(want));
 	cJSON *j = cJSON_Parse(buf);
 	assert_non_null(j);
-	assert_true(fabs(cJSON_GetNumberValue(cJSON_GetObjectItemCaseSensitive(j, "value")) -
-			 81.2346) <= 1e-12);
+	/* Machine files keep full precision: the value reads back exactly. */
+	assert_true(cJSON_GetNumberValue(cJSON_GetObjectItemCaseSensitive(j, "value")) ==
+		    81.23456789);
 	assert_null(cJSON_GetObjectItemCaseSensitive(j, "reason"));
 	cJSON_Delete(j);
 }

@@ -236,9 +236,9 @@ static void test_save_replaces_file_and_leaves_no_temp_file(void **state)
 	fclose(f);
 	text[n] = '\0';
 	const char *head = "floodgauge-alarmstate 1\nsaved_t_ms 1767225600000\ncount 2\n"
-			   "alarm NORM active=0 unacked=0 shelved=0 until_t_ms=0 oos=0 dsupr=0 "
+			   "alarm normal active=0 unacked=0 shelved=0 until_t_ms=0 oos=0 dsupr=0 "
 			   "name=T1_norm\n"
-			   "alarm UNACK active=1 unacked=1 shelved=0 until_t_ms=0 oos=0 dsupr=0 "
+			   "alarm unacknowledged active=1 unacked=1 shelved=0 until_t_ms=0 oos=0 dsupr=0 "
 			   "name=T1_unack\n";
 	assert_int_equal(strncmp(text, head, strlen(head)), 0);
 	char crc_line[32];

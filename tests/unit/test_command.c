@@ -365,14 +365,14 @@ static void test_ok_reply_has_id_op_alarm_and_state(void **state)
 	char buf[256];
 	assert_int_equal(parse("{\"id\":\"r1\",\"op\":\"ack\",\"alarm\":\"C201_FLOOD_HI\"}", &c, NULL, 0),
 			 0);
-	int n = command_reply_json(&c, true, NULL, "ACKED", buf, sizeof buf);
+	int n = command_reply_json(&c, true, NULL, "acknowledged", buf, sizeof buf);
 	const char *want =
-		"{\"id\":\"r1\",\"op\":\"ack\",\"alarm\":\"C201_FLOOD_HI\",\"ok\":true,\"state\":\"ACKED\"}";
+		"{\"id\":\"r1\",\"op\":\"ack\",\"alarm\":\"C201_FLOOD_HI\",\"ok\":true,\"state\":\"acknowledged\"}";
 	assert_string_equal(buf, want);
 	assert_int_equal(n, (int)strlen(want));
 	cJSON *r = read_back(buf);
 	assert_true(cJSON_IsTrue(cJSON_GetObjectItemCaseSensitive(r, "ok")));
-	assert_string_equal(cJSON_GetObjectItemCaseSensitive(r, "state")->valuestring, "ACKED");
+	assert_string_equal(cJSON_GetObjectItemCaseSensitive(r, "state")->valuestring, "acknowledged");
 	cJSON_Delete(r);
 }
 
@@ -383,7 +383,7 @@ static void test_error_reply_has_reason_and_no_state(void **state)
 	char buf[256];
 	assert_int_equal(parse("{\"id\":5,\"op\":\"shelve\",\"alarm\":\"W1\",\"duration_s\":60}",
 			       &c, NULL, 0), 0);
-	int n = command_reply_json(&c, false, "unknown alarm", "NORM", buf, sizeof buf);
+	int n = command_reply_json(&c, false, "unknown alarm", "normal", buf, sizeof buf);
 	assert_true(n > 0);
 	assert_string_equal(buf, "{\"id\":5,\"op\":\"shelve\",\"alarm\":\"W1\",\"ok\":false,"
 				 "\"error\":\"unknown alarm\"}");
@@ -429,17 +429,17 @@ static void test_reply_that_does_not_fit_is_refused(void **state)
 {
 	(void)state;
 	struct command c;
-	char buf[64];
+	char buf[128];
 	assert_int_equal(parse("{\"op\":\"ack\",\"alarm\":\"C201_FLOOD_HI\"}", &c, NULL, 0), 0);
-	int full = command_reply_json(&c, true, NULL, "ACKED", buf, sizeof buf);
+	int full = command_reply_json(&c, true, NULL, "acknowledged", buf, sizeof buf);
 	assert_true(full > 0);
 	/* Exactly enough (length + NUL) fits; one byte less does not. */
-	char exact[64];
-	assert_int_equal(command_reply_json(&c, true, NULL, "ACKED", exact, (size_t)full + 1), full);
+	char exact[128];
+	assert_int_equal(command_reply_json(&c, true, NULL, "acknowledged", exact, (size_t)full + 1), full);
 	assert_string_equal(exact, buf);
-	assert_int_equal(command_reply_json(&c, true, NULL, "ACKED", exact, (size_t)full), -ENOSPC);
+	assert_int_equal(command_reply_json(&c, true, NULL, "acknowledged", exact, (size_t)full), -ENOSPC);
 	assert_string_equal(exact, "");
-	assert_int_equal(command_reply_json(&c, true, NULL, "ACKED", NULL, 0), -ENOSPC);
+	assert_int_equal(command_reply_json(&c, true, NULL, "acknowledged", NULL, 0), -ENOSPC);
 }
 
 static void test_op_names(void **state)

@@ -543,7 +543,7 @@ static void test_retained_qos1_message_arrives(void **state)
 	NEED_BROKER();
 	struct mqttlink m;
 	open_connected(&m, "fg-t-ret", "plant/ret");
-	const char *event = "{\"alarm\":\"C201_FLOOD_HI\",\"state\":\"UNACK\",\"value\":86.5}";
+	const char *event = "{\"alarm\":\"C201_FLOOD_HI\",\"state\":\"unacknowledged\",\"value\":86.5}";
 	assert_int_equal(mqttlink_publish(&m, "alarm/C201_FLOOD_HI", event, 1, true, true), 0);
 	uint64_t one = 1;
 	bool acked = pump_until(&m, delivered_at_least, &one);
@@ -844,9 +844,9 @@ static void test_broker_down_then_up_delivers_precious_and_bounds_state(void **s
 		      (long long)(t1 - t0));
 
 	/* Alarm events meanwhile: two on one topic (order matters), one on another. */
-	int r1 = mqttlink_publish(&m, "alarm/A1", "UNACK", 1, true, true);
-	int r2 = mqttlink_publish(&m, "alarm/A1", "ACKED", 1, true, true);
-	int r3 = mqttlink_publish(&m, "alarm/B2", "UNACK", 1, true, true);
+	int r1 = mqttlink_publish(&m, "alarm/A1", "unacknowledged", 1, true, true);
+	int r2 = mqttlink_publish(&m, "alarm/A1", "acknowledged", 1, true, true);
+	int r3 = mqttlink_publish(&m, "alarm/B2", "unacknowledged", 1, true, true);
 	struct mqttlink_stats s_down;
 	mqttlink_get_stats(&m, &s_down);
 
@@ -854,8 +854,8 @@ static void test_broker_down_then_up_delivers_precious_and_bounds_state(void **s
 	bool restarted = broker_pid > 0;
 	uint64_t three = 3;
 	bool delivered = restarted && pump_until(&m, delivered_at_least, &three);
-	bool a1 = restarted && wait_retained(port, "plant/outage/alarm/A1", "1|1|ACKED");
-	bool b2 = restarted && wait_retained(port, "plant/outage/alarm/B2", "1|1|UNACK");
+	bool a1 = restarted && wait_retained(port, "plant/outage/alarm/A1", "1|1|acknowledged");
+	bool b2 = restarted && wait_retained(port, "plant/outage/alarm/B2", "1|1|unacknowledged");
 	struct mqttlink_stats s;
 	mqttlink_get_stats(&m, &s);
 	mqttlink_close(&m);

@@ -185,16 +185,16 @@ static void demo_alarm_step(struct report *rp, struct report_summary *sum,
 	if (!st->active && v > al->setpoint) {
 		st->active = true;
 		st->since_ms = t_ms;
-		assert_int_equal(report_add_event(rp, t_ms, a, "UNACK", v), 0);
+		assert_int_equal(report_add_event(rp, t_ms, a, "unacknowledged", v), 0);
 		sum->raised[report_priority_lookup(al->priority)]++;
 		if (sum->first_alarm_t_ms[al->section_index] == REPORT_T_NONE)
 			sum->first_alarm_t_ms[al->section_index] = t_ms;
 	} else if (st->active && v < al->setpoint - 2.0) {
 		st->active = false;
-		assert_int_equal(report_add_event(rp, t_ms, a, "NORM", v), 0);
+		assert_int_equal(report_add_event(rp, t_ms, a, "normal", v), 0);
 	}
 	if (st->active && t_ms - st->since_ms == 60000)
-		assert_int_equal(report_add_event(rp, t_ms, a, "ACKED", v), 0);
+		assert_int_equal(report_add_event(rp, t_ms, a, "acknowledged", v), 0);
 	if (v > al->setpoint) {
 		if (!isfinite(sum->above_setpoint_s[a]))
 			sum->above_setpoint_s[a] = 0.0;
@@ -255,9 +255,9 @@ static void write_demo(const char *path)
 		demo_alarm_step(&rp, &sum, &st[2], 2, t, res[1].v[RF_FLOOD_PCT]);
 		demo_alarm_step(&rp, &sum, &st[3], 3, t, res[1].v[RF_DP_PA]);
 		if (i == 600)
-			assert_int_equal(report_add_event(&rp, t, 4, "UNACK", NAN), 0);
+			assert_int_equal(report_add_event(&rp, t, 4, "unacknowledged", NAN), 0);
 		if (i == 630)
-			assert_int_equal(report_add_event(&rp, t, 4, "RTNUN", NAN), 0);
+			assert_int_equal(report_add_event(&rp, t, 4, "returned_unacknowledged", NAN), 0);
 	}
 	sum.rows_malformed = 2;
 	sum.rows_duplicate = 1;
@@ -294,8 +294,8 @@ static void test_event_times_match_reference_dates(void **state)
 	struct report rp;
 	assert_int_equal(report_init(&rp, &l), 0);
 	for (size_t i = 0; i < n; i++)
-		assert_int_equal(report_add_event(&rp, cases[i].t_ms, 0, "NORM", 1.0), 0);
-	assert_int_equal(report_add_event(&rp, 253402300800000LL, 0, "NORM", 1.0), 0);
+		assert_int_equal(report_add_event(&rp, cases[i].t_ms, 0, "normal", 1.0), 0);
+	assert_int_equal(report_add_event(&rp, 253402300800000LL, 0, "normal", 1.0), 0);
 	struct report_summary sum;
 	report_summary_clear(&sum);
 	char path[128];
@@ -398,7 +398,7 @@ static void test_page_has_sections_charts_setpoints_and_caution(void **state)
 	assert_non_null(strstr(page, "Quillmere Works - absorber K-7"));
 	assert_non_null(strstr(page, "<b>k7_upset_2026-03-04.csv</b>"));
 	assert_non_null(strstr(page, "<b>2026-03-04T05:06:07Z</b> to <b>2026-03-04T11:05:57Z</b>"));
-	assert_non_null(strstr(page, "(5 h 59 min 50 s)"));
+	assert_non_null(strstr(page, "(5:59:50)"));
 	/* the spray section has no DP model: its legend says so, once */
 	assert_int_equal(count_of(page, ">dp_model_pa (model): no values</text>"), 1);
 	assert_non_null(strstr(page, "First alarm: none"));
@@ -422,7 +422,7 @@ static void test_names_are_html_escaped(void **state)
 	fill_result(&r, 50.0);
 	assert_int_equal(report_add_row(&rp, T0_MS, &r), 0);
 	assert_int_equal(report_add_row(&rp, T0_MS + 1000, &r), 0);
-	assert_int_equal(report_add_event(&rp, T0_MS + 1000, 0, "UNACK", 85.0), 0);
+	assert_int_equal(report_add_event(&rp, T0_MS + 1000, 0, "unacknowledged", 85.0), 0);
 	struct report_summary sum;
 	report_summary_clear(&sum);
 	char path[128];
@@ -531,7 +531,7 @@ static void test_million_rows_keep_bucket_count_bounded(void **state)
 	/* the y axis covers spike and dip: -40..250 in 1-2-5 steps of 100 */
 	assert_non_null(strstr(page, ">300</text>"));
 	assert_non_null(strstr(page, ">-100</text>"));
-	assert_non_null(strstr(page, "1908 buckets of 8 min 44 s"));
+	assert_non_null(strstr(page, "1908 buckets of 0:08:44"));
 	free(page);
 }
 
@@ -716,11 +716,11 @@ static void test_alarm_period_is_shaded_in_priority_colour(void **state)
 		fill_result(&r, i >= 100 && i < 200 ? 85.0 : 60.0);
 		assert_int_equal(report_add_row(&rp, t, &r), 0);
 		if (i == 100)
-			assert_int_equal(report_add_event(&rp, t, 0, "UNACK", 85.0), 0);
+			assert_int_equal(report_add_event(&rp, t, 0, "unacknowledged", 85.0), 0);
 		if (i == 150)
-			assert_int_equal(report_add_event(&rp, t, 0, "ACKED", 85.0), 0);
+			assert_int_equal(report_add_event(&rp, t, 0, "acknowledged", 85.0), 0);
 		if (i == 200)
-			assert_int_equal(report_add_event(&rp, t, 0, "NORM", 60.0), 0);
+			assert_int_equal(report_add_event(&rp, t, 0, "normal", 60.0), 0);
 	}
 	struct report_summary sum;
 	report_summary_clear(&sum);
@@ -756,9 +756,9 @@ static void test_chattering_alarm_keeps_bounded_periods(void **state)
 	assert_int_equal(report_add_row(&rp, t, &r), 0);
 	for (unsigned i = 0; i < 1000; i++) {
 		t += (i % 10 == 0) ? 1000 : 9000;
-		assert_int_equal(report_add_event(&rp, t, 0, "UNACK", 81.0), 0);
+		assert_int_equal(report_add_event(&rp, t, 0, "unacknowledged", 81.0), 0);
 		t += 1000;
-		assert_int_equal(report_add_event(&rp, t, 0, "NORM", 79.0), 0);
+		assert_int_equal(report_add_event(&rp, t, 0, "normal", 79.0), 0);
 	}
 	assert_int_equal(report_add_row(&rp, t + 1000, &r), 0);
 	const unsigned p = REPORT_PRIORITY_HIGH;
@@ -785,7 +785,7 @@ static void test_events_beyond_limit_are_counted(void **state)
 	assert_int_equal(report_add_row(&rp, T0_MS, &r), 0);
 	for (unsigned i = 0; i < REPORT_EVENTS_MAX + 500; i++)
 		assert_int_equal(
-			report_add_event(&rp, T0_MS + i, 0, i % 2 ? "NORM" : "UNACK", 81.0), 0);
+			report_add_event(&rp, T0_MS + i, 0, i % 2 ? "normal" : "unacknowledged", 81.0), 0);
 	struct report_summary sum;
 	report_summary_clear(&sum);
 	char path[128];

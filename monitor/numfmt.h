@@ -1,0 +1,36 @@
+/*
+ * numfmt.h - how numbers are written: in full for machines, rounded for people.
+ *
+ * Machine files (results.csv, events.jsonl, summary.json, --json output) keep
+ * every bit of a double: numfmt_full writes the shortest of %.15g, %.16g and
+ * %.17g that reads back to the same double, so 0.1 stays "0.1" and 1/3 keeps the 16
+ * digits it needs. What a person reads (tables, the live view, the report, the
+ * printed summary) is rounded to a sensible precision by the caller, and
+ * durations are written as h:mm:ss by numfmt_duration.
+ */
+#ifndef NUMFMT_H
+#define NUMFMT_H
+
+#include <stddef.h>
+
+/* Enough for "-1.2345678901234567e-308" and a NUL. */
+#define NUMFMT_FULL_SIZE 32
+/* Enough for "-2562047788015:12:55" and a NUL. */
+#define NUMFMT_DURATION_SIZE 32
+
+/* Writes v in the C locale so that strtod gives v back exactly; -0 is written
+ * "0". v must be finite (callers write NaN as an empty field or null).
+ * Returns the length written. */
+int numfmt_full(double v, char *buf, size_t buf_size);
+
+/* Writes v for a person to read: a percentage (unit "%") to 0.1, anything
+ * else to 4 significant figures (%.4g: 1235, 3.457, 0.04231), "-" when not
+ * finite, never "-0". unit may be NULL. Returns the length written. */
+int numfmt_human(double v, const char *unit, char *buf, size_t buf_size);
+
+/* Writes a duration of s seconds as h:mm:ss (hours unbounded, seconds
+ * rounded to the nearest whole second; "-" prefix when negative), or "-" when
+ * s is not finite. Returns the length written. */
+int numfmt_duration(double s, char *buf, size_t buf_size);
+
+#endif
