@@ -235,32 +235,38 @@ static int parse_zone(const char *s, size_t len, size_t pos, int64_t *offset_ms)
 	return 0;
 }
 
-/* "YYYY-MM-DD?HH:MM:SS[.f][zone]" with ? one of T, t, space. */
-static int parse_iso(const char *s, size_t len, int64_t *t_ms)
+/* "YYYY-MM-DD?HH:MM[:SS[.f]][zone]" with ? one of T, t, space. *zoned says
+ * whether a zone designator was given; without one the wall-clock time is
+ * returned as if it were UTC. */
+static int parse_iso(const char *s, size_t len, int64_t *t_ms, bool *zoned)
 {
-	unsigned y, mo, d, h, mi, sec;
-	if (len < 19)
+	unsigned y, mo, d, h, mi, sec = 0;
+	if (len < 16)
 		return -EINVAL;
 	if (!read_digits(s, 4, &y) || s[4] != '-' || !read_digits(s + 5, 2, &mo) || s[7] != '-' ||
 	    !read_digits(s + 8, 2, &d))
 		return -EINVAL;
 	if (s[10] != 'T' && s[10] != 't' && s[10] != ' ')
 		return -EINVAL;
-	if (!read_digits(s + 11, 2, &h) || s[13] != ':' || !read_digits(s + 14, 2, &mi) ||
-	    s[16] != ':' || !read_digits(s + 17, 2, &sec))
+	if (!read_digits(s + 11, 2, &h) || s[13] != ':' || !read_digits(s + 14, 2, &mi))
 		return -EINVAL;
+	size_t pos = 16;
+	int64_t frac_ms = 0;
+	if (pos < len && s[pos] == ':') { /* seconds are optional: HH:MM is a whole minute */
+		if (len < 19 || !read_digits(s + 17, 2, &sec))
+			return -EINVAL;
+		pos = 19;
+		if (pos < len && (s[pos] == '.' || s[pos] == ',')) {
+			pos++;
+			frac_ms = read_fraction_ms(s, len, &pos);
+			if (frac_ms < 0)
+				return -EINVAL;
+		}
+	}
 	if (mo < 1 || mo > 12 || d < 1 || d > timefmt_days_in_month(y, mo))
 		return -EINVAL;
 	if (h > 23 || mi > 59 || sec > 60)
 		return -EINVAL;
-	size_t pos = 19;
-	int64_t frac_ms = 0;
-	if (pos < len && (s[pos] == '.' || s[pos] == ',')) {
-		pos++;
-		frac_ms = read_fraction_ms(s, len, &pos);
-		if (frac_ms < 0)
-			return -EINVAL;
-	}
 	int64_t offset_ms;
 	if (parse_zone(s, len, pos, &offset_ms) != 0)
 		return -EINVAL;
@@ -269,13 +275,15 @@ static int parse_iso(const char *s, size_t len, int64_t *t_ms)
 	if (ms < TIMEFMT_MIN_MS || ms > TIMEFMT_MAX_MS)
 		return -EINVAL;
 	*t_ms = ms;
+	*zoned = pos < len;
 	return 0;
 }
 
-int timefmt_parse(const char *s, size_t len, int64_t *t_ms)
+int timefmt_parse_zoned(const char *s, size_t len, int64_t *t_ms, bool *zoned)
 {
 	assert(s != NULL || len == 0);
 	assert(t_ms != NULL);
+	assert(zoned != NULL);
 	while (len > 0 && is_blank(s[0])) {
 		s++;
 		len--;
@@ -287,8 +295,17 @@ int timefmt_parse(const char *s, size_t len, int64_t *t_ms)
 	/* An ISO date has its first '-' at index 4 after four digits; an epoch
 	 * number never has a '-' after its first character. */
 	if (len >= 5 && s[4] == '-' && is_digit(s[0]))
-		return parse_iso(s, len, t_ms);
-	return parse_epoch(s, len, t_ms);
+		return parse_iso(s, len, t_ms, zoned);
+	int rc = parse_epoch(s, len, t_ms);
+	if (rc == 0)
+		*zoned = true; /* epoch seconds are UTC by definition */
+	return rc;
+}
+
+int timefmt_parse(const char *s, size_t len, int64_t *t_ms)
+{
+	bool zoned;
+	return timefmt_parse_zoned(s, len, t_ms, &zoned);
 }
 
 static char *put_digits(char *p, unsigned v, unsigned n)

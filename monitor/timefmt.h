@@ -14,6 +14,7 @@
 #ifndef TIMEFMT_H
 #define TIMEFMT_H
 
+#include <stdbool.h>
 #include <stddef.h>
 #include <stdint.h>
 
@@ -29,14 +30,16 @@
  * blanks, i.e. spaces and tabs, around it are ignored). Accepted forms:
  *
  *   ISO 8601 extended date and time, "2026-03-04T05:06:07Z":
- *     - 'T', 't' or one space between date and time; seconds are required;
+ *     - 'T', 't' or one space between date and time (so the spreadsheet
+ *       form "2026-03-04 05:06:07.250" is accepted too); seconds may be
+ *       left out ("2026-03-04T05:06Z" is 05:06:00);
  *     - fractional seconds of any length after '.' or ',' (ISO 8601 allows
  *       both marks), rounded to the nearest millisecond, halves up;
  *     - zone "Z"/"z", or an offset "+HH:MM", "+HHMM" or "+HH" (or '-'),
  *       which is subtracted to give UTC (05:06+01:00 is 04:06Z);
- *     - no zone at all: the time is taken as UTC. Historian exports in
- *       local time must be converted before replay, since a bare local time
- *       is ambiguous at the autumn clock change;
+ *     - no zone at all: the wall-clock time is returned as if it were UTC;
+ *       timefmt_parse_zoned() says so, and the caller converts it from a
+ *       local zone (tzone.h) when one is given (--tz);
  *     - second 60 (a leap second) is accepted and, as in POSIX time, counts
  *       as second 0 of the next minute.
  *   Epoch seconds: an optional sign, digits, and optionally '.' or ','
@@ -49,6 +52,11 @@
  * Returns 0 and sets *t_ms, or -EINVAL (and leaves *t_ms alone).
  */
 int timefmt_parse(const char *s, size_t len, int64_t *t_ms);
+
+/* The same, and *zoned tells whether the text fixed its zone (a zone
+ * designator or offset, or epoch seconds): false for a bare wall-clock time,
+ * which the caller may convert from a local zone. */
+int timefmt_parse_zoned(const char *s, size_t len, int64_t *t_ms, bool *zoned);
 
 /*
  * Writes t_ms as "2026-03-04T05:06:07Z", or "2026-03-04T05:06:07.123Z" when

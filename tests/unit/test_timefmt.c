@@ -361,7 +361,9 @@ static void test_malformed_text_is_rejected(void **state)
 	assert_rejected("");
 	assert_rejected("   ");
 	assert_rejected("2026-03-04");
-	assert_rejected("2026-03-04T05:06Z");
+	assert_rejected("2026-03-04T05:06:Z");
+	assert_rejected("2026-03-04T05:6Z");
+	assert_rejected("2026-03-04T05:06:7Z");
 	assert_rejected("2026-3-04T05:06:07Z");
 	assert_rejected("26-03-04T05:06:07Z");
 	assert_rejected("2026-03-04T05:06:07ZZ");
@@ -417,10 +419,46 @@ static void test_parse_reads_only_len_bytes(void **state)
 	assert_int_equal(timefmt_parse(NULL, 0, &t), -EINVAL);
 }
 
+static void test_minutes_without_seconds_are_whole_minutes(void **state)
+{
+	(void)state;
+	/* 2026-03-02T08:00:00Z = 1772438400 (date -u -d 2026-03-02T08:00:00Z +%s). */
+	assert_int_equal(parse_ok("2026-03-02T08:00Z"), 1772438400000LL);
+	assert_int_equal(parse_ok("2026-03-02T09:00+01:00"), 1772438400000LL);
+	assert_int_equal(parse_ok("2026-03-02 08:00"), 1772438400000LL);
+}
+
+static void test_spreadsheet_form_with_fraction(void **state)
+{
+	(void)state;
+	assert_int_equal(parse_ok("2026-03-02 08:00:01.250"), 1772438401250LL);
+	assert_int_equal(parse_ok("2026-03-02 08:00:01"), 1772438401000LL);
+}
+
+static void test_zoned_tells_whether_a_zone_was_given(void **state)
+{
+	(void)state;
+	int64_t t = 0;
+	bool zoned = true;
+	assert_int_equal(timefmt_parse_zoned("2026-03-02 08:00", 16, &t, &zoned), 0);
+	assert_false(zoned);
+	assert_int_equal(timefmt_parse_zoned("2026-03-02T08:00:00Z", 20, &t, &zoned), 0);
+	assert_true(zoned);
+	assert_int_equal(timefmt_parse_zoned("2026-03-02T08:00-05", 19, &t, &zoned), 0);
+	assert_true(zoned);
+	assert_int_equal(t, 1772438400000LL + 5 * 3600000LL);
+	zoned = false;
+	assert_int_equal(timefmt_parse_zoned("1772438400", 10, &t, &zoned), 0);
+	assert_true(zoned);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_parse_matches_date_command_values),
+		cmocka_unit_test(test_minutes_without_seconds_are_whole_minutes),
+		cmocka_unit_test(test_spreadsheet_form_with_fraction),
+		cmocka_unit_test(test_zoned_tells_whether_a_zone_was_given),
 		cmocka_unit_test(test_format_matches_date_command_values),
 		cmocka_unit_test(test_posix_formula_agrees_with_date_command),
 		cmocka_unit_test(test_days_from_civil_matches_posix_1970_to_2100),
