@@ -59,7 +59,7 @@ static const char *const legacy_state_names[ALARM_STATE_COUNT] = {
 static const char *const reason_names[] = {
 	ALARM_REASON_FROZEN, ALARM_REASON_STALE, ALARM_REASON_OUT_OF_RANGE,
 	ALARM_REASON_COMM_FAIL, ALARM_REASON_NAN, ALARM_REASON_SPIKE,
-	ALARM_REASON_OTHER,
+	ALARM_REASON_HISTORIAN_STATUS, ALARM_REASON_MISSING_COLUMN, ALARM_REASON_OTHER,
 };
 
 /* ---- names ---------------------------------------------------------------- */
@@ -314,6 +314,7 @@ static void fill_event(const struct alarm *a, enum alarm_state prev, int64_t t_m
 	ev->value = a->last_value;
 	ev->setpoint = a->cfg.kind == ALARM_KIND_DIAGNOSTIC ? NAN : a->cfg.setpoint;
 	ev->reason = a->cfg.kind == ALARM_KIND_DIAGNOSTIC ? a->diag_reason : NULL;
+	ev->status_text[0] = '\0';
 }
 
 /* Recomputes the visible state after a change of the layers; 1 and *ev when
@@ -676,6 +677,10 @@ int alarm_event_json(const struct alarm_event *ev, const struct alarm_cfg *cfg,
 	if (cfg->kind == ALARM_KIND_DIAGNOSTIC) {
 		jkey(&b, "reason", false);
 		jstr(&b, ev->reason);
+		if (ev->status_text[0] != '\0') {
+			jkey(&b, "status_text", false);
+			jstr(&b, ev->status_text);
+		}
 	}
 	jraw(&b, "}");
 	if (b.full)

@@ -117,6 +117,8 @@ _Static_assert(ALARM_STATE_COUNT == 7, "state names, state file and JSON list 7 
 #define ALARM_REASON_COMM_FAIL "comm_fail"
 #define ALARM_REASON_NAN "nan"
 #define ALARM_REASON_SPIKE "spike"
+#define ALARM_REASON_HISTORIAN_STATUS "historian_status" /* the historian marked it bad */
+#define ALARM_REASON_MISSING_COLUMN "missing_column"     /* the data file has no column */
 #define ALARM_REASON_OTHER "other"
 
 /* One alarm as configured ([alarm.NAME]). The config loader fills it, starting
@@ -168,6 +170,10 @@ struct alarm {
 
 #define ALARM_T_NONE INT64_MIN
 
+/* A historian's status text kept in an event, with the NUL ("I/O Timeout",
+ * "Comm Fail", "Bad Input" are all short; a longer one is cut). */
+#define ALARM_STATUS_TEXT_MAX 40
+
 /* What the engine passes for one evaluation. */
 struct alarm_input {
 	double value;               /* the watched result field, SI; NAN or inf = bad */
@@ -188,6 +194,8 @@ struct alarm_event {
 	                             * when unknown */
 	double setpoint;            /* cfg.setpoint; NAN for a diagnostic alarm */
 	const char *reason;         /* static or NULL: diagnostic reason at the change */
+	char status_text[ALARM_STATUS_TEXT_MAX]; /* reason historian_status: the historian's
+	                             * text ("Bad Input"), else "" */
 };
 
 /* Fills cfg with the defaults a config may leave out: empty name, field and
@@ -272,7 +280,7 @@ const char *alarm_reason_static(const char *reason);
  *   {"t":T_ISO,"alarm":NAME,"section":SECTION,"kind":"high","priority":"high",
  *    "state":"unacknowledged","value":N,"setpoint":N}
  * with ,"reason":"frozen" (or null) before the closing brace for diagnostic
- * alarms. Numbers are %.6g in the C locale (the engine never calls
+ * alarms, and ,"status_text":"Bad Input" after it when the event has one. Numbers are %.6g in the C locale (the engine never calls
  * setlocale), NAN and infinities are null, strings are JSON-escaped. Returns
  * the length written (excluding the NUL), or -ENOSPC when buf_size is too
  * small (buf then holds a NUL-terminated prefix, or nothing if buf_size is 0). */

@@ -140,8 +140,13 @@ static void eval_alarms(struct engine *e, int64_t t_ms)
 			.diag_reason = es->diag_reason,
 		};
 		struct alarm_event ev;
-		if (alarm_step(a, &in, t_ms, &ev) == 1)
-			push_event(e, &ev);
+		if (alarm_step(a, &in, t_ms, &ev) != 1)
+			continue;
+		if (ev.reason != NULL && es->diag_tag >= 0 &&
+		    strcmp(ev.reason, ALARM_REASON_HISTORIAN_STATUS) == 0)
+			memcpy(ev.status_text, e->tags[es->diag_tag].status_text,
+			       sizeof ev.status_text);
+		push_event(e, &ev);
 	}
 }
 
@@ -165,6 +170,18 @@ void engine_step(struct engine *e, int64_t t_ms, const double *values,
 	eval_alarms(e, t_ms);
 	e->t_ms = t_ms;
 	e->step_count++;
+}
+
+void engine_tag_status_text(struct engine *e, unsigned ti, const char *text)
+{
+	assert(e != NULL);
+	assert(ti < e->cfg->tag_count);
+	char *dst = e->tags[ti].status_text;
+	size_t n = text != NULL ? strlen(text) : 0;
+	if (n >= ALARM_STATUS_TEXT_MAX)
+		n = ALARM_STATUS_TEXT_MAX - 1;
+	memcpy(dst, text != NULL ? text : "", n);
+	dst[n] = '\0';
 }
 
 static int command(struct engine *e, unsigned ai, int rc, const struct alarm_event *ev)

@@ -55,6 +55,11 @@ int engine_init(struct engine *e, const struct fg_config *cfg);
 void engine_step(struct engine *e, int64_t t_ms, const double *values,
 		 const enum tag_status *status);
 
+/* The historian's status text for tag ti, kept with its next TAG_STATUS_BAD
+ * sample and copied into the events that sample causes (cut to fit). NULL or
+ * "" clears it. Call before engine_step. */
+void engine_tag_status_text(struct engine *e, unsigned ti, const char *text);
+
 /* Operator commands on alarm index ai at t_ms; see alarm.h for the return
  * values. A carried-out command appends its event. */
 int engine_ack(struct engine *e, unsigned ai, int64_t t_ms);

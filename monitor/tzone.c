@@ -348,6 +348,6 @@ int tzone_local_to_utc(const struct tzone *z, int64_t local_ms, int64_t after_t_
 		cand[0] = cand[1];
 		cand[1] = x;
 	}
-	*t_ms = n == 2 && after_t_ms != INT64_MIN && cand[0] <= after_t_ms ? cand[1] : cand[0];
+	*t_ms = n == 2 && after_t_ms != INT64_MIN && cand[0] < after_t_ms ? cand[1] : cand[0];
 	return 0;
 }

@@ -10,7 +10,7 @@
  *    reports the time as invalid;
  *  - a time in the repeated autumn hour happened twice. It is resolved by
  *    order: the earlier instant (the summer-time offset) unless that would
- *    not come after the previous time of the file (after_t_ms), in which case
+ *    come before the previous time of the file (after_t_ms), in which case
  *    it is the later one. So a file written in order through the repeated
  *    hour reads first pass, second pass, and times never go back in UTC.
  *

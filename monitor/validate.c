@@ -114,6 +114,12 @@ void validate_step(struct tag_state *s, int64_t t_ms, double v, enum tag_status 
 	case TAG_STATUS_COMM_FAIL:
 		set_bad(s, ALARM_REASON_COMM_FAIL);
 		break;
+	case TAG_STATUS_BAD:
+		set_bad(s, ALARM_REASON_HISTORIAN_STATUS);
+		break;
+	case TAG_STATUS_NO_COLUMN:
+		set_bad(s, ALARM_REASON_MISSING_COLUMN);
+		break;
 	case TAG_STATUS_MISSING:
 		/* Hold the last value (historians leave a field empty when nothing
 		 * was recorded) until it is stale. */

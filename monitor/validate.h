@@ -16,12 +16,15 @@
 
 #include <stdint.h>
 
+#include "alarm.h"
 #include "config.h"
 
 enum tag_status {
 	TAG_STATUS_FRESH,     /* a new reading this period */
 	TAG_STATUS_MISSING,   /* no reading (empty historian field) */
 	TAG_STATUS_COMM_FAIL, /* the read failed */
+	TAG_STATUS_BAD,       /* the historian marked the sample bad ("historian_status") */
+	TAG_STATUS_NO_COLUMN, /* the data file has no column for the tag ("missing_column") */
 };
 
 struct tag_state {
@@ -41,6 +44,7 @@ struct tag_state {
 	double value_si;             /* the same in SI */
 	enum fg_quality quality;
 	const char *reason;          /* static; NULL when good */
+	char status_text[ALARM_STATUS_TEXT_MAX]; /* the historian's text with TAG_STATUS_BAD */
 };
 
 void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period_s);

@@ -17,6 +17,12 @@
  * accurately", PLDI 1990, the "fast path"). Anything else is rewritten as
  * "DIGITSeEXP", which has no decimal point and so reads the same in every
  * locale, and handed to strtod, which rounds correctly in glibc.
+ *
+ * A long (time, tag, value[, status]) file goes through the same line and
+ * field scanning; next_long() gathers the samples of one time stamp into
+ * r->row and holds back the first sample of the next time stamp in
+ * r->carry, so memory stays one row whatever the file's length. Tags are
+ * found by binary search in the bound names (sorted once at bind).
  */
 #include "csvread.h"
 
@@ -503,16 +509,54 @@ static int split_header(struct csvread *r, size_t len, char *err, size_t err_siz
 	return 0;
 }
 
-/* Checks that column 0 is "time", in any case. */
-static int check_time_column(const struct csvread *r, char *err, size_t err_size)
+static bool name_is(const struct csvread *r, unsigned c, const char *word)
 {
-	const char *name = r->header + r->name_start[0];
-	uint32_t len = r->name_len[0];
-	if (len == 4 && strncasecmp(name, "time", 4) == 0)
-		return 0;
-	set_err(err, err_size, "%s:%llu: the first column must be \"time\", found \"%.*s\"",
-		r->path, (unsigned long long)r->line_no, (int)(len > 64 ? 64 : len), name);
-	return -EINVAL;
+	size_t n = strlen(word);
+	return r->name_len[c] == n && strncasecmp(r->header + r->name_start[c], word, n) == 0;
+}
+
+/* The first column with one of the names (any case), or -1. */
+static int column_named(const struct csvread *r, const char *const *words)
+{
+	for (unsigned c = 0; c < r->column_count; c++)
+		for (unsigned w = 0; words[w] != NULL; w++)
+			if (name_is(r, c, words[w]))
+				return (int)c;
+	return -1;
+}
+
+/* Finds the time column (by the configured name, else time/timestamp/date)
+ * and, from the tag and value columns, whether the file is long. */
+static int find_columns(struct csvread *r, char *err, size_t err_size)
+{
+	static const char *const time_words[] = {"time", "timestamp", "date", NULL};
+	static const char *const tag_words[] = {"tag", "name", "tagname", NULL};
+	static const char *const value_words[] = {"value", NULL};
+	static const char *const status_words[] = {"status", "quality", NULL};
+	const char *want = r->opts.time_column;
+	int tc;
+	if (want != NULL && want[0] != '\0') {
+		const char *one[] = {want, NULL};
+		tc = column_named(r, one);
+	} else {
+		tc = column_named(r, time_words);
+	}
+	if (tc < 0) {
+		if (want != NULL && want[0] != '\0')
+			set_err(err, err_size, "%s:%llu: no column \"%s\" ([replay] time_column) in "
+					       "the header", r->path, (unsigned long long)r->line_no, want);
+		else
+			set_err(err, err_size, "%s:%llu: no time column: the header has no column "
+					       "named time, timestamp or date (name yours with [replay] "
+					       "time_column)", r->path, (unsigned long long)r->line_no);
+		return -EINVAL;
+	}
+	r->time_col = (unsigned)tc;
+	r->tag_col = column_named(r, tag_words);
+	r->value_col = column_named(r, value_words);
+	r->status_col = column_named(r, status_words);
+	r->long_form = r->tag_col >= 0 && r->value_col >= 0;
+	return 0;
 }
 
 /* Reads the first non-blank line as the header and checks it. */
@@ -546,7 +590,7 @@ static int read_header(struct csvread *r, char *err, size_t err_size)
 	r->delim = detect_delim(r->header, len);
 	rc = split_header(r, len, err, err_size);
 	if (rc == 0)
-		rc = check_time_column(r, err, err_size);
+		rc = find_columns(r, err, err_size);
 	if (rc == 0)
 		rc = check_duplicates(r, err, err_size);
 	return rc;
@@ -576,9 +620,23 @@ static int open_file(struct csvread *r, const char *path, char *err, size_t err_
 
 int csvread_open(struct csvread *r, const char *path, char *err, size_t err_size)
 {
+	return csvread_open_opts(r, path, NULL, err, err_size);
+}
+
+bool csvread_is_long(const struct csvread *r)
+{
+	assert(r != NULL);
+	return r->long_form;
+}
+
+int csvread_open_opts(struct csvread *r, const char *path, const struct csvread_opts *opts,
+		      char *err, size_t err_size)
+{
 	assert(r != NULL);
 	assert(path != NULL);
 	memset(r, 0, sizeof *r);
+	if (opts != NULL)
+		r->opts = *opts;
 	set_err(err, err_size, "%s", "");
 	size_t path_len = strlen(path);
 	if (path_len >= sizeof r->path) {
@@ -619,20 +677,54 @@ void csvread_close(struct csvread *r)
 	free(r->name_start);
 	free(r->name_len);
 	free(r->slot_of_column);
+	free(r->name_order);
 	memset(r, 0, sizeof *r);
 }
 
 static int find_column(const struct csvread *r, const char *name)
 {
 	size_t len = strlen(name);
-	for (unsigned c = 1; c < r->column_count; c++)
-		if (r->name_len[c] == len && memcmp(r->header + r->name_start[c], name, len) == 0)
+	for (unsigned c = 0; c < r->column_count; c++)
+		if (c != r->time_col && r->name_len[c] == len &&
+		    memcmp(r->header + r->name_start[c], name, len) == 0)
 			return (int)c;
 	return -1;
 }
 
-int csvread_bind(struct csvread *r, const char *const *names, unsigned name_count, char *err,
-		 size_t err_size)
+/* Long form: the bound names sorted, for the lookup of each sample's tag. */
+static const char *const *sort_names; /* qsort has no context argument */
+
+static int slot_cmp(const void *a, const void *b)
+{
+	return strcmp(sort_names[*(const uint32_t *)a], sort_names[*(const uint32_t *)b]);
+}
+
+static int bind_long(struct csvread *r, const char *const *names, unsigned name_count,
+		     char *err, size_t err_size)
+{
+	free(r->name_order);
+	r->name_order = calloc(name_count > 0 ? name_count : 1, sizeof *r->name_order);
+	if (r->name_order == NULL) {
+		set_err(err, err_size, "%s: out of memory", r->path);
+		return -ENOMEM;
+	}
+	for (unsigned i = 0; i < name_count; i++)
+		r->name_order[i] = i;
+	sort_names = names;
+	qsort(r->name_order, name_count, sizeof *r->name_order, slot_cmp);
+	sort_names = NULL;
+	for (unsigned i = 1; i < name_count; i++)
+		if (strcmp(names[r->name_order[i - 1]], names[r->name_order[i]]) == 0) {
+			set_err(err, err_size, "%s: tag \"%s\" is asked for twice", r->path,
+				names[r->name_order[i]]);
+			return -EINVAL;
+		}
+	r->bound_names = names;
+	return 0;
+}
+
+static int bind(struct csvread *r, const char *const *names, unsigned name_count, bool *found,
+		char *err, size_t err_size)
 {
 	assert(r != NULL);
 	assert(r->f != NULL);
@@ -642,9 +734,20 @@ int csvread_bind(struct csvread *r, const char *const *names, unsigned name_coun
 	r->value_count = 0;
 	for (unsigned c = 0; c < r->column_count; c++)
 		r->slot_of_column[c] = -1;
-	for (unsigned i = 0; i < name_count; i++) {
+	if (r->long_form) {
+		int rc = bind_long(r, names, name_count, err, err_size);
+		if (rc != 0)
+			return rc;
+		for (unsigned i = 0; found != NULL && i < name_count; i++)
+			found[i] = true;
+	}
+	for (unsigned i = 0; i < name_count && !r->long_form; i++) {
 		assert(names[i] != NULL);
 		int c = find_column(r, names[i]);
+		if (c < 0 && found != NULL) {
+			found[i] = false;
+			continue;
+		}
 		if (c < 0) {
 			set_err(err, err_size, "%s: tag \"%s\" is not a column of the header",
 				r->path, names[i]);
@@ -656,19 +759,124 @@ int csvread_bind(struct csvread *r, const char *const *names, unsigned name_coun
 			return -EINVAL;
 		}
 		r->slot_of_column[c] = (int32_t)i;
+		if (found != NULL)
+			found[i] = true;
 	}
 	r->value_count = name_count;
+	for (unsigned i = 0; i < name_count; i++)
+		r->row[i] = NAN; /* a slot without a column stays missing */
 	r->bound = true;
 	return 0;
 }
 
-/* Parses one data row into r->row. Returns NULL or a static reason. */
+int csvread_bind(struct csvread *r, const char *const *names, unsigned name_count, char *err,
+		 size_t err_size)
+{
+	return bind(r, names, name_count, NULL, err, err_size);
+}
+
+int csvread_bind_some(struct csvread *r, const char *const *names, unsigned name_count,
+		      bool *found, char *err, size_t err_size)
+{
+	assert(found != NULL || name_count == 0);
+	return bind(r, names, name_count, found, err, err_size);
+}
+
+/* ---- cells with text ---------------------------------------------------- */
+
+bool csvread_status_is_good(const char *s, size_t len)
+{
+	static const char *const good[] = {"good", "ok", "valid", "normal", "192", NULL};
+	while (len > 0 && is_blank(s[0])) {
+		s++;
+		len--;
+	}
+	while (len > 0 && is_blank(s[len - 1]))
+		len--;
+	if (len == 0)
+		return true;
+	for (unsigned i = 0; good[i] != NULL; i++)
+		if (strlen(good[i]) == len && strncasecmp(s, good[i], len) == 0)
+			return true;
+	return false;
+}
+
+/* Records that bound slot holds text s[0..len) in this row (value NAN). A
+ * second text for the same slot (long form) replaces the first. */
+static void note_text(struct csvread *r, unsigned slot, const char *s, size_t len)
+{
+	assert(slot < r->value_count);
+	while (len > 0 && is_blank(s[0])) {
+		s++;
+		len--;
+	}
+	while (len > 0 && is_blank(s[len - 1]))
+		len--;
+	unsigned k = 0;
+	while (k < r->text_count && r->text_slot[k] != slot)
+		k++;
+	if (k == r->text_count)
+		r->text_count++;
+	assert(r->text_count <= FG_CSV_COLUMNS_MAX);
+	if (len >= CSVREAD_TEXT_MAX)
+		len = CSVREAD_TEXT_MAX - 1;
+	r->text_slot[k] = slot;
+	memcpy(r->text[k], s, len);
+	r->text[k][len] = '\0';
+	r->row[slot] = NAN;
+	r->stats.cells_text++;
+}
+
+/* A good value for slot in a long file cancels an earlier text for it. */
+static void drop_text(struct csvread *r, unsigned slot)
+{
+	for (unsigned k = 0; k < r->text_count; k++)
+		if (r->text_slot[k] == slot) {
+			r->text_count--;
+			r->text_slot[k] = r->text_slot[r->text_count];
+			memcpy(r->text[k], r->text[r->text_count], CSVREAD_TEXT_MAX);
+			return;
+		}
+}
+
+unsigned csvread_text_count(const struct csvread *r)
+{
+	assert(r != NULL);
+	return r->text_count;
+}
+
+void csvread_text_at(const struct csvread *r, unsigned k, unsigned *slot, const char **text)
+{
+	assert(r != NULL);
+	assert(k < r->text_count);
+	*slot = r->text_slot[k];
+	*text = r->text[k];
+}
+
+/* ---- rows ------------------------------------------------------------- */
+
+/* The time of a field; an offset-less time is local in opts.tz if given. */
+static const char *parse_time(struct csvread *r, const char *s, size_t len, int64_t *t_ms)
+{
+	bool zoned = true;
+	if (timefmt_parse_zoned(s, len, t_ms, &zoned) != 0)
+		return "bad time";
+	if (!zoned && r->opts.tz != NULL) {
+		int64_t after = r->have_last ? r->last_t_ms : INT64_MIN;
+		if (tzone_local_to_utc(r->opts.tz, *t_ms, after, t_ms) != 0)
+			return "local time in the daylight-saving gap (it never happened)";
+	}
+	return NULL;
+}
+
+/* Parses one wide data row into r->row. Returns NULL or a static reason. */
 static const char *parse_row(struct csvread *r, const char *line, size_t len, int64_t *t_ms)
 {
 	char alt_mark = r->delim == ';' ? ',' : 0;
 	size_t p = 0;
 	bool last = false;
 	unsigned c = 0;
+	r->text_count = 0;
 	while (!last) {
 		struct field f;
 		const char *why = scan_field(line, len, &p, r->delim, &f, &last);
@@ -676,14 +884,14 @@ static const char *parse_row(struct csvread *r, const char *line, size_t len, in
 			return why;
 		if (c >= r->column_count)
 			return "more fields than the header";
-		if (c == 0) {
-			if (timefmt_parse(line + f.start, f.len, t_ms) != 0)
-				return "bad time";
-		} else if (r->slot_of_column[c] >= 0) {
-			why = parse_number(line + f.start, f.len, alt_mark,
-					   &r->row[r->slot_of_column[c]]);
+		if (c == r->time_col) {
+			why = parse_time(r, line + f.start, f.len, t_ms);
 			if (why != NULL)
 				return why;
+		} else if (r->slot_of_column[c] >= 0) {
+			unsigned slot = (unsigned)r->slot_of_column[c];
+			if (parse_number(line + f.start, f.len, alt_mark, &r->row[slot]) != NULL)
+				note_text(r, slot, line + f.start, f.len);
 		}
 		c++;
 	}
@@ -692,18 +900,110 @@ static const char *parse_row(struct csvread *r, const char *line, size_t len, in
 	return NULL;
 }
 
-int csvread_next(struct csvread *r, int64_t *t_ms, double *values, unsigned value_count)
+/* Long form: the bind slot of tag name s[0..len), or -1. */
+static int slot_of_name(const struct csvread *r, const char *s, size_t len)
 {
-	assert(r != NULL);
-	assert(r->f != NULL);
-	assert(r->bound);
-	assert(t_ms != NULL);
-	assert(value_count == r->value_count);
-	assert(values != NULL || value_count == 0);
+	unsigned lo = 0, hi = r->value_count;
+	while (lo < hi) {
+		unsigned mid = lo + (hi - lo) / 2;
+		const char *name = r->bound_names[r->name_order[mid]];
+		int c = strncmp(name, s, len);
+		if (c == 0 && name[len] != '\0')
+			c = 1;
+		if (c == 0)
+			return (int)r->name_order[mid];
+		if (c < 0)
+			lo = mid + 1;
+		else
+			hi = mid;
+	}
+	return -1;
+}
+
+/* Long form: one line into a sample. Returns NULL or a static reason. */
+static const char *parse_sample(struct csvread *r, const char *line, size_t len,
+				struct csvread_sample *smp)
+{
+	char alt_mark = r->delim == ';' ? ',' : 0;
+	struct field fv = {0, 0}, fs = {0, 0};
+	size_t p = 0;
+	bool last = false;
+	unsigned c = 0;
+	smp->slot = -1;
+	smp->text = false;
+	while (!last) {
+		struct field f;
+		const char *why = scan_field(line, len, &p, r->delim, &f, &last);
+		if (why != NULL)
+			return why;
+		if (c >= r->column_count)
+			return "more fields than the header";
+		if (c == r->time_col) {
+			why = parse_time(r, line + f.start, f.len, &smp->t_ms);
+			if (why != NULL)
+				return why;
+		} else if ((int)c == r->tag_col) {
+			smp->slot = slot_of_name(r, line + f.start, f.len);
+		} else if ((int)c == r->value_col) {
+			fv = f;
+		} else if ((int)c == r->status_col) {
+			fs = f;
+		}
+		c++;
+	}
+	if (c < r->column_count)
+		return "fewer fields than the header";
+	if (smp->slot < 0)
+		return NULL;
+	const char *text = NULL;
+	size_t text_len = 0;
+	if (r->status_col >= 0 && !csvread_status_is_good(line + fs.start, fs.len)) {
+		text = line + fs.start;
+		text_len = fs.len;
+	} else if (parse_number(line + fv.start, fv.len, alt_mark, &smp->value) != NULL) {
+		text = line + fv.start;
+		text_len = fv.len;
+	}
+	if (text != NULL) {
+		smp->text = true;
+		smp->value = NAN;
+		if (text_len >= CSVREAD_TEXT_MAX)
+			text_len = CSVREAD_TEXT_MAX - 1;
+		memcpy(smp->text_buf, text, text_len);
+		smp->text_buf[text_len] = '\0';
+	}
+	return NULL;
+}
+
+/* Long form: puts a sample into the row being gathered. */
+static void apply_sample(struct csvread *r, const struct csvread_sample *smp)
+{
+	if (smp->slot < 0) {
+		r->stats.samples_unbound++;
+		return;
+	}
+	unsigned slot = (unsigned)smp->slot;
+	if (smp->text) {
+		note_text(r, slot, smp->text_buf, strlen(smp->text_buf));
+	} else {
+		drop_text(r, slot);
+		r->row[slot] = smp->value;
+	}
+}
+
+static void start_row(struct csvread *r)
+{
+	for (unsigned i = 0; i < r->value_count; i++)
+		r->row[i] = NAN;
+	r->text_count = 0;
+}
+
+/* Reads the next line that is not blank. Returns 1 with the line, 0 at the
+ * end, a negative errno, or LINE_TOO_LONG (already counted). */
+static int next_data_line(struct csvread *r, char **line, size_t *len)
+{
 	for (;;) {
-		char *line;
-		size_t len;
-		int rc = next_line(r, &line, &len);
+		int rc = next_line(r, line, len);
 		if (rc <= 0)
 			return rc;
 		if (rc == LINE_TOO_LONG) {
@@ -711,11 +1011,73 @@ int csvread_next(struct csvread *r, int64_t *t_ms, double *values, unsigned valu
 			note_problem(r, CSVREAD_MALFORMED, "line longer than FG_CSV_LINE_MAX");
 			continue;
 		}
-		if (is_blank_line(line, len)) {
+		if (is_blank_line(*line, *len)) {
 			r->stats.lines_blank++;
 			continue;
 		}
 		r->stats.rows_read++;
+		return 1;
+	}
+}
+
+/* Long form: gathers the samples of the next time stamp into r->row.
+ * Returns 1 with *t_ms, 0 at the end, or a negative errno. */
+static int next_long(struct csvread *r, int64_t *t_ms)
+{
+	bool have_row = false;
+	int64_t row_t = 0;
+	if (r->carry.held) {
+		start_row(r);
+		have_row = true;
+		row_t = r->carry.t_ms;
+		apply_sample(r, &r->carry);
+		r->carry.held = false;
+	}
+	for (;;) {
+		char *line;
+		size_t len;
+		int rc = next_data_line(r, &line, &len);
+		if (rc < 0)
+			return rc;
+		if (rc == 0)
+			break;
+		struct csvread_sample smp;
+		const char *why = parse_sample(r, line, len, &smp);
+		if (why != NULL) {
+			note_problem(r, CSVREAD_MALFORMED, why);
+			continue;
+		}
+		if ((r->have_last && smp.t_ms <= r->last_t_ms) || (have_row && smp.t_ms < row_t)) {
+			note_problem(r, CSVREAD_UNSORTED, "time out of order");
+			continue;
+		}
+		if (have_row && smp.t_ms > row_t) {
+			r->carry = smp;
+			r->carry.held = true;
+			break;
+		}
+		if (!have_row) {
+			start_row(r);
+			have_row = true;
+			row_t = smp.t_ms;
+		}
+		apply_sample(r, &smp);
+	}
+	if (!have_row)
+		return 0;
+	*t_ms = row_t;
+	return 1;
+}
+
+/* Wide form: the next row that is good and in order. */
+static int next_wide(struct csvread *r, int64_t *t_ms)
+{
+	for (;;) {
+		char *line;
+		size_t len;
+		int rc = next_data_line(r, &line, &len);
+		if (rc <= 0)
+			return rc;
 		int64_t t = 0;
 		const char *why = parse_row(r, line, len, &t);
 		if (why != NULL) {
@@ -728,14 +1090,30 @@ int csvread_next(struct csvread *r, int64_t *t_ms, double *values, unsigned valu
 				     dup ? "duplicate time" : "time out of order");
 			continue;
 		}
-		r->have_last = true;
-		r->last_t_ms = t;
-		r->stats.rows_returned++;
 		*t_ms = t;
-		if (value_count > 0)
-			memcpy(values, r->row, value_count * sizeof *values);
 		return 1;
 	}
+}
+
+int csvread_next(struct csvread *r, int64_t *t_ms, double *values, unsigned value_count)
+{
+	assert(r != NULL);
+	assert(r->f != NULL);
+	assert(r->bound);
+	assert(t_ms != NULL);
+	assert(value_count == r->value_count);
+	assert(values != NULL || value_count == 0);
+	int64_t t = 0;
+	int rc = r->long_form ? next_long(r, &t) : next_wide(r, &t);
+	if (rc != 1)
+		return rc;
+	r->have_last = true;
+	r->last_t_ms = t;
+	r->stats.rows_returned++;
+	*t_ms = t;
+	if (value_count > 0)
+		memcpy(values, r->row, value_count * sizeof *values);
+	return 1;
 }
 
 int csvread_progress(const struct csvread *r, uint64_t *bytes_done, uint64_t *bytes_total)

@@ -1,7 +1,18 @@
 /*
  * csvread.h - streaming reader for historian CSV exports (the replay input).
  *
- * The file is a header line `time,TAG,TAG,...` and one row per time stamp.
+ * Two layouts, told apart by the header:
+ *  - wide: a header line `time,TAG,TAG,...` and one row per time stamp;
+ *  - long (narrow): columns time, tag, value and optionally status, one row
+ *    per sample. The header names are matched in any case: time column as
+ *    below; tag: "tag", "name" or "tagname"; value: "value"; status: "status"
+ *    or "quality". A header with both a tag and a value column is long.
+ *    The reader gathers the samples of one time stamp into one wide row
+ *    (bounded memory: one row), so the caller sees the same rows either way;
+ *    a bound tag without a sample at that time is missing (NAN), as an empty
+ *    wide cell is. The file must be in time order; tags may come in any
+ *    order within a time. A sample of a tag that is not bound is ignored
+ *    (counted in samples_unbound).
  * The reader makes one pass through the file with a large read buffer and
  * parses every row in place: all memory is allocated by csvread_open() and
  * csvread_bind(), none per row. Bad input never stops it: a row that cannot
@@ -15,16 +26,24 @@
  *    first field; with ';' a number may use a decimal comma ("12,5");
  *  - fields may be quoted ("..." with "" for a quote), in the header and in
  *    rows; a quoted field cannot span lines. Blanks around fields are ignored;
- *  - header names are matched exactly (case-sensitive), except the first
- *    column, which must be "time" in any case;
- *  - time: ISO 8601 or epoch seconds, as timefmt_parse() accepts;
+ *  - header names are matched exactly (case-sensitive), except the time
+ *    column: the one named by csvread_opts.time_column, else the first named
+ *    "time", "timestamp" or "date" (any case), at any position;
+ *  - time: ISO 8601 (seconds optional, 'T' or a space) or epoch seconds, as
+ *    timefmt_parse_zoned() accepts; a time without an offset is UTC, or local
+ *    time in csvread_opts.tz when one is given (a time in the spring gap is
+ *    a malformed row; the repeated autumn hour is read in file order);
  *  - numbers: [sign] digits [mark digits] [e|E [sign] digits], correctly
  *    rounded, independent of the locale; an empty field is missing (NAN).
- *    Only bound columns are parsed; other columns may hold anything;
+ *    Only bound columns are parsed; other columns may hold anything. A
+ *    bound cell holding text ("Bad Input", "I/O Timeout": a historian's
+ *    status) is NAN and its text is reported by csvread_text_at(); the row
+ *    is kept. In a long file a status column that is not one of the good
+ *    words (csvread_status_is_good) does the same with the status text;
  *  - blank lines are skipped (counted in lines_blank, not as problems).
  *
- * A row is skipped and counted when it is malformed (a bad time, text in a
- * bound number field, a field count unlike the header's, an unterminated
+ * A row is skipped and counted when it is malformed (a bad time, a field
+ * count unlike the header's, an unterminated
  * quote, more than FG_CSV_LINE_MAX bytes), when its time is earlier than
  * the last row returned (unsorted), or equal to it (duplicate). The order
  * check is against the last row returned, so one row far in the future
@@ -39,6 +58,7 @@
 #include <stdio.h>
 
 #include "fg_limits.h"
+#include "tzone.h"
 
 /* Read buffer, bytes: large enough for fast sequential reads and for any
  * accepted line plus its CRLF, so a line is always parsed in place. */
@@ -47,6 +67,9 @@
 /* Problems recorded with line numbers (the first ones in the file): enough
  * for a useful warning without flooding the terminal. */
 #define CSVREAD_PROBLEMS_MAX 16
+
+/* Text kept from a bound cell that held text, with the NUL (longer is cut). */
+#define CSVREAD_TEXT_MAX 40
 
 _Static_assert(CSVREAD_BUF_SIZE >= FG_CSV_LINE_MAX + 2, "a whole line and CRLF fit the buffer");
 
@@ -69,10 +92,29 @@ struct csvread_stats {
 	uint64_t rows_unsorted;    /* skipped: time earlier than the last row returned */
 	uint64_t rows_duplicate;   /* skipped: time equal to the last row returned */
 	uint64_t lines_blank;      /* empty or all-blank lines, skipped silently */
+	uint64_t cells_text;       /* bound cells (or long samples) marked bad by text */
+	uint64_t samples_unbound;  /* long form: samples of tags nobody asked for */
 	uint64_t first_bad_line;   /* line of the first malformed row, 0 if none */
 	const char *first_bad_reason; /* static reason for it, NULL if none */
 	unsigned problem_count;    /* entries used in problems[] */
 	struct csvread_problem problems[CSVREAD_PROBLEMS_MAX]; /* first problems, file order */
+};
+
+/* How to read the time column. Zeroed: find it by name, times without an
+ * offset are UTC. */
+struct csvread_opts {
+	const struct tzone *tz;      /* local zone of offset-less times, or NULL (UTC) */
+	const char *time_column;     /* header name of the time column, or NULL/"" */
+};
+
+/* A long-form sample held back while the row before it is returned. */
+struct csvread_sample {
+	bool held;
+	int64_t t_ms;
+	int slot;                    /* bind slot, -1 for an unbound tag */
+	double value;
+	bool text;                   /* the sample is bad: text below */
+	char text_buf[CSVREAD_TEXT_MAX];
 };
 
 struct csvread {
@@ -97,12 +139,25 @@ struct csvread {
 	int32_t *slot_of_column;   /* column_count entries: bind slot or -1 */
 	unsigned value_count;      /* bound tags */
 	double row[FG_CSV_COLUMNS_MAX]; /* values of the row being parsed */
+	struct csvread_opts opts;
+	unsigned time_col;         /* header index of the time column */
+	bool long_form;            /* a long (time, tag, value[, status]) file */
+	int tag_col, value_col, status_col; /* long form: header indexes (-1: none) */
+	const char *const *bound_names; /* long form: names as bound (caller's array) */
+	uint32_t *name_order;      /* long form: slots sorted by name, for bsearch */
+	struct csvread_sample carry; /* long form: first sample of the next row */
+	unsigned text_count;       /* cells of the last row that held text */
+	unsigned text_slot[FG_CSV_COLUMNS_MAX];
+	char text[FG_CSV_COLUMNS_MAX][CSVREAD_TEXT_MAX];
 	struct csvread_stats stats;
 };
 
+/* csvread_open_opts() with default options. */
+int csvread_open(struct csvread *r, const char *path, char *err, size_t err_size);
+
 /*
  * Opens path ("-" for stdin), reads the header and checks it: not empty,
- * first column "time", no duplicate (non-empty) names, no longer than
+ * a time column, no duplicate (non-empty) names, no longer than
  * FG_CSV_LINE_MAX. Returns 0, or a negative errno with a message
  * "PATH[:LINE]: what" in err (err may be NULL when err_size is 0): -ENODATA
  * for an empty file, -EINVAL for a bad header, -ENAMETOOLONG for a path of
@@ -110,7 +165,11 @@ struct csvread {
  * On failure r is left closed. A file with only a header opens fine;
  * csvread_next() then returns 0 at once (the caller reports "no data rows").
  */
-int csvread_open(struct csvread *r, const char *path, char *err, size_t err_size);
+int csvread_open_opts(struct csvread *r, const char *path, const struct csvread_opts *opts,
+		      char *err, size_t err_size);
+
+/* True for a long (time, tag, value[, status]) file. */
+bool csvread_is_long(const struct csvread *r);
 
 /* Releases everything and zeroes r. Accepts a never-opened reader that was
  * zero-initialised (struct csvread r = {0}), a failed open, or a closed one. */
@@ -124,6 +183,28 @@ void csvread_close(struct csvread *r);
  */
 int csvread_bind(struct csvread *r, const char *const *names, unsigned name_count, char *err,
 		 size_t err_size);
+
+/*
+ * The same, but a name that the header lacks is not an error: found[i]
+ * (name_count entries) says which names have a column, and a missing one
+ * reads as NAN in every row. In a long file every name is "found" (which
+ * tags have samples shows only while reading). names must stay valid while
+ * r is bound (a long file looks tags up in it). Returns 0, or -EINVAL for a
+ * name given twice.
+ */
+int csvread_bind_some(struct csvread *r, const char *const *names, unsigned name_count,
+		      bool *found, char *err, size_t err_size);
+
+/* The cells of the row csvread_next() last returned that held text (or, in
+ * a long file, a bad status): how many, and the k-th one's bind slot and
+ * text (NUL-terminated, valid until the next call). */
+unsigned csvread_text_count(const struct csvread *r);
+void csvread_text_at(const struct csvread *r, unsigned k, unsigned *slot, const char **text);
+
+/* True when a historian status word means a good sample: empty, or (any
+ * case, blanks around ignored) "good", "ok", "valid", "normal" or "192"
+ * (the OPC DA code for good quality, 0xC0). Everything else is bad. */
+bool csvread_status_is_good(const char *s, size_t len);
 
 /*
  * Reads the next good row: returns 1 with *t_ms and values[0..value_count)

@@ -246,24 +246,36 @@ static void test_malformed_rows_are_skipped_with_line_numbers(void **state)
 	struct fixture *fx = *state;
 	open_bound(fx, "text_in_number.csv", pdt_ft, 2);
 	expect_row2(fx, T0_MS, 1.5, 10);             /* line 2; STATUS column is text, unbound */
+	/* Line 3: a historian status in a value cell makes that cell bad (NAN,
+	 * text kept), never the row. */
+	expect_row2(fx, T0_MS + 1000, NAN, 20);
+	assert_int_equal(csvread_text_count(&fx->r), 1);
+	unsigned slot = 9;
+	const char *text = NULL;
+	csvread_text_at(&fx->r, 0, &slot, &text);
+	assert_int_equal(slot, 0);
+	assert_string_equal(text, "Bad Input");
 	expect_row2(fx, T0_MS + 2000, 3.5, 30);      /* line 4 */
+	assert_int_equal(csvread_text_count(&fx->r), 0);
+	expect_row2(fx, T0_MS + 6000, 7.5, NAN);     /* line 8: "1.2.3" is text */
+	expect_row2(fx, T0_MS + 8000, NAN, 80);      /* line 10: 1e999 is out of range */
+	csvread_text_at(&fx->r, 0, &slot, &text);
+	assert_string_equal(text, "1e999");
 	expect_row2(fx, T0_MS + 9000, 9.5, 90);      /* line 11 */
 	expect_end(fx, 2);
 	const struct csvread_stats *st = csvread_stats(&fx->r);
 	assert_int_equal(st->rows_read, 10);
-	assert_int_equal(st->rows_returned, 3);
-	assert_int_equal(st->rows_malformed, 7);
+	assert_int_equal(st->rows_returned, 6);
+	assert_int_equal(st->rows_malformed, 4);
+	assert_int_equal(st->cells_text, 3);
 	assert_int_equal(st->rows_unsorted, 0);
-	assert_int_equal(st->first_bad_line, 3);
-	assert_string_equal(st->first_bad_reason, "text in a number field");
-	assert_int_equal(st->problem_count, 7);
-	expect_problem(st, 0, 3, CSVREAD_MALFORMED, "text in a number field");
-	expect_problem(st, 1, 5, CSVREAD_MALFORMED, "fewer fields than the header");
-	expect_problem(st, 2, 6, CSVREAD_MALFORMED, "more fields than the header");
-	expect_problem(st, 3, 7, CSVREAD_MALFORMED, "bad time");
-	expect_problem(st, 4, 8, CSVREAD_MALFORMED, "text in a number field");
-	expect_problem(st, 5, 9, CSVREAD_MALFORMED, "unterminated quote");
-	expect_problem(st, 6, 10, CSVREAD_MALFORMED, "number out of range");
+	assert_int_equal(st->first_bad_line, 5);
+	assert_string_equal(st->first_bad_reason, "fewer fields than the header");
+	assert_int_equal(st->problem_count, 4);
+	expect_problem(st, 0, 5, CSVREAD_MALFORMED, "fewer fields than the header");
+	expect_problem(st, 1, 6, CSVREAD_MALFORMED, "more fields than the header");
+	expect_problem(st, 2, 7, CSVREAD_MALFORMED, "bad time");
+	expect_problem(st, 3, 9, CSVREAD_MALFORMED, "unterminated quote");
 }
 
 static void test_numbers_are_correctly_rounded(void **state)
@@ -291,14 +303,20 @@ static void test_numbers_are_correctly_rounded(void **state)
 		if (memcmp(&v, &expect[i], sizeof v) != 0)
 			fail_msg("line %u: got %.17g, expected %.17g", i + 2, v, expect[i]);
 	}
-	expect_end(fx, 1);
 	/* The ten text forms after them (1e, e5, --1, 1-, 0x10, inf, nan, "1 2",
-	 * 1.5., ".") are all refused. */
+	 * 1.5., ".") are not numbers: each reads as a bad cell with its text. */
+	for (unsigned i = 0; i < 10; i++) {
+		int64_t t;
+		double v = 0.0;
+		assert_int_equal(csvread_next(&fx->r, &t, &v, 1), 1);
+		assert_true(isnan(v));
+		assert_int_equal(csvread_text_count(&fx->r), 1);
+	}
+	expect_end(fx, 1);
 	const struct csvread_stats *st = csvread_stats(&fx->r);
-	assert_int_equal(st->rows_malformed, 10);
-	assert_int_equal(st->rows_returned, n);
-	for (unsigned i = 0; i < 10; i++)
-		expect_problem(st, i, n + 2 + i, CSVREAD_MALFORMED, "text in a number field");
+	assert_int_equal(st->rows_malformed, 0);
+	assert_int_equal(st->cells_text, 10);
+	assert_int_equal(st->rows_returned, n + 10);
 }
 
 static void test_missing_tag_is_an_error_naming_tag_and_file(void **state)
@@ -426,8 +444,8 @@ static void test_header_without_time_is_an_error(void **state)
 	const char *path = FG_CSV_FIXTURES "no_time.csv";
 	assert_int_equal(csvread_open(&fx->r, path, fx->err, sizeof fx->err), -EINVAL);
 	assert_non_null(strstr(fx->err, "no_time.csv:1:"));
-	assert_non_null(strstr(fx->err, "\"time\""));
-	assert_non_null(strstr(fx->err, "\"stamp\""));
+	assert_non_null(strstr(fx->err, "no time column"));
+	assert_non_null(strstr(fx->err, "time_column"));
 }
 
 static void test_duplicate_header_names_are_an_error(void **state)
@@ -733,6 +751,126 @@ static void test_large_generated_file_sums_match(void **state)
 	csvread_close(&fx->r);
 }
 
+/* The time column is found by name at any position, in the spreadsheet
+ * form, and a historian's text in a value cell is kept. */
+static void test_time_column_by_name_and_text_cell(void **state)
+{
+	struct fixture *fx = *state;
+	const char *const names[] = { "U40.PDI401.PV", "U40.FI401.PV" };
+	open_bound(fx, "time_named.csv", names, 2);
+	expect_row2(fx, T0_MS, 12.5, 1500);
+	expect_row2(fx, T0_MS + 1250, NAN, 1510);
+	unsigned slot = 9;
+	const char *text = NULL;
+	csvread_text_at(&fx->r, 0, &slot, &text);
+	assert_int_equal(slot, 0);
+	assert_string_equal(text, "I/O Timeout");
+	expect_end(fx, 2);
+}
+
+/* A configured time column name wins; a missing one is named in the error. */
+static void test_configured_time_column(void **state)
+{
+	struct fixture *fx = *state;
+	const char *path = FG_CSV_FIXTURES "no_time.csv";
+	struct csvread_opts o = { .tz = NULL, .time_column = "STAMP" };
+	assert_int_equal(csvread_open_opts(&fx->r, path, &o, fx->err, sizeof fx->err), 0);
+	const char *const names[] = { "C3_PDT_101" };
+	assert_int_equal(csvread_bind(&fx->r, names, 1, fx->err, sizeof fx->err), 0);
+	int64_t t = 0;
+	double v = 0;
+	assert_int_equal(csvread_next(&fx->r, &t, &v, 1), 1);
+	assert_int_equal(t, T0_MS);
+	csvread_close(&fx->r);
+	o.time_column = "when";
+	assert_int_equal(csvread_open_opts(&fx->r, path, &o, fx->err, sizeof fx->err), -EINVAL);
+	assert_non_null(strstr(fx->err, "no column \"when\" ([replay] time_column)"));
+}
+
+/* Local times in Europe/Berlin across the autumn change: the repeated hour
+ * by file order; the spring gap is a malformed row. UTC values from
+ * `TZ=Europe/Berlin date -d '2026-10-25 03:00' +%s` = 1792893600 and the
+ * offsets +02:00 / +01:00 either side. */
+static void test_local_zone_autumn_order_and_spring_gap(void **state)
+{
+	struct fixture *fx = *state;
+	struct tzone z;
+	assert_int_equal(tzone_load(&z, "Europe/Berlin", fx->err, sizeof fx->err), 0);
+	struct csvread_opts o = { .tz = &z, .time_column = NULL };
+	const char *path = FG_CSV_FIXTURES "local_autumn.csv";
+	assert_int_equal(csvread_open_opts(&fx->r, path, &o, fx->err, sizeof fx->err), 0);
+	const char *const names[] = { "A", "B" };
+	assert_int_equal(csvread_bind(&fx->r, names, 2, fx->err, sizeof fx->err), 0);
+	const int64_t t3 = 1792893600000LL; /* 03:00 CET = 02:00Z */
+	expect_row2(fx, t3 - 90 * 60000LL, 1, 2);  /* 02:30 CEST = 00:30Z */
+	expect_row2(fx, t3 - 61 * 60000LL, 3, 4);  /* 02:59 CEST = 00:59Z */
+	expect_row2(fx, t3 - 60 * 60000LL, 5, 6);  /* 02:00 CET  = 01:00Z */
+	expect_row2(fx, t3 - 30 * 60000LL, 7, 8);  /* 02:30 CET  = 01:30Z */
+	expect_row2(fx, t3, 9, 10);
+	expect_end(fx, 2);
+	const struct csvread_stats *st = csvread_stats(&fx->r);
+	assert_int_equal(st->rows_malformed, 1);
+	assert_int_equal(st->problems[0].line, 7);
+	assert_non_null(strstr(st->problems[0].reason, "daylight-saving gap"));
+	csvread_close(&fx->r);
+	tzone_free(&z);
+}
+
+/* Long form: samples gathered per time stamp, statuses, unbound tags and a
+ * late sample. */
+static void test_long_form_rows_statuses_and_order(void **state)
+{
+	struct fixture *fx = *state;
+	const char *const names[] = { "U40.PDI401.PV", "U40.FI401.PV" };
+	open_bound(fx, "long_status.csv", names, 2);
+	assert_true(csvread_is_long(&fx->r));
+	expect_row2(fx, T0_MS, 12.5, 1500);
+	assert_int_equal(csvread_text_count(&fx->r), 0);
+	expect_row2(fx, T0_MS + 1000, NAN, 1510); /* status "Bad Input" */
+	unsigned slot = 9;
+	const char *text = NULL;
+	assert_int_equal(csvread_text_count(&fx->r), 1);
+	csvread_text_at(&fx->r, 0, &slot, &text);
+	assert_int_equal(slot, 0);
+	assert_string_equal(text, "Bad Input");
+	expect_row2(fx, T0_MS + 2000, NAN, 1520); /* text in the value cell */
+	csvread_text_at(&fx->r, 0, &slot, &text);
+	assert_string_equal(text, "Comm Fail");
+	expect_row2(fx, T0_MS + 3000, 13, NAN);   /* FI401 has no sample: missing */
+	expect_end(fx, 2);
+	const struct csvread_stats *st = csvread_stats(&fx->r);
+	assert_int_equal(st->rows_returned, 4);
+	assert_int_equal(st->samples_unbound, 1); /* TI401 */
+	assert_int_equal(st->rows_unsorted, 1);   /* the late 05:06:01 sample */
+	assert_int_equal(st->problems[0].line, 9);
+}
+
+static void test_status_words(void **state)
+{
+	(void)state;
+	assert_true(csvread_status_is_good("", 0));
+	assert_true(csvread_status_is_good(" Good ", 6));
+	assert_true(csvread_status_is_good("OK", 2));
+	assert_true(csvread_status_is_good("192", 3));
+	assert_false(csvread_status_is_good("Bad", 3));
+	assert_false(csvread_status_is_good("Uncertain", 9));
+	assert_false(csvread_status_is_good("Good Local Override", 19));
+}
+
+/* A name the header lacks reads as missing when bound with bind_some. */
+static void test_bind_some_reports_missing_columns(void **state)
+{
+	struct fixture *fx = *state;
+	const char *path = FG_CSV_FIXTURES "good_comma.csv";
+	assert_int_equal(csvread_open(&fx->r, path, fx->err, sizeof fx->err), 0);
+	const char *const names[] = { "C3_PDT_101", "NOPE" };
+	bool found[2] = { false, true };
+	assert_int_equal(csvread_bind_some(&fx->r, names, 2, found, fx->err, sizeof fx->err), 0);
+	assert_true(found[0]);
+	assert_false(found[1]);
+	expect_row2(fx, T0_MS, 12.5, NAN);
+}
+
 int main(void)
 {
 #define T(f) cmocka_unit_test_setup_teardown(f, setup, teardown)
@@ -762,6 +900,12 @@ int main(void)
 		T(test_stdin_pipe_is_read_with_unknown_total),
 		T(test_mutated_input_never_breaks_the_counters),
 		T(test_large_generated_file_sums_match),
+		T(test_time_column_by_name_and_text_cell),
+		T(test_configured_time_column),
+		T(test_local_zone_autumn_order_and_spring_gap),
+		T(test_long_form_rows_statuses_and_order),
+		T(test_status_words),
+		T(test_bind_some_reports_missing_columns),
 	};
 #undef T
 	return cmocka_run_group_tests_name("csvread", tests, NULL, NULL);
