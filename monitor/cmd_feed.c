@@ -14,7 +14,7 @@
 
 #include "commands.h"
 #include "config.h"
-#include "csvread.h"
+#include "histread.h"
 #include "log.h"
 #include "mbserver.h"
 #include "plant.h"
@@ -30,6 +30,8 @@ struct feed {
 	bool loop;
 	const char *data;
 	uint64_t rows;
+	struct histread_opts hopts;
+	unsigned passes;
 };
 
 static void feed_usage(FILE *f)
@@ -40,7 +42,9 @@ static void feed_usage(FILE *f)
 		   "tags (the inverse of scale/offset, each tag's type and word order), one row at\n"
 		   "a time, paced by the rows' time stamps divided by X (default 1). The listen\n"
 		   "address defaults to the source's host:port. With --loop the data repeats.\n"
-		   "Prints 'listening on HOST:PORT' once ready.\n");
+		   "Prints 'listening on HOST:PORT' once ready. The data is read as replay reads\n"
+		   "it (wide or long, [tag.NAME] column =, [replay] keys).\n"
+		   HISTREAD_USAGE);
 }
 
 static int64_t mono_ms(void)
@@ -81,14 +85,16 @@ static void map_of(const struct feed *fd, struct mbserver_map_cfg *map)
 	}
 }
 
-/* Writes one row into the map; a missing value keeps the register as it was. */
-static void serve_row(struct feed *fd, const double *row)
+/* Writes one row (values by tag index) into the map; a missing or bad value
+ * keeps the register as it was. */
+static void serve_row(struct feed *fd, const double *values)
 {
 	for (unsigned k = 0; k < fd->tag_count; k++) {
 		const struct tag_cfg *t = &fd->cfg->tags[fd->tags[k]];
-		if (isnan(row[k]))
+		double v = values[fd->tags[k]];
+		if (isnan(v))
 			continue;
-		double raw = (row[k] - t->offset) / t->scale;
+		double raw = (v - t->offset) / t->scale;
 		uint16_t regs[2];
 		if (regcodec_encode((enum regcodec_type)t->type, (enum regcodec_order)t->order, raw,
 				    regs) != 0)
@@ -103,35 +109,33 @@ static void serve_row(struct feed *fd, const double *row)
 
 static int feed_pass(struct feed *fd, int64_t *start_mono_ms)
 {
-	static const char *names[FG_TAGS_MAX];
-	static double row[FG_CSV_COLUMNS_MAX];
+	static double values[FG_TAGS_MAX];
+	static enum tag_status status[FG_TAGS_MAX];
+	static struct histread hist;
 	char err[512];
-	struct csvread csv;
-	memset(&csv, 0, sizeof(csv));
-	for (unsigned k = 0; k < fd->tag_count; k++)
-		names[k] = fd->cfg->tags[fd->tags[k]].name;
-	if (csvread_open(&csv, fd->data, err, sizeof(err)) != 0 ||
-	    csvread_bind(&csv, names, fd->tag_count, err, sizeof(err)) != 0) {
+	if (histread_init(&hist, fd->cfg, &fd->hopts, err, sizeof(err)) != 0 ||
+	    histread_open(&hist, fd->data, fd->passes == 0 ? stderr : NULL, err, sizeof(err)) != 0) {
 		fprintf(stderr, "floodgauge feed: %s\n", err);
-		csvread_close(&csv);
+		histread_fini(&hist);
 		return EXIT_USAGE;
 	}
+	fd->passes++;
 	int64_t t0 = 0, t_ms = 0;
 	bool first = true;
 	int rc;
-	while (!sig_stop && (rc = csvread_next(&csv, &t_ms, row, fd->tag_count)) == 1) {
+	while (!sig_stop && (rc = histread_next(&hist, &t_ms, values, status)) == 1) {
 		if (first) {
 			t0 = t_ms;
 			first = false;
 		}
 		sleep_until_mono_ms(*start_mono_ms + (int64_t)((double)(t_ms - t0) / fd->speed));
-		serve_row(fd, row);
+		serve_row(fd, values);
 		fd->rows++;
 	}
 	/* The next pass starts one period after this one ended. */
 	*start_mono_ms += (int64_t)((double)(t_ms - t0) / fd->speed) +
 			  (int64_t)(fd->cfg->monitor.period_s * 1000.0 / fd->speed);
-	csvread_close(&csv);
+	histread_fini(&hist);
 	return 0;
 }
 
@@ -178,7 +182,7 @@ int cmd_feed(int argc, char **argv)
 		{"config", required_argument, NULL, 'c'}, {"listen", required_argument, NULL, 'l'},
 		{"speed", required_argument, NULL, 's'},  {"loop", no_argument, NULL, 'L'},
 		{"source", required_argument, NULL, 'S'}, {"help", no_argument, NULL, 'h'},
-		{0}};
+		HISTREAD_LONG_OPTIONS, {0}};
 	const char *path = NULL, *listen = NULL, *source = NULL;
 	static struct feed fd;
 	memset(&fd, 0, sizeof(fd));
@@ -199,7 +203,11 @@ int cmd_feed(int argc, char **argv)
 		case 'L': fd.loop = true; break;
 		case 'S': source = optarg; break;
 		case 'h': feed_usage(stdout); return 0;
-		default: feed_usage(stderr); return EXIT_USAGE;
+		default:
+			if (histread_opts_take(&fd.hopts, ch, optarg))
+				break;
+			feed_usage(stderr);
+			return EXIT_USAGE;
 		}
 	}
 	if (path == NULL || optind != argc - 1) {

@@ -18,7 +18,7 @@
 #include <unistd.h>
 
 #include "commands.h"
-#include "csvread.h"
+#include "histread.h"
 #include "engine.h"
 #include "numfmt.h"
 #include "report.h"
@@ -29,11 +29,11 @@ struct replay {
 	const char *data_path;
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
+	const char *from_text, *to_text;  /* --from/--to as given (read in the zone) */
+	struct histread_opts hopts;
 	struct fg_config *cfg;
 	struct engine *eng;
-	struct csvread csv;
-	unsigned polled_count;
-	int tag_of_slot[FG_TAGS_MAX];
+	struct histread hist;
 	FILE *results, *events;
 	struct report rp;
 	struct report_summary sum;
@@ -45,20 +45,29 @@ struct replay {
 
 static void replay_usage(FILE *f)
 {
-	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv [--out DIR] [--from T] [--to T]\n\n"
-		   "Runs the monitor's engine over recorded data (a historian export: header\n"
-		   "'time,TAG,...', ISO 8601 UTC or epoch seconds, ',' or ';') and writes\n"
-		   "DIR/results.csv, DIR/events.jsonl and DIR/report.html (default DIR:\n"
-		   "floodgauge-replay). --from/--to limit the rows to a time window.\n"
+	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv [--out DIR] [--from T] [--to T]\n"
+		   "                        [--tz ZONE]\n\n"
+		   "Runs the monitor's engine over recorded data (a historian export, wide:\n"
+		   "a time column and one column per tag, or long: time,tag,value[,status];\n"
+		   "ISO 8601 or epoch seconds, ',' or ';') and writes DIR/results.csv,\n"
+		   "DIR/events.jsonl and DIR/report.html (default DIR: floodgauge-replay).\n"
+		   "--from/--to limit the rows to a time window (seconds optional).\n"
+		   HISTREAD_USAGE
 		   "Exit status: 0 ok, 1 output could not be written, 2 bad config or data.\n");
 }
 
-static int parse_time_opt(const char *opt, const char *s, int64_t *t_ms)
+/* --from/--to, read once the zone is known (the config may name it). */
+static int window_times(struct replay *rp)
 {
-	if (timefmt_parse(s, strlen(s), t_ms) != 0) {
-		fprintf(stderr, "floodgauge replay: %s '%s' is not an ISO 8601 time or epoch "
-				"seconds\n", opt, s);
-		return -EINVAL;
+	char err[512];
+	if ((rp->from_text != NULL &&
+	     histread_time_arg(&rp->hist, "--from", rp->from_text, &rp->from_t_ms, err,
+			       sizeof(err)) != 0) ||
+	    (rp->to_text != NULL &&
+	     histread_time_arg(&rp->hist, "--to", rp->to_text, &rp->to_t_ms, err, sizeof(err)) !=
+		     0)) {
+		fprintf(stderr, "floodgauge replay: %s\n", err);
+		return EXIT_USAGE;
 	}
 	return 0;
 }
@@ -70,6 +79,7 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 					     {"from", required_argument, NULL, 'f'},
 					     {"to", required_argument, NULL, 't'},
 					     {"help", no_argument, NULL, 'h'},
+					     HISTREAD_LONG_OPTIONS,
 					     {0}};
 	int ch;
 	optind = 1;
@@ -77,16 +87,14 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 		switch (ch) {
 		case 'c': *cfg_path = optarg; break;
 		case 'o': rp->out_dir = optarg; break;
-		case 'f':
-			if (parse_time_opt("--from", optarg, &rp->from_t_ms) != 0)
-				return EXIT_USAGE;
-			break;
-		case 't':
-			if (parse_time_opt("--to", optarg, &rp->to_t_ms) != 0)
-				return EXIT_USAGE;
-			break;
+		case 'f': rp->from_text = optarg; break;
+		case 't': rp->to_text = optarg; break;
 		case 'h': replay_usage(stdout); return -1;
-		default: replay_usage(stderr); return EXIT_USAGE;
+		default:
+			if (histread_opts_take(&rp->hopts, ch, optarg))
+				break;
+			replay_usage(stderr);
+			return EXIT_USAGE;
 		}
 	}
 	if (*cfg_path == NULL || optind != argc - 1) {
@@ -121,17 +129,15 @@ static int open_outputs(struct replay *rp)
 
 static int bind_columns(struct replay *rp)
 {
-	static const char *names[FG_TAGS_MAX];
 	char err[512];
-	rp->polled_count = 0;
-	for (unsigned i = 0; i < rp->cfg->tag_count; i++) {
-		if (rp->cfg->tags[i].source_index < 0)
-			continue;
-		rp->tag_of_slot[rp->polled_count] = (int)i;
-		names[rp->polled_count++] = rp->cfg->tags[i].name;
+	if (histread_init(&rp->hist, rp->cfg, &rp->hopts, err, sizeof(err)) != 0) {
+		fprintf(stderr, "floodgauge replay: %s\n", err);
+		return EXIT_USAGE;
 	}
-	if (csvread_open(&rp->csv, rp->data_path, err, sizeof(err)) != 0 ||
-	    csvread_bind(&rp->csv, names, rp->polled_count, err, sizeof(err)) != 0) {
+	int rc = window_times(rp);
+	if (rc != 0)
+		return rc;
+	if (histread_open(&rp->hist, rp->data_path, stderr, err, sizeof(err)) != 0) {
 		fprintf(stderr, "floodgauge replay: %s\n", err);
 		return EXIT_USAGE;
 	}
@@ -214,14 +220,14 @@ _Static_assert((int)REPORT_PRIORITY_URGENT == (int)ALARM_PRIORITY_URGENT &&
 		       (int)REPORT_PRIORITY_LOW == (int)ALARM_PRIORITY_LOW,
 	       "report and alarm priorities share their order");
 
-static int step_row(struct replay *rp, int64_t t_ms, const double *row)
+static int step_row(struct replay *rp, int64_t t_ms, const double *values,
+		    const enum tag_status *status)
 {
-	static double values[FG_TAGS_MAX];
-	static enum tag_status status[FG_TAGS_MAX];
-	for (unsigned k = 0; k < rp->polled_count; k++) {
-		int ti = rp->tag_of_slot[k];
-		values[ti] = row[k];
-		status[ti] = isnan(row[k]) ? TAG_STATUS_MISSING : TAG_STATUS_FRESH;
+	for (unsigned k = 0; k < histread_text_count(&rp->hist); k++) {
+		unsigned ti;
+		const char *text;
+		histread_text_at(&rp->hist, k, &ti, &text);
+		engine_tag_status_text(rp->eng, ti, text);
 	}
 	engine_step(rp->eng, t_ms, values, status);
 	const struct section_result *res[FG_SECTIONS_MAX];
@@ -261,7 +267,7 @@ static void progress(const struct replay *rp, double t0, double *next, bool fina
 		return;
 	*next = now + 0.5;
 	uint64_t done = 0, total = 0;
-	csvread_progress(&rp->csv, &done, &total);
+	histread_progress(&rp->hist, &done, &total);
 	double rate = (double)rp->rows_used / fmax(now - t0, 1e-3);
 	if (total > 0 && done > 0) {
 		double left = (now - t0) * (double)(total - done) / (double)done;
@@ -277,17 +283,18 @@ static void progress(const struct replay *rp, double t0, double *next, bool fina
 
 static int run_rows(struct replay *rp)
 {
-	static double row[FG_CSV_COLUMNS_MAX];
+	static double values[FG_TAGS_MAX];
+	static enum tag_status status[FG_TAGS_MAX];
 	bool tty = isatty(STDERR_FILENO);
 	double t0 = wall_s(), next = t0 + 0.5;
 	int64_t t_ms;
 	int rc;
-	while ((rc = csvread_next(&rp->csv, &t_ms, row, rp->polled_count)) == 1) {
+	while ((rc = histread_next(&rp->hist, &t_ms, values, status)) == 1) {
 		if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms) {
 			rp->rows_outside++;
 			continue;
 		}
-		if (step_row(rp, t_ms, row) != 0) {
+		if (step_row(rp, t_ms, values, status) != 0) {
 			fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir,
 				strerror(errno));
 			return EXIT_RUNTIME;
@@ -306,7 +313,8 @@ static int run_rows(struct replay *rp)
 
 static void warn_skipped(const struct replay *rp)
 {
-	const struct csvread_stats *st = csvread_stats(&rp->csv);
+	const struct csvread_stats *st = histread_stats(&rp->hist);
+	histread_warn_unseen(&rp->hist, stderr);
 	for (unsigned i = 0; i < st->problem_count; i++)
 		fprintf(stderr, "floodgauge replay: %s:%llu: %s row skipped: %s\n", rp->data_path,
 			(unsigned long long)st->problems[i].line,
@@ -336,6 +344,10 @@ static void print_summary(const struct replay *rp)
 	       "%llu outside --from/--to\n", (unsigned long long)s->rows_malformed,
 	       (unsigned long long)s->rows_unsorted, (unsigned long long)s->rows_duplicate,
 	       (unsigned long long)rp->rows_outside);
+	const struct csvread_stats *st = histread_stats(&rp->hist);
+	if (st->cells_text > 0)
+		printf("  samples the historian marked bad (reason historian_status): %llu\n",
+		       (unsigned long long)st->cells_text);
 	printf("  alarms raised: urgent %llu, high %llu, medium %llu, low %llu\n",
 	       (unsigned long long)s->raised[REPORT_PRIORITY_URGENT],
 	       (unsigned long long)s->raised[REPORT_PRIORITY_HIGH],
@@ -377,7 +389,7 @@ static int replay_run(struct replay *rp)
 	if (rc != 0)
 		return rc;
 	warn_skipped(rp);
-	const struct csvread_stats *st = csvread_stats(&rp->csv);
+	const struct csvread_stats *st = histread_stats(&rp->hist);
 	rp->sum.rows_read = st->rows_read;
 	rp->sum.rows_malformed = st->rows_malformed;
 	rp->sum.rows_unsorted = st->rows_unsorted;
@@ -427,7 +439,7 @@ out_free:
 	if (rp.events)
 		fclose(rp.events);
 	report_fini(&rp.rp);
-	csvread_close(&rp.csv);
+	histread_fini(&rp.hist);
 	free(rp.eng);
 	free(rp.cfg);
 	return rc;

@@ -25,7 +25,9 @@
 /* libinih's line buffer in Debian's build (ini_max_line default). */
 #define CONFIG_LINE_MAX 200
 
-enum sec_kind { SK_NONE, SK_MONITOR, SK_SOURCE, SK_TAG, SK_SECTION, SK_ALARM, SK_MQTT, SK_EXPORT };
+enum sec_kind {
+	SK_NONE, SK_MONITOR, SK_SOURCE, SK_TAG, SK_SECTION, SK_ALARM, SK_MQTT, SK_EXPORT, SK_REPLAY
+};
 
 void config_error(struct config_ctx *c, int line, const char *fmt, ...)
 {
@@ -276,6 +278,11 @@ static int open_header(struct config_ctx *c, const char *hdr)
 		     {"tag.", SK_TAG, FG_TAGS_MAX, true},
 		     {"section.", SK_SECTION, FG_SECTIONS_MAX, false},
 		     {"alarm.", SK_ALARM, FG_ALARMS_MAX, false}};
+	if (!strcmp(hdr, "replay")) {
+		c->cur_kind = SK_REPLAY;
+		cfg->replay.line = c->line;
+		return 0;
+	}
 	if (!strcmp(hdr, "monitor") || !strcmp(hdr, "mqtt") || !strcmp(hdr, "export.modbus")) {
 		c->cur_kind = hdr[0] == 'm' ? (hdr[1] == 'o' ? SK_MONITOR : SK_MQTT) : SK_EXPORT;
 		if (c->cur_kind == SK_MQTT)
@@ -311,7 +318,7 @@ static int open_header(struct config_ctx *c, const char *hdr)
 		return 0;
 	}
 	config_error(c, c->line, "unknown section [%s] (expected monitor, source.NAME, tag.NAME, "
-				 "section.NAME, alarm.NAME, mqtt or export.modbus)", hdr);
+				 "section.NAME, alarm.NAME, mqtt, export.modbus or replay)", hdr);
 	return -EINVAL;
 }
 
@@ -334,6 +341,7 @@ static int handler(void *user, const char *section, const char *name, const char
 	case SK_ALARM: config_alarm_key(c, i, name, value); break;
 	case SK_MQTT: config_mqtt_key(c, name, value); break;
 	case SK_EXPORT: config_export_key(c, name, value); break;
+	case SK_REPLAY: config_replay_key(c, name, value); break;
 	default: assert(0);
 	}
 	return 1; /* keep going: report every problem, not just the first */

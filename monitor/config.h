@@ -47,8 +47,16 @@ enum tag_type {
 };
 enum tag_word_order { TAG_ORDER_ABCD, TAG_ORDER_BADC, TAG_ORDER_CDAB, TAG_ORDER_DCBA };
 
+/* A historian's column name, with the NUL ("\\\\PLANT\\U40\\FI401.PV" and the
+ * like are longer than tag names). */
+#define TAG_COLUMN_MAX 128
+
 struct tag_cfg {
 	char name[FG_NAME_MAX];
+	char column[TAG_COLUMN_MAX]; /* data file column (wide header or long tag name);
+	                              * "" = the tag's name */
+	double hold_s;               /* recorded on change: the last value stays fresh this
+	                              * long (0 = by stale_periods only) */
 	int source_index;            /* -1 for a fixed value */
 	double fixed_value;          /* value = N, in the tag's unit (NAN when polled) */
 	double nominal;              /* nominal = N: the design value `rate` uses when not set */
@@ -129,6 +137,14 @@ struct monitor_cfg {
 	char events_file[FG_PATH_MAX];  /* "" = none */
 };
 
+/* [replay]: how historian files are read (replay, calibrate, tune, feed). */
+struct replay_cfg {
+	char time_column[TAG_COLUMN_MAX]; /* "" = time, timestamp or date */
+	char tz[64];                 /* IANA zone of offset-less times ("" = UTC) */
+	int line;                    /* of the [replay] header */
+	int tz_line;                 /* of the tz key */
+};
+
 struct fg_config {
 	char path[FG_PATH_MAX];
 	struct monitor_cfg monitor;
@@ -142,7 +158,11 @@ struct fg_config {
 	struct alarm_cfg alarms[FG_ALARMS_MAX];
 	struct mqtt_cfg mqtt;
 	struct export_cfg exp;
+	struct replay_cfg replay;
 };
+
+/* The data-file column of tag t: its `column =`, else its name. */
+const char *config_tag_column(const struct tag_cfg *t);
 
 /* Loads and checks path into *cfg (the caller owns cfg; it is large, so
  * allocate it). Every problem found is written to errf as "FILE:LINE: what"

@@ -60,7 +60,7 @@ struct config_ctx {
 	uint32_t source_keys_set[FG_SOURCES_MAX];
 	char export_fields[4096];
 	int export_fields_line;
-	uint32_t monitor_keys_set, mqtt_keys_set, export_keys_set;
+	uint32_t monitor_keys_set, mqtt_keys_set, export_keys_set, replay_keys_set;
 	unsigned seen_count;
 	struct pending_name seen[CONFIG_HEADERS_MAX]; /* headers seen, for duplicates */
 };
@@ -97,6 +97,7 @@ int config_section_key(struct config_ctx *c, struct section_cfg *s, struct secti
 int config_alarm_key(struct config_ctx *c, unsigned ai, const char *key, const char *v);
 int config_mqtt_key(struct config_ctx *c, const char *key, const char *v);
 int config_export_key(struct config_ctx *c, const char *key, const char *v);
+int config_replay_key(struct config_ctx *c, const char *key, const char *v);
 /* Applicability and required keys of section si, once its type is known. */
 int config_section_keys_check(struct config_ctx *c, unsigned si);
 

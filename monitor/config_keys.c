@@ -231,7 +231,7 @@ static int key_index(const char *const *names, const char *key)
 static const char *const tag_key_names[] = {
 	"source", "table", "address", "type", "word_order", "scale", "offset", "unit", "min", "max",
 	"value", "stale_periods", "frozen_s", "frozen_tolerance", "spike_limit", "filter_tau_s",
-	"median", "nominal", NULL};
+	"median", "nominal", "column", "hold_s", NULL};
 static const char *const table_names[] = {"input", "holding", NULL};
 static const char *const type_names_tag[] = {"int16", "uint16", "int32", "uint32", "float32", NULL};
 static const char *const order_names[] = {"abcd", "badc", "cdab", "dcba", NULL};
@@ -292,6 +292,8 @@ int config_tag_key(struct config_ctx *c, unsigned ti, const char *key, const cha
 		}
 		return rc;
 	case 17: return config_parse_double(c, key, v, -big, big, &t->nominal);
+	case 18: return config_copy_text(c, key, v, t->column, sizeof(t->column));
+	case 19: return config_parse_double(c, key, v, 0.0, 1e7, &t->hold_s);
 	default: assert(0);
 	}
 	return -EINVAL;
@@ -465,4 +467,26 @@ int config_alarm_key(struct config_ctx *c, unsigned ai, const char *key, const c
 		return -EINVAL;
 	pn->line = c->line;
 	return 0;
+}
+
+static const char *const replay_key_names[] = {"time_column", "tz", NULL};
+
+int config_replay_key(struct config_ctx *c, const char *key, const char *v)
+{
+	struct replay_cfg *r = &c->cfg->replay;
+	int k = key_index(replay_key_names, key);
+	if (k < 0) {
+		config_error(c, c->line, "unknown key '%s' in [replay]", key);
+		return -EINVAL;
+	}
+	if (!first_time(c, &c->replay_keys_set, (unsigned)k, key))
+		return -EINVAL;
+	switch (k) {
+	case 0: return config_copy_text(c, key, v, r->time_column, sizeof(r->time_column));
+	case 1:
+		r->tz_line = c->line;
+		return config_copy_text(c, key, v, r->tz, sizeof(r->tz));
+	default: assert(0);
+	}
+	return -EINVAL;
 }

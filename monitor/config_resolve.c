@@ -15,6 +15,48 @@
 
 #include "mbclient.h"
 #include "packing.h"
+#include "tzone.h"
+
+const char *config_tag_column(const struct tag_cfg *t)
+{
+	assert(t != NULL);
+	return t->column[0] != '\0' ? t->column : t->name;
+}
+
+/* Two recorded tags cannot share a data column: which would it feed? */
+static void resolve_columns(struct config_ctx *c)
+{
+	const struct fg_config *cfg = c->cfg;
+	for (unsigned i = 0; i < cfg->tag_count; i++) {
+		const struct tag_cfg *t = &cfg->tags[i];
+		if (t->source_index < 0) {
+			if (t->column[0] != '\0' || t->hold_s > 0.0)
+				config_error(c, t->line, "[tag.%s]: column and hold_s are for polled "
+							 "or recorded tags, not 'value =' tags", t->name);
+			continue;
+		}
+		for (unsigned k = 0; k < i; k++) {
+			const struct tag_cfg *o = &cfg->tags[k];
+			if (o->source_index >= 0 &&
+			    strcmp(config_tag_column(o), config_tag_column(t)) == 0)
+				config_error(c, t->line, "[tag.%s] reads data column '%s', which is "
+							 "already tag %s's", t->name,
+					     config_tag_column(t), o->name);
+		}
+	}
+}
+
+static void resolve_replay(struct config_ctx *c)
+{
+	const struct replay_cfg *r = &c->cfg->replay;
+	if (r->tz[0] == '\0')
+		return;
+	struct tzone z;
+	char err[512];
+	if (tzone_load(&z, r->tz, err, sizeof err) != 0)
+		config_error(c, r->tz_line, "[replay] tz: %s", err);
+	tzone_free(&z);
+}
 
 int config_tag_index(const struct fg_config *cfg, const char *name)
 {
@@ -454,6 +496,8 @@ int config_resolve(struct config_ctx *c)
 {
 	resolve_sources(c);
 	resolve_tags(c);
+	resolve_columns(c);
+	resolve_replay(c);
 	resolve_sections(c);
 	for (unsigned i = 0; i < c->cfg->alarm_count; i++)
 		resolve_alarm(c, i);

@@ -17,6 +17,9 @@ void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period
 	memset(s, 0, sizeof(*s));
 	s->cfg = cfg;
 	s->stale_ms = (int64_t)llround(cfg->stale_periods * period_s * 1000.0);
+	/* A tag recorded only on change keeps its last value fresh for hold_s. */
+	if (cfg->hold_s > 0.0 && s->stale_ms > 0)
+		s->stale_ms = (int64_t)llround(fmax(cfg->stale_periods * period_s, cfg->hold_s) * 1000.0);
 	s->value = NAN;
 	s->value_si = NAN;
 	s->accepted = NAN;

@@ -2,8 +2,11 @@
  * validate.h - per-tag signal validation and filtering.
  *
  * Every sample of a tag passes, in this order: read status (a failed read is
- * bad at once, "comm_fail"); a missing sample holds the last good value until
- * it is stale (no fresh read for stale_periods x period_s: bad, "stale");
+ * bad at once, "comm_fail"; a sample the historian marked bad,
+ * "historian_status"; a tag the data file has no column for,
+ * "missing_column"); a missing sample holds the last good value until it is
+ * stale (no fresh read for stale_periods x period_s, or hold_s when that is
+ * longer: bad, "stale");
  * non-finite (bad, "nan"); outside the tag's min..max (bad, "out_of_range");
  * a single step larger than spike_limit (rejected once, the last value held,
  * uncertain, "spike": a second sample that confirms the jump is accepted, as a

@@ -142,8 +142,8 @@ row = open("replay/data/demo-steady.csv").readlines()[1].strip()
 ncol = len(hdr.split(","))
 bad = {
     "truncated": hdr + "\n" + row + "\n" + ",".join(row.split(",")[:5]) + "\n",
-    "text": hdr + "\n" + row + "\n" + row.replace("2026-03-02T06:00:00Z", "2026-03-02T06:00:02Z")
-    .replace(row.split(",")[3], "abc", 1) + "\n",
+    "bad time": hdr + "\n" + row + "\n" + row.replace("2026-03-02T06:00:00Z", "2026-03-02T06:0x:02Z")
+    + "\n",
     "unsorted": hdr + "\n" + row.replace("06:00:00Z", "06:00:10Z") + "\n" + row + "\n",
 }
 for name, text in bad.items():
@@ -155,7 +155,10 @@ for name, text in bad.items():
 cases = {
     "empty": ("", 2, "empty file"),
     "header only": (hdr + "\n", 2, "no data rows"),
-    "missing column": (hdr.replace(",C401_PDI", ",C401_PDX") + "\n" + row + "\n", 2, "C401_PDI"),
+    # A column the config needs but the file lacks is a warning (the run goes
+    # on, tests/cli/test_historian.py); a file with no tag column at all is an error.
+    "missing column": (hdr.replace(",C401_PDI", ",C401_PDX") + "\n" + row + "\n", 0, "C401_PDI"),
+    "no tag column": ("time,X\n2026-03-02T06:00:00Z,1\n", 2, "no column for any tag"),
 }
 for name, (text, want, msg) in cases.items():
     p = os.path.join(tmp, name.replace(" ", "_") + ".csv")

@@ -204,6 +204,43 @@ static void test_inventory_converts_each_flow_by_its_own_unit(void **state)
 	assert_true(fabs(inv - 0.335150) <= 1e-6 * 0.335150 + 1e-9);
 }
 
+/* A sample the historian marked bad raises the section's diagnostic with
+ * reason historian_status and the historian's text in the event; a tag
+ * without a data column gives reason missing_column. */
+static void test_historian_status_text_reaches_the_event(void **state)
+{
+	struct rig *r = *state;
+	run(r, 0, 30, -1, ALARM_STATE_UNACK);
+	int pdi = tag(r, "C401_PDI");
+	int diag = alarm_ix(r, "C401_DIAG");
+	r->status[pdi] = TAG_STATUS_BAD;
+	engine_tag_status_text(&r->eng, (unsigned)pdi, "I/O Timeout");
+	const struct alarm_event *hit = NULL;
+	for (int i = 0; i < 20 && hit == NULL; i++) {
+		engine_step(&r->eng, (30 + i) * 1000, r->values, r->status);
+		for (unsigned k = 0; k < engine_event_count(&r->eng); k++)
+			if ((int)r->eng.events[k].alarm_index == diag &&
+			    r->eng.events[k].state == ALARM_STATE_UNACK)
+				hit = &r->eng.events[k];
+	}
+	assert_non_null(hit);
+	assert_string_equal(hit->reason, ALARM_REASON_HISTORIAN_STATUS);
+	assert_string_equal(hit->status_text, "I/O Timeout");
+	/* The DP is not required for the flood estimate: uncertain, not bad. */
+	assert_int_equal(r->eng.sec[config_section_index(&r->cfg, "C401")].r.quality,
+			 FG_QUALITY_UNCERTAIN);
+	char json[1024];
+	assert_true(alarm_event_json(hit, &r->cfg.alarms[diag], "C401", "T", json,
+				     sizeof json) > 0);
+	assert_non_null(strstr(json, "\"reason\":\"historian_status\",\"status_text\":"
+				     "\"I/O Timeout\""));
+	/* No column: reason missing_column, and no status_text. */
+	r->status[pdi] = TAG_STATUS_NO_COLUMN;
+	engine_step(&r->eng, 60000, r->values, r->status);
+	assert_string_equal(r->eng.sec[config_section_index(&r->cfg, "C401")].diag_reason,
+			    ALARM_REASON_MISSING_COLUMN);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -218,6 +255,8 @@ int main(void)
 						rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_alarm_state_survives_a_restart, rig_setup,
 						rig_teardown),
+		cmocka_unit_test_setup_teardown(test_historian_status_text_reaches_the_event,
+						rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_inventory_converts_each_flow_by_its_own_unit,
 						rig_setup, rig_teardown),
 	};

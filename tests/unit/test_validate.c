@@ -162,10 +162,44 @@ static void test_first_order_lag_follows_its_time_constant(void **state)
 	assert_true(fabs(s.value - 100.0 * (1.0 - exp(-1.0))) < 1e-9);
 }
 
+static void test_historian_bad_and_missing_column_are_bad(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(1000), 10.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(2000), NAN, TAG_STATUS_BAD);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	assert_string_equal(s.reason, ALARM_REASON_HISTORIAN_STATUS);
+	validate_step(&s, S(3000), 10.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	validate_step(&s, S(4000), NAN, TAG_STATUS_NO_COLUMN);
+	assert_string_equal(s.reason, ALARM_REASON_MISSING_COLUMN);
+}
+
+/* hold_s: a tag recorded on change stays fresh for hold_s, not 3 periods. */
+static void test_hold_s_keeps_an_on_change_tag_fresh(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	c.hold_s = 600.0;
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(1000), 10.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(601000), NAN, TAG_STATUS_MISSING);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	validate_step(&s, S(601001), NAN, TAG_STATUS_MISSING);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	assert_string_equal(s.reason, ALARM_REASON_STALE);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_fresh_value_is_good_and_in_si),
+		cmocka_unit_test(test_historian_bad_and_missing_column_are_bad),
+		cmocka_unit_test(test_hold_s_keeps_an_on_change_tag_fresh),
 		cmocka_unit_test(test_comm_fail_is_bad_at_once),
 		cmocka_unit_test(test_missing_holds_until_stale),
 		cmocka_unit_test(test_nan_and_out_of_range_are_bad),
