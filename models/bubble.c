@@ -225,4 +225,5 @@ void bubble_eval(const struct section_geom *g, const struct fluid_state *f,
 		return;
 	}
 	r->v[RF_FLOOD_PCT] = 100.0 * level / g->bubble.overflow_height_m;
+	r->v[RF_CARRYOVER_MARGIN_M] = g->bubble.overflow_height_m - level;
 }

@@ -33,6 +33,18 @@ const struct result_field_desc result_fields[RF_COUNT] = {
 	[RF_GAS_HOLDUP_FRAC] = {"gas_holdup_frac", "-"},
 	[RF_GAS_HOLDUP_DP_FRAC] = {"gas_holdup_dp_frac", "-"},
 	[RF_EXPANDED_LEVEL_M] = {"expanded_level_m", "m"},
+	[RF_FLOW_NUMBER] = {"flow_number", "-"},
+	[RF_FROUDE_NUMBER] = {"froude_number", "-"},
+	[RF_DISPERSION_PCT] = {"dispersion_pct", "%"},
+	[RF_POWER_RATIO_MODEL] = {"power_ratio_model", "-"},
+	[RF_POWER_RATIO_MEASURED] = {"power_ratio_measured", "-"},
+	[RF_RISER_HOLDUP_FRAC] = {"riser_holdup_frac", "-"},
+	[RF_DOWNCOMER_HOLDUP_FRAC] = {"downcomer_holdup_frac", "-"},
+	[RF_CIRCULATION_VELOCITY] = {"circulation_velocity_ms", "m/s"},
+	[RF_CIRCULATION_PCT] = {"circulation_pct", "%"},
+	[RF_CARRY_UNDER_M3S] = {"carry_under_m3s", "m3/s"},
+	[RF_GAS_HOLDUP_COLUMN_FRAC] = {"gas_holdup_column_frac", "-"},
+	[RF_CARRYOVER_MARGIN_M] = {"carryover_margin_m", "m"},
 };
 
 static const char *const basis_names[FLOOD_BASIS_COUNT] = {
@@ -44,6 +56,8 @@ static const char *const basis_names[FLOOD_BASIS_COUNT] = {
 	[FLOOD_BASIS_LEVEL_SWELL] = "level_swell",
 	[FLOOD_BASIS_DP] = "dp",
 	[FLOOD_BASIS_DP_TREND] = "dp_trend",
+	[FLOOD_BASIS_IMPELLER] = "impeller",
+	[FLOOD_BASIS_DOWNCOMER_GAS] = "downcomer_gas",
 };
 
 static const char *const regime_names[BUBBLE_REGIME_COUNT] = {

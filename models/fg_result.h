@@ -47,6 +47,18 @@ enum result_field {
 	RF_GAS_HOLDUP_FRAC,    /* bubble: gas holdup from the correlation, - */
 	RF_GAS_HOLDUP_DP_FRAC, /* bubble: gas holdup from the tap DP, - */
 	RF_EXPANDED_LEVEL_M,   /* bubble: expanded (aerated) level, m */
+	RF_FLOW_NUMBER,        /* stirred: gas flow number Q_G/(N D^3) at the sparger, - */
+	RF_FROUDE_NUMBER,      /* stirred: N^2 D / g, - */
+	RF_DISPERSION_PCT,     /* stirred: Fl_G as % of the complete-dispersion flow number, % */
+	RF_POWER_RATIO_MODEL,  /* stirred: gassed/ungassed power, correlation, - */
+	RF_POWER_RATIO_MEASURED, /* stirred: gassed/ungassed power from the motor power, - */
+	RF_RISER_HOLDUP_FRAC,  /* loop: riser gas holdup from its DP, - */
+	RF_DOWNCOMER_HOLDUP_FRAC, /* loop: downcomer gas holdup from its DP, - */
+	RF_CIRCULATION_VELOCITY, /* loop: superficial riser liquid velocity (Chisti), m/s */
+	RF_CIRCULATION_PCT,    /* loop: circulation velocity as % of its normal value, % */
+	RF_CARRY_UNDER_M3S,    /* loop: gas volume flow carried down the downcomer, m3/s */
+	RF_GAS_HOLDUP_COLUMN_FRAC, /* packed-bubble: gas volume / column (bed) volume, - */
+	RF_CARRYOVER_MARGIN_M, /* bubble, packed-bubble: overflow height - expanded level, m */
 	RF_COUNT
 };
 
@@ -60,6 +72,8 @@ enum flood_basis {
 	FLOOD_BASIS_LEVEL_SWELL, /* bubble: expanded level against the overflow height */
 	FLOOD_BASIS_DP,          /* measured DP against the flood DP */
 	FLOOD_BASIS_DP_TREND,    /* load-response slope or DP noise */
+	FLOOD_BASIS_IMPELLER,    /* stirred: gas flow number against impeller flooding */
+	FLOOD_BASIS_DOWNCOMER_GAS, /* loop: downcomer holdup against riser holdup */
 	FLOOD_BASIS_COUNT
 };
 

@@ -1,6 +1,7 @@
 /*
  * section.c - the common part of a section evaluation and the dispatch to
- * the type evaluators (tray.c, packed.c, spray.c, bubble.c).
+ * the type evaluators (tray.c, packed.c, spray.c, bubble.c, packed_bubble.c,
+ * stirred.c, loop.c), and the table of which result fields each type has.
  *
  * Common fields use the tower cross-section as the area basis for every type,
  * so the numbers of different sections compare directly; the tray evaluator
@@ -92,6 +93,70 @@ static bool common_fields(const struct section_geom *g, const struct fluid_state
 	return true;
 }
 
+bool section_liquid_batch(enum section_type t)
+{
+	assert(t < SECTION_TYPE_COUNT);
+	return t == SECTION_BUBBLE || t == SECTION_PACKED_BUBBLE || t == SECTION_STIRRED ||
+	       t == SECTION_LOOP;
+}
+
+void section_point_clear(struct section_point *p)
+{
+	assert(p != NULL);
+	p->gas_kgs = NAN;
+	p->liquid_kgs = NAN;
+	p->dp_pa = NAN;
+	p->pressure_pa = NAN;
+	p->temperature_k = NAN;
+	p->level_m = NAN;
+	p->gas_density_kgm3 = NAN;
+	p->agitator_speed_rps = NAN;
+	p->motor_power_w = NAN;
+	p->dp_riser_pa = NAN;
+	p->dp_downcomer_pa = NAN;
+}
+
+/* Which result fields each type can fill (the type evaluators, section.c's
+ * common fields and the engine's soft sensors). One bit per result field. */
+#define B(f) (1ull << (f))
+_Static_assert(RF_COUNT <= 64, "the per-type field masks are 64-bit");
+static const unsigned long long common_mask =
+	B(RF_FLOOD_PCT) | B(RF_FLOOD_INDEX) | B(RF_GAS_DENSITY) | B(RF_GAS_VELOCITY) |
+	B(RF_FLOW_PARAM) | B(RF_CAP_FACTOR) | B(RF_F_FACTOR) | B(RF_LIQUID_HOLDUP_FRAC) |
+	B(RF_LIQUID_HOLDUP_M3) | B(RF_INVENTORY_M3);
+/* Fields that follow the section's own `dp` signal (the soft sensors). */
+static const unsigned long long dp_mask = B(RF_DP_PA) | B(RF_DP_SLOPE) | B(RF_DP_NOISE_RATIO);
+static const unsigned long long type_mask[SECTION_TYPE_COUNT] = {
+	[SECTION_TRAY] = B(RF_DP_FLOOD_PCT) | B(RF_DP_MODEL_PA) | B(RF_DP_CORRECTION) |
+			 B(RF_JET_FLOOD_PCT) | B(RF_DC_BACKUP_PCT) | B(RF_WEEP_PCT) |
+			 B(RF_CLEAR_LIQUID_M),
+	[SECTION_PACKED] = B(RF_DP_FLOOD_PCT) | B(RF_DP_MODEL_PA) | B(RF_DP_CORRECTION) |
+			   B(RF_LOADING_PCT),
+	[SECTION_SPRAY] = B(RF_CARRYOVER_FRAC),
+	[SECTION_BUBBLE] = B(RF_GAS_HOLDUP_FRAC) | B(RF_GAS_HOLDUP_DP_FRAC) |
+			   B(RF_EXPANDED_LEVEL_M) | B(RF_CARRYOVER_MARGIN_M),
+	[SECTION_PACKED_BUBBLE] = B(RF_GAS_HOLDUP_FRAC) | B(RF_GAS_HOLDUP_DP_FRAC) |
+				  B(RF_GAS_HOLDUP_COLUMN_FRAC) | B(RF_EXPANDED_LEVEL_M) |
+				  B(RF_CARRYOVER_MARGIN_M),
+	[SECTION_STIRRED] = B(RF_FLOW_NUMBER) | B(RF_FROUDE_NUMBER) | B(RF_DISPERSION_PCT) |
+			    B(RF_POWER_RATIO_MODEL) | B(RF_POWER_RATIO_MEASURED) |
+			    B(RF_GAS_HOLDUP_FRAC),
+	[SECTION_LOOP] = B(RF_RISER_HOLDUP_FRAC) | B(RF_DOWNCOMER_HOLDUP_FRAC) |
+			 B(RF_CIRCULATION_VELOCITY) | B(RF_CIRCULATION_PCT) |
+			 B(RF_CARRY_UNDER_M3S),
+};
+
+bool section_type_has_field(enum section_type t, int field)
+{
+	assert(t < SECTION_TYPE_COUNT);
+	if (field < 0 || field >= RF_COUNT)
+		return false;
+	/* A loop has no single `dp` signal: its DPs are riser and downcomer. */
+	unsigned long long m = common_mask | type_mask[t] | (t == SECTION_LOOP ? 0 : dp_mask);
+	return (m & B(field)) != 0;
+}
+#undef B
+
 void section_eval(const struct section_geom *g, const struct section_props *props,
 		  const struct section_point *p, struct section_result *r)
 {
@@ -111,8 +176,9 @@ void section_eval(const struct section_geom *g, const struct section_props *prop
 	section_fluids(props, p->temperature_k, rho_g, &f, &r->extrap);
 
 	struct section_point q = *p;
-	/* A bubble column often has no liquid through-flow (batch liquid). */
-	if (g->type == SECTION_BUBBLE && !isfinite(q.liquid_kgs))
+	/* Bubble columns, stirred vessels and loops often have no liquid
+	 * through-flow (batch liquid). */
+	if (section_liquid_batch(g->type) && !isfinite(q.liquid_kgs))
 		q.liquid_kgs = 0.0;
 	if (!common_fields(g, &f, &q, r) || !isfinite(q.liquid_kgs) || q.liquid_kgs < 0.0) {
 		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
@@ -123,6 +189,9 @@ void section_eval(const struct section_geom *g, const struct section_props *prop
 	case SECTION_PACKED: packed_eval(g, &f, &q, r); break;
 	case SECTION_SPRAY: spray_eval(g, &f, &q, r); break;
 	case SECTION_BUBBLE: bubble_eval(g, &f, &q, r); break;
+	case SECTION_PACKED_BUBBLE: packed_bubble_eval(g, &f, &q, r); break;
+	case SECTION_STIRRED: stirred_eval(g, &f, &q, r); break;
+	case SECTION_LOOP: loop_eval(g, &f, &q, r); break;
 	case SECTION_TYPE_COUNT: assert(0); break;
 	}
 	r->model_basis = r->basis;

@@ -5,7 +5,8 @@
  * use. It resolves properties at the current temperature, computes the
  * fields common to every type (gas density, superficial velocity, flow
  * parameter, capacity factor, F-factor), then hands over to the evaluator of
- * the section's type (tray_eval, packed_eval, spray_eval, bubble_eval), each
+ * the section's type (tray_eval, packed_eval, spray_eval, bubble_eval,
+ * packed_bubble_eval, stirred_eval, loop_eval), each
  * in its own file. Everything is SI. No I/O, no allocation, no clock.
  *
  * A NAN in struct section_point means "no such signal". Type evaluators must
@@ -25,6 +26,9 @@ enum section_type {
 	SECTION_PACKED,
 	SECTION_SPRAY,
 	SECTION_BUBBLE,
+	SECTION_PACKED_BUBBLE,
+	SECTION_STIRRED,
+	SECTION_LOOP,
 	SECTION_TYPE_COUNT
 };
 
@@ -32,6 +36,7 @@ enum tray_kind { TRAY_SIEVE, TRAY_VALVE, TRAY_BUBBLE_CAP };
 enum tray_flood_method { TRAY_FLOOD_FAIR, TRAY_FLOOD_KISTER_HAAS };
 enum packed_flood_method { PACKED_FLOOD_STICHLMAIR, PACKED_FLOOD_BILLET_SCHULTES };
 enum bubble_holdup_method { BUBBLE_HOLDUP_AKITA_YOSHIDA, BUBBLE_HOLDUP_HUGHMARK };
+enum impeller_type { IMPELLER_DISC_TURBINE, IMPELLER_HOLLOW_BLADE, IMPELLER_TYPE_COUNT };
 
 /* A property constant, or a short table against temperature (linear
  * interpolation; outside the table the end value is held and flagged). */
@@ -111,6 +116,38 @@ struct bubble_geom {
 	enum bubble_holdup_method holdup_method;
 };
 
+/* Packed bubble column: the bubble_geom keys (taps, clear height, overflow,
+ * holdup method) plus the bed. */
+struct packed_bubble_geom {
+	double void_frac;           /* packing voidage phi, free volume / bed volume, - */
+	double bed_height_m;        /* packed bed height above the sparger (NAN: whole column) */
+	double impulse_density_kgm3;/* density of the fill of wet impulse lines, or NAN when
+				       the dp signal is already tap-to-tap (dry or compensated) */
+};
+
+/* Gassed stirred vessel. The vessel diameter T is section_geom.diameter_m. */
+struct stirred_geom {
+	double impeller_diameter_m; /* D */
+	enum impeller_type impeller;
+	double power_number;        /* ungassed turbulent power number Po (NAN: type default) */
+	double impeller_clearance_m;/* impeller above the vessel bottom (sparger just below) */
+	double drive_loss_w;        /* motor power not reaching the liquid: fixed losses, W */
+	double drive_efficiency;    /* further proportional losses (gearbox, motor), 0..1 */
+	double clear_liquid_height_m; /* ungassed liquid height when no level signal */
+};
+
+/* Natural-circulation loop (airlift or deep shaft): a gassed riser and a less
+ * gassed downcomer joined at the top and the bottom. */
+struct loop_geom {
+	double riser_area_m2;
+	double downcomer_area_m2;
+	double height_m;            /* dispersion height of riser and downcomer */
+	double bottom_clearance_m;  /* gap under the riser (draft tube) at the bottom */
+	double tap_spacing_m;       /* vertical span of each DP cell (NAN: height_m) */
+	double top_loss;            /* K_T, top (gas separator) loss coefficient, - */
+	double circulation_normal_ms; /* normal circulation velocity (NAN: learned) */
+};
+
 struct section_geom {
 	enum section_type type;
 	double diameter_m;          /* tower inside diameter */
@@ -118,6 +155,9 @@ struct section_geom {
 	struct packed_geom packed;
 	struct spray_geom spray;
 	struct bubble_geom bubble;
+	struct packed_bubble_geom pbub;
+	struct stirred_geom stirred;
+	struct loop_geom loop;
 };
 
 /* One operating point, SI. NAN = signal not available. */
@@ -129,7 +169,21 @@ struct section_point {
 	double temperature_k;
 	double level_m;             /* bubble: clear liquid height; others: sump level (engine) */
 	double gas_density_kgm3;    /* measured density; overrides P,T when finite */
+	double agitator_speed_rps;  /* stirred: impeller speed, rev/s */
+	double motor_power_w;       /* stirred: agitator motor power, W */
+	double dp_riser_pa;         /* loop: DP over the riser taps (lower - upper) */
+	double dp_downcomer_pa;     /* loop: DP over the downcomer taps (lower - upper) */
 };
+
+/* Types whose liquid may be batch (no liquid flow signal means zero). */
+bool section_liquid_batch(enum section_type t);
+
+/* A section_point with every signal NAN. */
+void section_point_clear(struct section_point *p);
+
+/* Does result field f ever apply to a section of type t? (The per-type field
+ * list: `check`, results.csv and the report use it.) */
+bool section_type_has_field(enum section_type t, int field);
 
 /* Evaluates one operating point. Always fills r (result_clear first); never
  * fails: missing or impossible inputs come back as quality BAD with the
@@ -168,5 +222,11 @@ void spray_eval(const struct section_geom *g, const struct fluid_state *f,
 		const struct section_point *p, struct section_result *r);
 void bubble_eval(const struct section_geom *g, const struct fluid_state *f,
 		 const struct section_point *p, struct section_result *r);
+void packed_bubble_eval(const struct section_geom *g, const struct fluid_state *f,
+			const struct section_point *p, struct section_result *r);
+void stirred_eval(const struct section_geom *g, const struct fluid_state *f,
+		  const struct section_point *p, struct section_result *r);
+void loop_eval(const struct section_geom *g, const struct fluid_state *f,
+	       const struct section_point *p, struct section_result *r);
 
 #endif

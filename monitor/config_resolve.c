@@ -357,6 +357,9 @@ static void resolve_sections(struct config_ctx *c)
 				config_error(c, s->line, "[section.%s]: clear_liquid_height_m must be "
 							 "below overflow_height_m", s->name);
 			break;
+		case SECTION_PACKED_BUBBLE:
+		case SECTION_STIRRED:
+		case SECTION_LOOP: break;
 		case SECTION_TYPE_COUNT: assert(0);
 		}
 	}
