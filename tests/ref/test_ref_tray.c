@@ -279,7 +279,7 @@ static void test_section_jet_flood_hand_evaluation(void **state)
 	g.tray.deck_thickness_m = 0.003;
 	g.tray.downcomer_clearance_m = 0.04;
 	struct fluid_state f = {2.5, 800.0, 1e-5, 3e-4, 0.020};
-	struct section_point p = {4.0, 6.0, NAN, 2e5, 350.0, NAN, NAN};
+	struct section_point p = {4.0, 6.0, NAN, 2e5, 350.0, NAN, NAN, NAN, NAN, NAN, NAN};
 	struct section_result r;
 	result_clear(&r);
 	tray_eval(&g, &f, &p, &r);

@@ -49,7 +49,7 @@ static void eval_at(const struct section_geom *g, const struct fluid_state *f, d
 {
 	result_clear(r);
 	r->v[RF_GAS_VELOCITY] = ug;
-	struct section_point p = {NAN, 0.0, dp_pa, 101325.0, 293.15, level_m, NAN};
+	struct section_point p = {NAN, 0.0, dp_pa, 101325.0, 293.15, level_m, NAN, NAN, NAN, NAN, NAN};
 	bubble_eval(g, f, &p, r);
 }
 

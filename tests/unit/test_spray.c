@@ -43,7 +43,7 @@ static struct fluid_state air_water(void)
 
 static struct section_point point(double liquid_kgs)
 {
-	struct section_point p = {NAN, liquid_kgs, NAN, 101325.0, 293.15, NAN, NAN};
+	struct section_point p = {NAN, liquid_kgs, NAN, 101325.0, 293.15, NAN, NAN, NAN, NAN, NAN, NAN};
 	return p;
 }
 
