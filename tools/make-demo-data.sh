@@ -28,4 +28,16 @@ for scenario in steady flood weep frozen gap; do
 	"$FG_BIN" simulate -c "$CONFIG" --scenario "$scenario" --seed "$SEED" \
 		--period-s "$PERIOD_S" --out "$OUT/demo-$scenario.csv"
 done
-ls -l "$OUT"/demo-*.csv
+# The historian examples ("Bringing your plant's data" in the README): one
+# frozen-DP run across the autumn clock change, with two historian status
+# texts, written as a wide export in local time and as a long export, with
+# the config lines a site adds (replay/data/historian.ini).
+"$FG_BIN" simulate -c "$CONFIG" --scenario frozen --seed "$SEED" --period-s 10 --hours 3 \
+	--start 2026-10-24T23:30:00Z --out "$OUT/.historian-src.csv"
+python3 tools/historian-forms.py --config "$CONFIG" --in "$OUT/.historian-src.csv" \
+	--tz Europe/Berlin --out-wide "$OUT/historian-wide-local.csv" \
+	--out-long "$OUT/historian-long.csv" --out-config "$OUT/historian.ini" \
+	--bad "C401_PDI,2026-10-25T00:40:00Z,2026-10-25T00:42:00Z,Bad Input" \
+	--bad "C402_FI_GAS,2026-10-25T02:00:00Z,2026-10-25T02:00:40Z,I/O Timeout"
+rm -f "$OUT/.historian-src.csv"
+ls -l "$OUT"/demo-*.csv "$OUT"/historian*
