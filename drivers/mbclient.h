@@ -16,8 +16,11 @@
  *   - any other failure (timeout, reset, bad or stale reply, CRC) marks every
  *     point bad at once, closes the link (a late TCP reply would otherwise be
  *     taken as the answer to the next request), and schedules a reconnect with
- *     capped exponential back-off: the delays after successive failures are
- *     0.5, 1, 2, 4, 8, 16, 30, 30, ... s, back to 0.5 s after a good poll;
+ *     a short, capped back-off: the delays after successive failures are
+ *     0.5, 1, 1, 1, ... s, back to 0.5 s after a good poll. The cap is low
+ *     on purpose: a peer that comes back is read again within about a
+ *     second (a refused connect costs microseconds; an unreachable one at
+ *     most timeout_s, which the daemon already budgets per period);
  *   - until the next attempt is due, poll returns at once with every point bad.
  * The link is always closed before it is connected again, and libmodbus's own
  * error recovery stays off (its LINK mode reconnects inside a read and blocks
@@ -70,7 +73,7 @@ typedef void mbclient_log_fn(void *user, enum mbclient_log_level level, const ch
 
 /* Reconnect back-off: first delay and cap, ms (see the top comment). */
 #define MBCLIENT_BACKOFF_FIRST_MS 500
-#define MBCLIENT_BACKOFF_MAX_MS 30000
+#define MBCLIENT_BACKOFF_MAX_MS 1000
 
 /* Response timeout limits, s: below 10 ms even a LAN gateway misses; above
  * 10 s one poll would outlast any sensible period. */

@@ -144,6 +144,14 @@ static void on_connect_failure(void *context, MQTTAsync_failureData *resp)
 	snprintf(m->connect_fail_msg, sizeof m->connect_fail_msg, "%s",
 		 resp != NULL && resp->message != NULL ? resp->message : "");
 	pthread_mutex_unlock(&m->lock);
+	atomic_store(&m->connecting, 0);
+}
+
+static void on_connect_success(void *context, MQTTAsync_successData *resp)
+{
+	struct mqttlink *m = context;
+	(void)resp;
+	atomic_store(&m->connecting, 0);
 }
 
 static void on_subscribe_failure(void *context, MQTTAsync_failureData *resp)
@@ -438,23 +446,27 @@ static int start_connect(struct mqttlink *m)
 	MQTTAsync_connectOptions o = MQTTAsync_connectOptions_initializer;
 	o.MQTTVersion = MQTTVERSION_3_1_1;
 	o.keepAliveInterval = (int)m->cfg.keepalive_s;
-	o.cleansession = 0;
-	o.automaticReconnect = 1;
-	o.minRetryInterval = (int)(m->cfg.retry_min_s != 0 ? m->cfg.retry_min_s
-							  : MQTTLINK_RETRY_MIN_DEFAULT_S);
-	o.maxRetryInterval = (int)(m->cfg.retry_max_s != 0 ? m->cfg.retry_max_s
-							  : MQTTLINK_RETRY_MAX_DEFAULT_S);
-	if (o.maxRetryInterval < o.minRetryInterval)
-		o.maxRetryInterval = o.minRetryInterval;
+	/* A clean session: the broker keeps nothing for us while we are away,
+	 * so commands sent then are not queued and carried out on our return
+	 * (stale by then). Our own precious queue, not the session, resends
+	 * alarm messages that were in flight at a loss. */
+	o.cleansession = 1;
+	/* Reconnects are ours (probe(), from mqttlink_poll): paho's own timer
+	 * is checked about once a second and only after a full interval, which
+	 * put the link back 2 to 4 s after the broker. */
+	o.automaticReconnect = 0;
 	o.connectTimeout = 10;
 	o.will = &will; /* paho copies the will and the credentials at connect */
 	o.username = m->cfg.username[0] != '\0' ? m->cfg.username : NULL;
 	o.password = m->cfg.password_file[0] != '\0' ? m->password : NULL;
 	o.ssl = m->tls ? &ssl : NULL;
+	o.onSuccess = on_connect_success;
 	o.onFailure = on_connect_failure;
 	o.context = m;
+	atomic_store(&m->connecting, 1);
 	int rc = MQTTAsync_connect(m->client, &o);
 	if (rc != MQTTASYNC_SUCCESS) {
+		atomic_store(&m->connecting, 0);
 		say(m, MQTTLINK_LOG_ERROR, "cannot start connecting: %s (%d)", MQTTAsync_strerror(rc),
 		    rc);
 		return rc == MQTTASYNC_BAD_STRUCTURE || rc == MQTTASYNC_NULL_PARAMETER ? -EINVAL : -EIO;
@@ -508,6 +520,14 @@ int mqttlink_open(struct mqttlink *m, const struct mqttlink_cfg *cfg)
 		rc = -ENOMEM;
 		goto out_free;
 	}
+	m->retry_first_ms = m->cfg.retry_min_s != 0 ? 1000 * (int64_t)m->cfg.retry_min_s
+						    : MQTTLINK_RETRY_FIRST_DEFAULT_MS;
+	m->retry_max_ms = m->cfg.retry_max_s != 0 ? 1000 * (int64_t)m->cfg.retry_max_s
+						  : MQTTLINK_RETRY_MAX_DEFAULT_MS;
+	if (m->retry_max_ms < m->retry_first_ms)
+		m->retry_max_ms = m->retry_first_ms;
+	m->backoff_ms = m->retry_first_ms;
+	m->next_probe_mono_ms = INT64_MIN;
 	rc = create_client(m);
 	if (rc == 0)
 		rc = start_connect(m);
@@ -566,11 +586,55 @@ static void say_offline(struct mqttlink *m)
 		    MQTTAsync_strerror(rc), rc);
 }
 
+static int64_t mono_now_ms(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
+}
+
+static void probe(struct mqttlink *m, bool up, int64_t now_mono_ms);
+
+/* Hands every queued precious message to paho and waits, bounded, until the
+ * broker has acknowledged them all (or the link goes). Returns those left. */
+static unsigned flush_before_close(struct mqttlink *m)
+{
+	const struct timespec step = {.tv_sec = 0, .tv_nsec = 10 * 1000 * 1000};
+	unsigned left = 0;
+	for (int waited = 0; waited <= MQTTLINK_CLOSE_WAIT_MS; waited += 10) {
+		bool up = MQTTAsync_isConnected(m->client) != 0;
+		pthread_mutex_lock(&m->lock);
+		if (up)
+			flush_queue(m);
+		reclaim(m);
+		left = m->queue_count;
+		pthread_mutex_unlock(&m->lock);
+		if (left == 0 || !up)
+			break;
+		nanosleep(&step, NULL);
+	}
+	return left;
+}
+
 void mqttlink_close(struct mqttlink *m)
 {
 	if (m == NULL || !m->open)
 		return;
+	pthread_mutex_lock(&m->lock);
+	reclaim(m);
+	bool pending = m->queue_count > 0;
+	pthread_mutex_unlock(&m->lock);
+	/* Alarm messages are waiting and the broker is away (or just back and
+	 * paho not yet reconnected): give it a bounded moment. */
+	const struct timespec step = {.tv_sec = 0, .tv_nsec = 10 * 1000 * 1000};
+	for (int waited = 0; pending && waited < MQTTLINK_CLOSE_CONNECT_WAIT_MS &&
+			     !MQTTAsync_isConnected(m->client); waited += 10) {
+		probe(m, false, mono_now_ms());
+		nanosleep(&step, NULL);
+	}
 	if (MQTTAsync_isConnected(m->client)) {
+		/* Alarm messages first: "offline" must be the last word. */
+		flush_before_close(m);
 		say_offline(m);
 		atomic_int done = 0;
 		MQTTAsync_disconnectOptions d = MQTTAsync_disconnectOptions_initializer;
@@ -729,6 +793,25 @@ static void log_command_drops(struct mqttlink *m)
 	}
 }
 
+/* While down and no attempt is under way: a new connect, at once after a
+ * loss, then after a back-off from retry_min to retry_max (ms below a second
+ * by default: 250, 500, 500, ...), reset by a good connection. A
+ * refused connect costs microseconds; one to a silent host ends by paho's
+ * connect timeout before the next is started. */
+static void probe(struct mqttlink *m, bool up, int64_t now_mono_ms)
+{
+	if (up) {
+		m->backoff_ms = m->retry_first_ms;
+		m->next_probe_mono_ms = now_mono_ms; /* a loss is retried at once */
+		return;
+	}
+	if (atomic_load(&m->connecting) != 0 || now_mono_ms < m->next_probe_mono_ms)
+		return;
+	m->next_probe_mono_ms = now_mono_ms + m->backoff_ms;
+	m->backoff_ms = m->backoff_ms * 2 > m->retry_max_ms ? m->retry_max_ms : m->backoff_ms * 2;
+	(void)start_connect(m); /* a failure to start is logged and retried */
+}
+
 int mqttlink_poll(struct mqttlink *m, int64_t now_mono_ms)
 {
 	assert(m != NULL);
@@ -736,6 +819,7 @@ int mqttlink_poll(struct mqttlink *m, int64_t now_mono_ms)
 		return -ENOTCONN;
 	bool up = MQTTAsync_isConnected(m->client) != 0;
 	track_connection(m, up, now_mono_ms);
+	probe(m, up, now_mono_ms);
 	int sub = atomic_exchange(&m->sub_fail_code, 0);
 	if (sub != 0)
 		say(m, MQTTLINK_LOG_WARNING, "subscribing to %s failed (%d): commands will not arrive "
@@ -747,6 +831,12 @@ int mqttlink_poll(struct mqttlink *m, int64_t now_mono_ms)
 	}
 	log_command_drops(m);
 	return up ? 0 : -ENOTCONN;
+}
+
+unsigned mqttlink_connect_count(const struct mqttlink *m)
+{
+	assert(m != NULL);
+	return m->open ? atomic_load(&((struct mqttlink *)m)->connect_events) : 0;
 }
 
 bool mqttlink_connected(const struct mqttlink *m)

@@ -14,10 +14,14 @@
  *   PREFIX/SUFFIX     whatever mqttlink_publish() is given.
  *
  * Session. MQTT 3.1.1 (set explicitly: with paho's default the first retry
- * after a loss used 3.1), cleansession = 0 with the configured, stable
- * client id, so a QoS 1 message in flight at a loss is resent by paho after
- * the reconnect; paho reconnects by itself with a retry interval doubling
- * from retry_min_s to retry_max_s. Persistence is NONE (memory only): a
+ * after a loss used 3.1), cleansession = 1: the broker queues nothing for us
+ * while we are away, so commands sent meanwhile are never carried out late;
+ * a precious message in flight at a loss fails in paho and our own queue
+ * resends it. Reconnects are driven by mqttlink_poll() (paho's automatic
+ * reconnect checks its timer about once a second and only after a full
+ * interval): a loss is retried at once, then with a back-off doubling from
+ * retry_min_s to retry_max_s (default 0.25 s to 0.5 s) and reset by a good
+ * connection, so the link is back within about a second of the broker. Persistence is NONE (memory only): a
  * restart loses what was buffered, and nothing is ever written into the
  * current directory. A broker that is down at open is not an error: the
  * link keeps trying.
@@ -52,8 +56,10 @@
  *      stats.precious_overflowed and logs a warning (the first refusal of
  *      each run, then every MQTTLINK_LOG_EVERY-th, and the total when the
  *      queue has room again). Nothing is dropped silently.
- * Messages still queued at mqttlink_close() are lost with the process; the
- * close logs how many.
+ * mqttlink_close() first hands the queue to paho and waits, bounded by
+ * MQTTLINK_CLOSE_WAIT_MS, for the broker to acknowledge it all, then says
+ * "offline"; messages still queued after that are lost with the process,
+ * and the close logs how many.
  *
  * Threads. All mqttlink_* functions belong to one thread (the daemon's main
  * loop). paho runs its callbacks on its own threads; they only copy data
@@ -105,9 +111,12 @@ typedef void mqttlink_log_fn(void *user, enum mqttlink_log_level level, const ch
 #define MQTTLINK_TOPIC_MAX (FG_TEXT_MAX + MQTTLINK_SUFFIX_MAX)
 
 /* Commands: slots in the ring and the largest payload, bytes without the NUL.
- * Operators send a few commands a minute; 16 is plenty between two polls. A
- * command is under 200 bytes; anything at or above the limit is dropped. */
-#define MQTTLINK_CMD_SLOTS 16
+ * Operators send a few commands a minute; a script acknowledging a flood of
+ * alarms may send dozens at once: 64 between two polls (64 KiB). A command
+ * is under 200 bytes; anything at or above the limit is dropped. Every drop
+ * is counted by kind, and the daemon replies to it (without the id, which
+ * was not kept) and logs it. */
+#define MQTTLINK_CMD_SLOTS 64
 #define MQTTLINK_CMD_MAX 1024
 
 /* Bounds of the config. keepalive: MQTT 3.1.1 allows up to 65535 s; an hour
@@ -115,14 +124,19 @@ typedef void mqttlink_log_fn(void *user, enum mqttlink_log_level level, const ch
 #define MQTTLINK_KEEPALIVE_MIN_S 1
 #define MQTTLINK_KEEPALIVE_MAX_S 3600
 #define MQTTLINK_BUFFER_MAX 100000
-/* Reconnect intervals when the config gives 0 (paho doubles between them). */
-#define MQTTLINK_RETRY_MIN_DEFAULT_S 1
-#define MQTTLINK_RETRY_MAX_DEFAULT_S 30
+/* Reconnect back-off when the config gives 0, ms: 250, 500, 500, ... (a
+ * refused connect costs microseconds; back within about half a second of
+ * the broker when mqttlink_poll() is called often enough). */
+#define MQTTLINK_RETRY_FIRST_DEFAULT_MS 250
+#define MQTTLINK_RETRY_MAX_DEFAULT_MS 500
 #define MQTTLINK_RETRY_MAX_S 3600
 
 /* How long mqttlink_close() waits for "offline" to be acknowledged, and then
  * for the disconnect, ms (each bounded; the daemon is shutting down). */
 #define MQTTLINK_CLOSE_WAIT_MS 2000
+/* How long mqttlink_close() waits for a connection when alarm messages are
+ * still queued and the broker is away (a reconnect takes about 1.3 s), ms. */
+#define MQTTLINK_CLOSE_CONNECT_WAIT_MS 3000
 
 /* Repeated warnings (drops, overflow) are logged first and every Nth. */
 #define MQTTLINK_LOG_EVERY 100
@@ -212,12 +226,16 @@ struct mqttlink {
 	atomic_uint connect_events;     /* bumped by paho's connected callback */
 	atomic_uint lost_events;        /* bumped by paho's connectionLost callback */
 	atomic_int sub_fail_code;       /* subscribe failure, 0 = none */
+	atomic_int connecting;          /* a connect attempt is under way */
 
 	/* Main thread only. */
 	bool was_connected;
 	bool ever_connected;
 	unsigned seen_lost_events;
 	int64_t lost_since_mono_ms;     /* -1: not known */
+	int64_t next_probe_mono_ms;     /* next connect attempt while down */
+	int64_t backoff_ms;             /* delay after the next failed attempt */
+	int64_t retry_first_ms, retry_max_ms;
 	int logged_fail_code;
 	bool dropping;                  /* inside a run of state drops */
 	uint64_t drop_run;
@@ -262,6 +280,11 @@ int mqttlink_publish(struct mqttlink *m, const char *topic_suffix, const char *p
  * (or not open).
  */
 int mqttlink_poll(struct mqttlink *m, int64_t now_mono_ms);
+
+/* Connects completed since open (first and automatic ones), counted by
+ * paho's connected callback: a change tells the caller to republish its
+ * retained state. 0 when not open. */
+unsigned mqttlink_connect_count(const struct mqttlink *m);
 
 /* Whether paho has a connection now. False when not open. */
 bool mqttlink_connected(const struct mqttlink *m);

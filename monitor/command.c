@@ -20,6 +20,8 @@
 
 #include <cJSON.h>
 
+#include "timefmt.h"
+
 static const char *const op_names[COMMAND_OP_COUNT] = {
 	[COMMAND_OP_NONE] = "",
 	[COMMAND_OP_ACK] = "ack",
@@ -68,7 +70,7 @@ static bool has_nul(const char *p, size_t len)
 /* Refuses a member given more than once (cJSON keeps both and returns the first). */
 static bool has_duplicate(const cJSON *obj)
 {
-	static const char *const keys[] = {"op", "alarm", "duration_s", "id"};
+	static const char *const keys[] = {"op", "alarm", "duration_s", "id", "t"};
 	for (size_t k = 0; k < sizeof keys / sizeof keys[0]; k++) {
 		unsigned seen = 0;
 		for (const cJSON *it = obj->child; it != NULL; it = it->next)
@@ -152,6 +154,45 @@ static const char *take_duration(const cJSON *d, struct command *out)
 	return NULL;
 }
 
+/* The sender's time of the command: an ISO 8601 string (UTC, or with an
+ * offset that is applied). */
+static const char *take_time(const cJSON *t, struct command *out)
+{
+	if (t == NULL)
+		return NULL;
+	if (!cJSON_IsString(t) || t->valuestring == NULL)
+		return "t must be an ISO 8601 time string";
+	const char *s = t->valuestring;
+	/* timefmt also reads epoch seconds; a command's t is ISO 8601 only. */
+	if (strchr(s, '-') == NULL || strchr(s, ':') == NULL ||
+	    timefmt_parse(s, strlen(s), &out->t_ms) != 0)
+		return "t is not an ISO 8601 time (e.g. 2026-03-04T05:06:07Z)";
+	out->has_t = true;
+	return NULL;
+}
+
+int command_check_age(const struct command *c, int64_t now_ms, double max_age_s, char *err,
+		      size_t err_size)
+{
+	assert(c != NULL);
+	if (!c->has_t)
+		return 0;
+	double age_s = (double)(now_ms - c->t_ms) / 1000.0;
+	if (age_s > max_age_s) {
+		if (err != NULL && err_size > 0)
+			snprintf(err, err_size, "too old: sent %.0f s ago, cmd_max_age_s is %.0f s",
+				 age_s, max_age_s);
+		return -ETIMEDOUT;
+	}
+	if (-age_s > max_age_s) {
+		if (err != NULL && err_size > 0)
+			snprintf(err, err_size, "t is %.0f s in the future: check the sender's clock",
+				 -age_s);
+		return -ETIMEDOUT;
+	}
+	return 0;
+}
+
 /* Reads the members of a parsed object into out; returns the reason or NULL. */
 static const char *take_members(const cJSON *root, struct command *out)
 {
@@ -165,6 +206,8 @@ static const char *take_members(const cJSON *root, struct command *out)
 	why = take_id(cJSON_GetObjectItemCaseSensitive(root, "id"), out);
 	if (why == NULL)
 		why = take_op(cJSON_GetObjectItemCaseSensitive(root, "op"), out);
+	if (why == NULL)
+		why = take_time(cJSON_GetObjectItemCaseSensitive(root, "t"), out);
 	if (why == NULL)
 		why = take_alarm(cJSON_GetObjectItemCaseSensitive(root, "alarm"), out);
 	if (why == NULL && out->op == COMMAND_OP_SHELVE)
@@ -301,4 +344,35 @@ int command_reply_json(const struct command *c, bool ok, const char *error,
 	}
 	assert(o.len < size);
 	return (int)o.len;
+}
+
+size_t command_log_escape(const char *payload, size_t len, char *out, size_t out_size)
+{
+	assert(out != NULL);
+	assert(out_size >= 8);
+	assert(payload != NULL || len == 0);
+	static const char hex[] = "0123456789abcdef";
+	size_t o = 0;
+	for (size_t i = 0; i < len; i++) {
+		unsigned char ch = (unsigned char)payload[i];
+		bool plain = ch >= 0x20 && ch < 0x7f && ch != '\\';
+		size_t need = plain ? 1 : (ch == '\\' ? 2 : 4);
+		if (o + need + 4 > out_size) { /* room for "..." and the NUL */
+			memcpy(out + o, "...", 4);
+			return o + 3;
+		}
+		if (plain) {
+			out[o++] = (char)ch;
+		} else if (ch == '\\') {
+			out[o++] = '\\';
+			out[o++] = '\\';
+		} else {
+			out[o++] = '\\';
+			out[o++] = 'x';
+			out[o++] = hex[ch >> 4];
+			out[o++] = hex[ch & 15];
+		}
+	}
+	out[o] = '\0';
+	return o;
 }

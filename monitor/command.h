@@ -6,8 +6,10 @@
  *   {"op":"shelve",   "alarm":"NAME", "duration_s":N}     0 < N <= 86400
  *   {"op":"unshelve", "alarm":"NAME"}
  * with an optional "id" (a string or a number) that the reply echoes, so a
- * client that sends several commands can match the answers. Members other
- * than op, alarm, duration_s and id are ignored (room for later additions);
+ * client that sends several commands can match the answers, and an optional
+ * "t" (ISO 8601, UTC or with an offset): when the sender sent it. A command
+ * whose t is older than [mqtt] cmd_max_age_s is refused (command_check_age). Members other
+ * than op, alarm, duration_s, id and t are ignored (room for later additions);
  * a member given twice is refused, because cJSON would silently use the
  * first and the sender may have meant the second.
  *
@@ -26,6 +28,7 @@
 
 #include <stdbool.h>
 #include <stddef.h>
+#include <stdint.h>
 
 #include "fg_limits.h"
 
@@ -61,6 +64,8 @@ struct command {
 					0 for other ops */
 	enum command_id_kind id_kind;
 	char id[COMMAND_ID_MAX];     /* see enum command_id_kind; "" when none */
+	bool has_t;                  /* "t" given */
+	int64_t t_ms;                /* "t": when the sender sent it, ms since the epoch (UTC) */
 };
 
 /*
@@ -82,6 +87,14 @@ int command_parse(const char *payload, size_t len, struct command *out, char *er
 		  size_t err_size);
 
 /*
+ * Refuses a command older than max_age_s at now_ms (or as far in the
+ * future: a sender's clock that wrong cannot date anything). A command
+ * without t passes. Returns 0 or -ETIMEDOUT with the reason in err.
+ */
+int command_check_age(const struct command *c, int64_t now_ms, double max_age_s, char *err,
+		      size_t err_size);
+
+/*
  * Writes the reply to c into buf (NUL-terminated). c may be NULL (nothing
  * was parsed). alarm_state, when ok and not NULL, becomes "state"; error
  * must be given when !ok and becomes "error"; both are JSON-escaped, as are
@@ -90,6 +103,14 @@ int command_parse(const char *payload, size_t len, struct command *out, char *er
  */
 int command_reply_json(const struct command *c, bool ok, const char *error,
 		       const char *alarm_state, char *buf, size_t size);
+
+/*
+ * Copies len bytes of payload into out as one printable ASCII line for the
+ * log: bytes outside 0x20..0x7e become \xNN and a backslash becomes two, so
+ * a payload cannot end a log line, forge another or send terminal escapes.
+ * Cut with "..." to fit out_size (>= 8). Returns the length written.
+ */
+size_t command_log_escape(const char *payload, size_t len, char *out, size_t out_size);
 
 /* "ack", "shelve", "unshelve", or "" for COMMAND_OP_NONE. Static. */
 const char *command_op_name(enum command_op op);

@@ -420,6 +420,7 @@ int config_load(struct fg_config *cfg, const char *path, FILE *errf)
 	snprintf(cfg->path, sizeof(cfg->path), "%s", path);
 	snprintf(cfg->monitor.name, sizeof(cfg->monitor.name), "floodgauge");
 	cfg->monitor.period_s = 1.0;
+	config_runtime_defaults(cfg);
 	c->cfg = cfg;
 	c->path = path;
 	c->errf = errf;

@@ -112,6 +112,7 @@ struct mqtt_cfg {
 	double keepalive_s;
 	unsigned buffer_messages;    /* offline buffer */
 	double state_interval_s;     /* state messages at most this often (0: every period) */
+	double cmd_max_age_s;        /* commands with an older "t" are refused, s */
 	int line;
 };
 
@@ -125,6 +126,9 @@ struct export_cfg {
 	char host[FG_TEXT_MAX];
 	int port;
 	unsigned base_address;
+	double idle_timeout_s;       /* a client silent this long is dropped, s */
+	double request_timeout_s;    /* a request must be complete this soon after its first byte */
+	unsigned clients_per_address;/* connections one client address may hold */
 	unsigned field_count;
 	struct export_field fields[FG_EXPORT_FIELDS_MAX];
 	int line;
@@ -135,6 +139,8 @@ struct monitor_cfg {
 	double period_s;
 	char state_file[FG_PATH_MAX];   /* "" = no persistence */
 	char events_file[FG_PATH_MAX];  /* "" = none */
+	double events_max_bytes;        /* rotate the events file at this size; 0 = never */
+	unsigned events_keep;           /* rotated events files kept (PATH.1 .. PATH.N) */
 };
 
 /* [replay]: how historian files are read (replay, calibrate, tune, feed). */

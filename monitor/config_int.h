@@ -68,6 +68,9 @@ struct config_ctx {
 void config_error(struct config_ctx *c, int line, const char *fmt, ...)
 	__attribute__((format(printf, 3, 4)));
 int config_resolve(struct config_ctx *c);
+/* Defaults of the daemon's robustness keys (events rotation, command age,
+ * export timeouts), set before the file is read. */
+void config_runtime_defaults(struct fg_config *cfg);
 
 /* Value parsers: 0 on success, -EINVAL with an error already reported. */
 int config_parse_double(struct config_ctx *c, const char *key, const char *v, double lo,

@@ -15,6 +15,8 @@
 #include <stddef.h>
 #include <string.h>
 
+#include "evlog.h"
+#include "mbserver.h"
 #include "mqttlink.h"
 
 /* ---- keys of [section.NAME] -------------------------------------------- */
@@ -336,7 +338,8 @@ int config_source_key(struct config_ctx *c, unsigned si, const char *key, const 
 	return -EINVAL;
 }
 
-static const char *const monitor_key_names[] = {"name", "period_s", "state_file", "events_file",
+static const char *const monitor_key_names[] = {"name",	     "period_s",    "state_file",
+						"events_file", "events_max_bytes", "events_keep",
 						NULL};
 
 int config_monitor_key(struct config_ctx *c, const char *key, const char *v)
@@ -354,6 +357,8 @@ int config_monitor_key(struct config_ctx *c, const char *key, const char *v)
 	case 1: return config_parse_double(c, key, v, 0.05, 3600.0, &m->period_s);
 	case 2: return config_copy_text(c, key, v, m->state_file, sizeof(m->state_file));
 	case 3: return config_copy_text(c, key, v, m->events_file, sizeof(m->events_file));
+	case 4: return config_parse_double(c, key, v, 0.0, 1e12, &m->events_max_bytes);
+	case 5: return config_parse_uint(c, key, v, 1, EVLOG_KEEP_MAX, &m->events_keep);
 	default: assert(0);
 	}
 	return -EINVAL;
@@ -361,7 +366,7 @@ int config_monitor_key(struct config_ctx *c, const char *key, const char *v)
 
 static const char *const mqtt_key_names[] = {
 	"uri", "client_id", "topic_prefix", "qos", "username", "password_file", "ca_file",
-	"keepalive_s", "buffer_messages", "state_interval_s", NULL};
+	"keepalive_s", "buffer_messages", "state_interval_s", "cmd_max_age_s", NULL};
 
 int config_mqtt_key(struct config_ctx *c, const char *key, const char *v)
 {
@@ -387,6 +392,7 @@ int config_mqtt_key(struct config_ctx *c, const char *key, const char *v)
 					   MQTTLINK_KEEPALIVE_MAX_S, &m->keepalive_s);
 	case 8: return config_parse_uint(c, key, v, 1, MQTTLINK_BUFFER_MAX, &m->buffer_messages);
 	case 9: return config_parse_double(c, key, v, 0.0, 3600.0, &m->state_interval_s);
+	case 10: return config_parse_double(c, key, v, 1.0, 86400.0, &m->cmd_max_age_s);
 	default: assert(0);
 	}
 	return -EINVAL;
@@ -409,7 +415,9 @@ int config_export_key(struct config_ctx *c, const char *key, const char *v)
 			c->export_fields_line = c->line;
 		return 0;
 	}
-	static const char *const names[] = {"listen", "base_address", "fields", NULL};
+	static const char *const names[] = {"listen",	      "base_address",      "fields",
+					    "idle_timeout_s", "request_timeout_s", "clients_per_address",
+					    NULL};
 	int k = key_index(names, key);
 	if (k < 0) {
 		config_error(c, c->line, "unknown key '%s' in [export.modbus]", key);
@@ -419,6 +427,13 @@ int config_export_key(struct config_ctx *c, const char *key, const char *v)
 		return -EINVAL;
 	if (k == 1)
 		return config_parse_uint(c, key, v, 0, 60000, &e->base_address);
+	if (k == 3)
+		return config_parse_double(c, key, v, 1.0, 86400.0, &e->idle_timeout_s);
+	if (k == 4)
+		return config_parse_double(c, key, v, 0.05, 60.0, &e->request_timeout_s);
+	if (k == 5)
+		return config_parse_uint(c, key, v, 1, MBSERVER_CLIENTS_MAX,
+					 &e->clients_per_address);
 	const char *colon = strrchr(v, ':');
 	unsigned port = 0;
 	if (colon == NULL || (size_t)(colon - v) >= sizeof(e->host) || colon == v) {
@@ -489,4 +504,20 @@ int config_replay_key(struct config_ctx *c, const char *key, const char *v)
 	default: assert(0);
 	}
 	return -EINVAL;
+}
+
+void config_runtime_defaults(struct fg_config *cfg)
+{
+	cfg->monitor.events_max_bytes = 0.0; /* rotation is opt-in (or logrotate + SIGUSR1) */
+	cfg->monitor.events_keep = 5;
+	/* An operator's command is seconds old when it arrives; half a minute
+	 * allows for clock skew between the sender and us. */
+	cfg->mqtt.cmd_max_age_s = 30.0;
+	/* A poller asks every second or few: a minute of silence is a dead or
+	 * forgotten client holding a slot. */
+	cfg->exp.idle_timeout_s = 60.0;
+	/* A Modbus request is at most 260 bytes, sent in one go by any real
+	 * client: a second from its first byte is generous even over a WAN. */
+	cfg->exp.request_timeout_s = 1.0;
+	cfg->exp.clients_per_address = 4;
 }

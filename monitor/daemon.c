@@ -34,12 +34,21 @@ static int64_t wall_ms(void)
 	return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
 }
 
+/* Longest sleep between looks at the MQTT link, ms. */
+#define DAEMON_LINK_SLICE_MS 100
+
 static void sleep_until(int64_t t_mono_ms)
 {
 	struct timespec ts = {.tv_sec = (time_t)(t_mono_ms / 1000),
 			      .tv_nsec = (long)(t_mono_ms % 1000) * 1000000L};
 	/* A signal ends the sleep early: the loop looks at the flags at once. */
 	clock_nanosleep(CLOCK_MONOTONIC, TIMER_ABSTIME, &ts, NULL);
+}
+
+static void events_log(enum evlog_level level, const char *msg)
+{
+	log_msg(level == EVLOG_INFO ? LOG_INFO : level == EVLOG_WARNING ? LOG_WARNING : LOG_ERROR,
+		"%s", msg);
 }
 
 static void take_events(struct daemon *d)
@@ -53,10 +62,8 @@ static void take_events(struct daemon *d)
 		if (alarm_event_json(ev, a, cfg->sections[a->section_index].name, ts, json,
 				     sizeof(json)) < 0)
 			continue;
-		if (d->events != NULL) {
-			fprintf(d->events, "%s\n", json);
-			fflush(d->events);
-		}
+		if (d->events_on)
+			evlog_write(&d->events, json); /* checked inside; failures are held and said */
 		publish_alarm(&d->pub, a->name, json);
 		log_msg(ev->state == ALARM_STATE_UNACK ? LOG_WARNING : LOG_INFO,
 			"alarm %s %s -> %s (%s %s, value %.4g, setpoint %.4g%s%s)", a->name,
@@ -94,16 +101,54 @@ static const char *command_error_text(int rc)
 	}
 }
 
+/* Commands the link had to drop (queue full, oversize, retained) get one
+ * reply and one log line per batch: their ids were not kept. */
+static void report_dropped_commands(struct daemon *d)
+{
+	if (!d->pub.enabled)
+		return;
+	struct mqttlink_stats st;
+	mqttlink_get_stats(&d->pub.link, &st);
+	uint64_t full = st.cmd_dropped_full, bad = st.cmd_dropped_oversize,
+		 old = st.cmd_dropped_retained;
+	char reply[256];
+	if (full > d->cmd_full_seen) {
+		snprintf(reply, sizeof(reply), "{\"ok\":false,\"error\":\"%llu command(s) not carried "
+			 "out: more than %d arrived within one period; send them again\"}",
+			 (unsigned long long)(full - d->cmd_full_seen), MQTTLINK_CMD_SLOTS);
+		log_msg(LOG_WARNING, "commands: %llu dropped, more than %d in one period",
+			(unsigned long long)(full - d->cmd_full_seen), MQTTLINK_CMD_SLOTS);
+		publish_reply(&d->pub, reply);
+	}
+	if (bad > d->cmd_bad_seen) {
+		snprintf(reply, sizeof(reply), "{\"ok\":false,\"error\":\"%llu command(s) not carried "
+			 "out: empty or larger than %d bytes\"}",
+			 (unsigned long long)(bad - d->cmd_bad_seen), MQTTLINK_CMD_MAX - 1);
+		publish_reply(&d->pub, reply);
+	}
+	if (old > d->cmd_retained_seen) {
+		snprintf(reply, sizeof(reply), "{\"ok\":false,\"error\":\"%llu retained command(s) "
+			 "not carried out: commands must not be retained\"}",
+			 (unsigned long long)(old - d->cmd_retained_seen));
+		publish_reply(&d->pub, reply);
+	}
+	d->cmd_full_seen = full;
+	d->cmd_bad_seen = bad;
+	d->cmd_retained_seen = old;
+}
+
 static void commands(struct daemon *d, int64_t t_ms)
 {
-	char payload[1024], err[160], reply[1024];
+	char payload[1024], err[160], reply[1024], shown[256];
 	int n;
 	while ((n = publish_take_command(&d->pub, payload, sizeof(payload))) > 0) {
 		struct command c;
 		int rc = command_parse(payload, (size_t)n, &c, err, sizeof(err));
 		bool parsed = rc == 0;
 		const char *state = NULL;
-		if (parsed) {
+		if (parsed)
+			rc = command_check_age(&c, t_ms, d->cfg->mqtt.cmd_max_age_s, err, sizeof(err));
+		if (parsed && rc == 0) {
 			int ai = config_alarm_index(d->cfg, c.alarm);
 			rc = apply_command(d, &c, ai, t_ms);
 			if (ai >= 0)
@@ -111,13 +156,16 @@ static void commands(struct daemon *d, int64_t t_ms)
 			if (rc != 0)
 				snprintf(err, sizeof(err), "%s", command_error_text(rc));
 		}
-		log_msg(rc == 0 ? LOG_INFO : LOG_WARNING, "command %.120s: %s", payload,
+		/* Escaped: a payload must not forge log lines or steer a terminal. */
+		command_log_escape(payload, (size_t)n, shown, sizeof(shown));
+		log_msg(rc == 0 ? LOG_INFO : LOG_WARNING, "command %s: %s", shown,
 			rc == 0 ? "done" : err);
 		if (command_reply_json(parsed ? &c : NULL, rc == 0, rc == 0 ? NULL : err, state,
 				       reply, sizeof(reply)) > 0)
 			publish_reply(&d->pub, reply);
 		take_events(d);
 	}
+	report_dropped_commands(d);
 }
 
 static void publish_states(struct daemon *d, int64_t t_ms, int64_t now_mono)
@@ -148,16 +196,62 @@ static void publish_states(struct daemon *d, int64_t t_ms, int64_t now_mono)
 	}
 }
 
+/* A failing state file is said once and its recovery once; it stays dirty,
+ * so every cycle tries again until it is written. */
 static void save_state(struct daemon *d, int64_t t_ms)
 {
 	if (!d->state_dirty || d->cfg->monitor.state_file[0] == '\0')
 		return;
 	int rc = engine_state_save(d->eng, d->cfg->monitor.state_file, t_ms);
-	if (rc != 0)
-		log_msg(LOG_ERROR, "cannot save alarm state to %s: %s", d->cfg->monitor.state_file,
-			strerror(-rc));
-	else
-		d->state_dirty = false;
+	if (rc != 0) {
+		if (!d->state_failing)
+			log_msg(LOG_ERROR, "cannot save alarm state to %s: %s; retrying every cycle",
+				d->cfg->monitor.state_file, strerror(-rc));
+		d->state_failing = true;
+		return;
+	}
+	if (d->state_failing)
+		log_msg(LOG_INFO, "alarm state saved to %s again", d->cfg->monitor.state_file);
+	d->state_failing = false;
+	d->state_dirty = false;
+}
+
+/* Every configured alarm's current state on its retained topic, so that a
+ * subscriber joining after a broker restart (brokers often run without
+ * persistence) sees the truth; one that never fired says normal. */
+static void republish_alarms(struct daemon *d, int64_t t_ms)
+{
+	const struct fg_config *cfg = d->cfg;
+	char ts[TIMEFMT_BUF_SIZE], json[1024];
+	timefmt_format(t_ms, ts, sizeof(ts));
+	for (unsigned i = 0; i < cfg->alarm_count; i++) {
+		const struct alarm *a = &d->eng->alarms[i];
+		const struct alarm_cfg *ac = &cfg->alarms[i];
+		struct alarm_event ev = {
+			.t_ms = t_ms,
+			.alarm_index = i,
+			.state = a->state,
+			.prev = a->state,
+			.value = a->last_value,
+			.setpoint = ac->kind == ALARM_KIND_DIAGNOSTIC ? NAN : ac->setpoint,
+			.reason = a->diag_reason,
+		};
+		if (alarm_event_json(&ev, ac, cfg->sections[ac->section_index].name, ts, json,
+				     sizeof(json)) > 0)
+			publish_alarm(&d->pub, ac->name, json);
+	}
+}
+
+static void mqtt_housekeeping(struct daemon *d, int64_t now_mono, int64_t t_ms)
+{
+	publish_poll(&d->pub, now_mono);
+	unsigned n = publish_connect_count(&d->pub);
+	if (n != d->mqtt_connects) {
+		d->mqtt_connects = n;
+		republish_alarms(d, t_ms);
+		log_msg(LOG_INFO, "mqtt: (re)connected: %u alarm state(s) republished",
+			d->cfg->alarm_count);
+	}
 }
 
 /* Opens the plant, the export and MQTT for d->cfg. Returns 0 or an exit code. */
@@ -186,6 +280,8 @@ static int open_links(struct daemon *d)
 		}
 		log_msg(LOG_INFO, "export: serving on %s:%d", d->cfg->exp.host, d->cfg->exp.port);
 	}
+	d->mqtt_connects = 0; /* a new link counts from 0 */
+	d->cmd_full_seen = d->cmd_bad_seen = d->cmd_retained_seen = 0;
 	if (publish_open(&d->pub, d->cfg) != 0)
 		return EXIT_USAGE;
 	return 0;
@@ -248,7 +344,9 @@ static void cycle(struct daemon *d, int64_t now_mono)
 	plant_poll(&d->plant, now_mono, d->values, d->status);
 	engine_step(d->eng, t_ms, d->values, d->status);
 	take_events(d);
-	publish_poll(&d->pub, now_mono);
+	if (d->events_on)
+		evlog_retry(&d->events);
+	mqtt_housekeeping(d, now_mono, t_ms);
 	commands(d, t_ms);
 	publish_states(d, t_ms, now_mono);
 	export_update(&d->exp, d->eng);
@@ -290,12 +388,21 @@ static void run_loop(struct daemon *d)
 		int64_t due = d->start_mono_ms + (int64_t)n * period_ms;
 		int64_t now = mono_ms();
 		if (now < due) {
-			sleep_until(due);
+			/* Between cycles the MQTT link is looked after in short slices,
+			 * so a returning broker is probed and greeted (alarm states
+			 * republished) within a fraction of a second, not a period. */
+			sleep_until(due < now + DAEMON_LINK_SLICE_MS ? due : now + DAEMON_LINK_SLICE_MS);
+			mqtt_housekeeping(d, mono_ms(), wall_ms());
 			continue; /* woken early by a signal: look at the flags first */
 		}
 		cycle(d, now);
 		if (d->once)
 			break;
+		if (sig_reopen) {
+			sig_reopen = 0;
+			if (d->events_on)
+				evlog_reopen(&d->events);
+		}
 		if (sig_reload) {
 			sig_reload = 0;
 			reload(d);
@@ -332,10 +439,11 @@ int daemon_main(struct daemon *d)
 	if (d->cfg->monitor.state_file[0] != '\0')
 		restore_state(d, d->cfg->monitor.state_file);
 	if (d->cfg->monitor.events_file[0] != '\0') {
-		d->events = fopen(d->cfg->monitor.events_file, "a");
-		if (d->events == NULL)
-			log_msg(LOG_WARNING, "cannot open events file %s: %s",
-				d->cfg->monitor.events_file, strerror(errno));
+		const struct monitor_cfg *m = &d->cfg->monitor;
+		d->events_on = evlog_open(&d->events, m->events_file, (uint64_t)m->events_max_bytes,
+					  m->events_keep, events_log) == 0;
+		if (!d->events_on)
+			log_msg(LOG_ERROR, "cannot set up the events file %s", m->events_file);
 	}
 	sig_install();
 	rc = open_links(d);
@@ -355,8 +463,8 @@ int daemon_main(struct daemon *d)
 	rc = 0;
 out_close:
 	close_links(d);
-	if (d->events != NULL)
-		fclose(d->events);
+	if (d->events_on)
+		evlog_close(&d->events);
 out_free:
 	free(d->eng);
 	free(d->cfg);

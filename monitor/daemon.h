@@ -16,6 +16,7 @@
 #include <stdio.h>
 
 #include "engine.h"
+#include "evlog.h"
 #include "export.h"
 #include "plant.h"
 #include "publish.h"
@@ -29,8 +30,12 @@ struct daemon {
 	struct plant plant;
 	struct export exp;
 	struct publisher pub;
-	FILE *events;
+	struct evlog events;
+	bool events_on;            /* [monitor] events_file given and opened */
 	bool state_dirty;
+	bool state_failing;        /* saving the state file fails (said once) */
+	unsigned mqtt_connects;    /* connects seen: a new one republishes every alarm */
+	uint64_t cmd_full_seen, cmd_bad_seen, cmd_retained_seen; /* drops already replied to */
 	int64_t start_mono_ms;
 	uint64_t cycle;
 	unsigned overruns;

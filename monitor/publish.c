@@ -58,6 +58,11 @@ bool publish_connected(const struct publisher *p)
 	return p->enabled && mqttlink_connected(&p->link);
 }
 
+unsigned publish_connect_count(const struct publisher *p)
+{
+	return p->enabled ? mqttlink_connect_count(&p->link) : 0;
+}
+
 void publish_alarm(struct publisher *p, const char *alarm_name, const char *json)
 {
 	if (!p->enabled)

@@ -27,6 +27,8 @@ struct publisher {
 int publish_open(struct publisher *p, const struct fg_config *cfg);
 void publish_poll(struct publisher *p, int64_t now_mono_ms);
 bool publish_connected(const struct publisher *p);
+/* Connections made so far (first and re-): a change means "republish". */
+unsigned publish_connect_count(const struct publisher *p);
 void publish_alarm(struct publisher *p, const char *alarm_name, const char *json);
 void publish_state(struct publisher *p, const char *section_name, const char *json);
 /* Next command payload into buf (NUL-terminated): its length, 0 when none. */

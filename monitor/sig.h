@@ -9,6 +9,7 @@
 
 extern volatile sig_atomic_t sig_stop;   /* SIGTERM or SIGINT */
 extern volatile sig_atomic_t sig_reload; /* SIGHUP */
+extern volatile sig_atomic_t sig_reopen; /* SIGUSR1: reopen the events file */
 
 /* Installs the handlers (without SA_RESTART, so sleeps return early). */
 void sig_install(void);

@@ -452,6 +452,74 @@ static void test_op_names(void **state)
 	assert_string_equal(command_op_name(COMMAND_OP_COUNT), "");
 }
 
+/* 2026-03-04T05:06:07Z in ms since the epoch: 20516 days (date -u -d
+ * 2026-03-04 +%s = 1772582400) plus 18367 s. */
+#define CMD_T_MS INT64_C(1772600767000)
+
+static void test_time_is_read_and_age_checked(void **state)
+{
+	struct command c;
+	char err[COMMAND_ERR_MAX + 64];
+	(void)state;
+	assert_int_equal(parse("{\"op\":\"ack\",\"alarm\":\"A\",\"t\":\"2026-03-04T05:06:07Z\"}", &c,
+			       err, sizeof err), 0);
+	assert_true(c.has_t);
+	assert_true(c.t_ms == CMD_T_MS);
+	/* 29 s old: carried out; 31 s old: refused with the reason. */
+	assert_int_equal(command_check_age(&c, CMD_T_MS + 29000, 30.0, err, sizeof err), 0);
+	assert_int_equal(command_check_age(&c, CMD_T_MS + 31000, 30.0, err, sizeof err),
+			 -ETIMEDOUT);
+	assert_non_null(strstr(err, "too old: sent 31 s ago, cmd_max_age_s is 30 s"));
+	/* From a clock far ahead of ours: refused too. */
+	assert_int_equal(command_check_age(&c, CMD_T_MS - 60000, 30.0, err, sizeof err),
+			 -ETIMEDOUT);
+	assert_non_null(strstr(err, "in the future"));
+	/* An offset is applied: 07:06:07+02:00 is 05:06:07Z. */
+	assert_int_equal(parse("{\"op\":\"ack\",\"alarm\":\"A\",\"t\":\"2026-03-04T07:06:07+02:00\"}",
+			       &c, err, sizeof err), 0);
+	assert_true(c.t_ms == CMD_T_MS);
+}
+
+static void test_command_without_time_passes_the_age_check(void **state)
+{
+	struct command c;
+	char err[COMMAND_ERR_MAX];
+	(void)state;
+	assert_int_equal(parse("{\"op\":\"ack\",\"alarm\":\"A\"}", &c, err, sizeof err), 0);
+	assert_false(c.has_t);
+	assert_int_equal(command_check_age(&c, CMD_T_MS, 30.0, err, sizeof err), 0);
+}
+
+static void test_bad_time_is_refused(void **state)
+{
+	(void)state;
+	expect_refused("{\"op\":\"ack\",\"alarm\":\"A\",\"t\":12}", "t must be an ISO 8601 time string");
+	expect_refused("{\"op\":\"ack\",\"alarm\":\"A\",\"t\":\"1772600767\"}",
+		       "t is not an ISO 8601 time (e.g. 2026-03-04T05:06:07Z)");
+	expect_refused("{\"op\":\"ack\",\"alarm\":\"A\",\"t\":\"2026-13-04T05:06:07Z\"}",
+		       "t is not an ISO 8601 time (e.g. 2026-03-04T05:06:07Z)");
+	expect_refused("{\"op\":\"ack\",\"alarm\":\"A\",\"t\":\"2026-03-04T05:06:07Z\","
+		       "\"t\":\"2026-03-04T05:06:07Z\"}", "duplicate member");
+}
+
+static void test_log_escape_defuses_newlines_and_escapes(void **state)
+{
+	char out[64];
+	(void)state;
+	const char in[] = "{\"op\":\"x\"}\n2026 error: forged\x1b[2J\\";
+	size_t n = command_log_escape(in, sizeof in - 1, out, sizeof out);
+	assert_string_equal(out, "{\"op\":\"x\"}\\x0a2026 error: forged\\x1b[2J\\\\");
+	assert_int_equal(n, strlen(out));
+	/* Too long: cut with "...", still NUL-terminated within the buffer. */
+	char small[16];
+	n = command_log_escape("abcdefghijklmnopqrstuvwxyz", 26, small, sizeof small);
+	assert_string_equal(small, "abcdefghijkl...");
+	assert_int_equal(n, 15);
+	/* Bytes above 0x7e are escaped too (no raw UTF-8 or C1 controls). */
+	n = command_log_escape("\xc3\xa9\x9b", 3, out, sizeof out);
+	assert_string_equal(out, "\\xc3\\xa9\\x9b");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -493,6 +561,10 @@ int main(void)
 		cmocka_unit_test(test_reply_escapes_strings),
 		cmocka_unit_test(test_reply_that_does_not_fit_is_refused),
 		cmocka_unit_test(test_op_names),
+		cmocka_unit_test(test_time_is_read_and_age_checked),
+		cmocka_unit_test(test_command_without_time_passes_the_age_check),
+		cmocka_unit_test(test_bad_time_is_refused),
+		cmocka_unit_test(test_log_escape_defuses_newlines_and_escapes),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
