@@ -268,15 +268,6 @@ double tray_residual_head_m(double sigma_nm, double rho_l_kgm3, double rho_g_kgm
 	return 6.0 * sigma_nm / (TRAY_G_MS2 * rho_l_kgm3 * db);
 }
 
-double tray_residual_head_sinnott_m(double rho_l_kgm3)
-{
-	/* Sinnott eq. 11.89: hr = 12.5e3/rho_l mm liquid (an empirical constant
-	 * residual, after Hunt et al.). */
-	if (!finite_pos(rho_l_kgm3))
-		return NAN;
-	return 12.5 / rho_l_kgm3;
-}
-
 double tray_total_dp_pa(double dry_m, double clear_liquid_m, double residual_m,
 			double rho_l_kgm3)
 {
@@ -325,7 +316,9 @@ double tray_weep_k2(double clear_depth_m, struct fg_extrap *x)
 	 * chosen to follow our reading of the curve, from memory: about 27 at
 	 * zero depth, 30.6 at about 58 mm (the value Sinnott's worked sieve-plate
 	 * example reads), flattening to about 31 at 100..120 mm. Above the chart
-	 * (0.12 m) the value is held at its 0.12 m value. */
+	 * (0.12 m) the value is held at its 0.12 m value. Only these recalled
+	 * readings stand behind it: no independent check of the curve is in the
+	 * tests (a test against the readings it was fitted to could not fail). */
 	if (!finite_nonneg(clear_depth_m))
 		return NAN;
 	double h = clear_depth_m;

@@ -102,11 +102,6 @@ double tray_clear_liquid_m(double alpha_e, double weir_height_m, double liquid_m
 double tray_residual_head_m(double sigma_nm, double rho_l_kgm3, double rho_g_kgm3,
 			    double hole_diameter_m);
 
-/* Residual head as Sinnott gives it (eq. 11.89): hr = 12.5e3/rho_l mm, here
- * returned in m. Used for comparison with Sinnott's worked example; NAN for
- * rho_l <= 0. */
-double tray_residual_head_sinnott_m(double rho_l_kgm3);
-
 /* Total tray pressure drop, Pa: rho_l g (hd + hL + hR). NAN if any head is
  * negative or non-finite or rho_l <= 0. */
 double tray_total_dp_pa(double dry_m, double clear_liquid_m, double residual_m,

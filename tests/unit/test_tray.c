@@ -297,14 +297,6 @@ static void test_residual_head_falls_with_hole_diameter(void **state)
 	assert_true(isnan(tray_residual_head_m(0.02, 800.0, 2.5, 0.0)));
 }
 
-static void test_residual_head_sinnott_is_inverse_in_density(void **state)
-{
-	(void)state;
-	assert_true(close_rel(tray_residual_head_sinnott_m(1000.0), 0.0125, 1e-12));
-	assert_true(close_rel(tray_residual_head_sinnott_m(500.0), 0.025, 1e-12));
-	assert_true(isnan(tray_residual_head_sinnott_m(0.0)));
-}
-
 static void test_total_dp_sums_heads(void **state)
 {
 	(void)state;
@@ -806,7 +798,6 @@ int main(void)
 		cmocka_unit_test(test_froth_density_is_one_at_zero_gas_and_falls_with_gas),
 		cmocka_unit_test(test_clear_liquid_rises_with_liquid_and_froth_density),
 		cmocka_unit_test(test_residual_head_falls_with_hole_diameter),
-		cmocka_unit_test(test_residual_head_sinnott_is_inverse_in_density),
 		cmocka_unit_test(test_total_dp_sums_heads),
 		cmocka_unit_test(test_apron_head_is_quadratic_in_flow),
 		cmocka_unit_test(test_dc_backup_sums_terms_and_limit_is_half_spacing_plus_weir),
