@@ -13,6 +13,7 @@
 #include "config.h"
 #include "jsonw.h"
 #include "numfmt.h"
+#include "packing.h"
 #include "point.h"
 
 static struct fg_config *load_or_report(const char *path)
@@ -27,6 +28,30 @@ static struct fg_config *load_or_report(const char *path)
 		return NULL;
 	}
 	return cfg;
+}
+
+/* A packed section that takes its constants from the built-in table: says
+ * where they come from when any was recalled rather than read, and the
+ * table's current name when an older one was used. Keys given in the
+ * section override the row, so they are mentioned too. */
+static void note_packing(const struct section_cfg *s)
+{
+	if (s->geom.type != SECTION_PACKED || s->geom.packed.packing[0] == '\0')
+		return;
+	const char *name = s->geom.packed.packing;
+	bool from_memory = false;
+	const char *src = packing_source(name, &from_memory);
+	const char *canon = packing_canonical_name(name);
+	if (src == NULL || canon == NULL)
+		return;
+	if (strcmp(canon, name) != 0)
+		printf("note: section %s: packing '%s' is now called '%s' (the old name still "
+		       "works)\n", s->name, name, canon);
+	if (from_memory)
+		printf("note: section %s: packing '%s': table constants recalled from memory, not "
+		       "read from their source; check them against it before trusting flood_pct "
+		       "and dp_flood_pct (keys in the section override the table). Sources: %s\n",
+		       s->name, canon, src);
 }
 
 int cmd_check(int argc, char **argv)
@@ -63,6 +88,8 @@ int cmd_check(int argc, char **argv)
 	       by_type[SECTION_TRAY], by_type[SECTION_PACKED], by_type[SECTION_SPRAY],
 	       by_type[SECTION_BUBBLE], cfg->alarm_count, cfg->mqtt.enabled ? ", mqtt" : "",
 	       cfg->exp.enabled ? ", modbus export" : "");
+	for (unsigned i = 0; i < cfg->section_count; i++)
+		note_packing(&cfg->sections[i]);
 	free(cfg);
 	return 0;
 }

@@ -25,6 +25,10 @@ ok(rc == 2 and "unknown command" in err, "unknown command exits 2")
 rc, out, err = fg("check", "-c", DEMO)
 ok(rc == 0 and "4 section(s)" in out, "check accepts the demo config", out + err)
 
+# C402 takes its constants from the built-in table, recalled from memory: check says so.
+ok("C402" in out and "from memory" in out and "Billet & Schultes (1999)" in out,
+   "check says the C402 packing constants are from memory, with their source", out)
+
 rc, out, err = fg("check", "-c", "configs/site-template.ini")
 ok(rc == 0 and "2 source(s)" in out, "the site template is a valid config", out + err)
 rc, out, err = fg("rate", "-c", "configs/site-template.ini", "--section", "K701", "--json")

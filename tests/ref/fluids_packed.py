@@ -72,7 +72,7 @@ def load():
 # Packings with Stichlmair constants in models/packing.c (a, eps, C1, C2, C3).
 PACKINGS = {
     "ceramic-saddle-25mm": (260.0, 0.68, 32.0, 7.0, 1.0),
-    "ceramic-raschig-ring-25mm": (190.0, 0.68, 48.0, 8.0, 2.0),
+    "ceramic-ring-25mm": (190.0, 0.68, 48.0, 8.0, 2.0),
 }
 
 

@@ -12,6 +12,7 @@
 #include <cmocka.h>
 
 #include <math.h>
+#include <string.h>
 
 #include "packed.h"
 #include "packing.h"
@@ -134,7 +135,7 @@ static struct fluid_state air_water(void)
 static void test_bs_holdup_agrees_with_stichlmair_h0(void **state)
 {
 	(void)state;
-	const struct packing_constants *c = packing_lookup("metal-pall-ring-50mm", NULL);
+	const struct packing_constants *c = packing_lookup("metal-slotted-ring-50mm", NULL);
 	assert_non_null(c);
 	struct fluid_state f = air_water();
 	const double loads_m3m2h[] = {5.0, 10.0, 20.0};
@@ -154,7 +155,7 @@ static void test_bs_holdup_agrees_with_stichlmair_h0(void **state)
 static void test_bs_capacity_of_50mm_rings_is_plausible(void **state)
 {
 	(void)state;
-	const struct packing_constants *c = packing_lookup("metal-pall-ring-50mm", NULL);
+	const struct packing_constants *c = packing_lookup("metal-slotted-ring-50mm", NULL);
 	assert_non_null(c);
 	struct fluid_state f = air_water();
 	double ul = 20.0 / 3600.0;
@@ -163,6 +164,187 @@ static void test_bs_capacity_of_50mm_rings_is_plausible(void **state)
 	double ff = u_fl * sqrt(f.rho_g_kgm3);
 	assert_true(ff > 2.5 && ff < 3.5);
 	assert_true(u_s / u_fl > 0.60 && u_s / u_fl < 0.80);
+}
+
+/* ---- consistency of the two flood indicators, through section_eval ------ */
+
+/* Air/water at 20 degC, 1.013 bar, as section properties. */
+static struct section_props cons_props(void)
+{
+	struct section_props pr;
+	memset(&pr, 0, sizeof pr);
+	pr.gas_molar_mass_kgkmol = 28.96;
+	pr.gas_compressibility = 1.0;
+	struct prop_table one = {.point_count = 1};
+	one.value[0] = 1.81e-5;
+	pr.gas_viscosity_pas = one;
+	one.value[0] = 998.0;
+	pr.liquid_density_kgm3 = one;
+	one.value[0] = 1.0e-3;
+	pr.liquid_viscosity_pas = one;
+	one.value[0] = 0.072;
+	pr.surface_tension_nm = one;
+	return pr;
+}
+
+static struct section_geom cons_geom(const char *packing, double fpd_1ft)
+{
+	struct section_geom g;
+	memset(&g, 0, sizeof g);
+	g.type = SECTION_PACKED;
+	g.diameter_m = 1.2;
+	g.packed.height_m = 8.0;
+	const struct packing_constants *c = packing_lookup(packing, &g.packed.structured);
+	assert_non_null(c);
+	g.packed.c = *c;
+	if (isfinite(fpd_1ft))
+		g.packed.c.dry_factor_1pm = fpd_1ft / 0.3048;
+	g.packed.flood_method = isfinite(c->billet_cfl) ? PACKED_FLOOD_BILLET_SCHULTES
+							: PACKED_FLOOD_STICHLMAIR;
+	return g;
+}
+
+/* dp_flood_pct at the model's own flood point, fed the model's own DP, at a
+ * liquid load in m3/(m2 h); NAN when the row cannot give it. Also returns
+ * the gas load (as % of the model flood load) at which the model DP reaches
+ * the Kister-Gill flood DP, or NAN when it does not below 300 %. */
+static double dp_pct_at_model_flood(const struct section_geom *g, double load_m3m2h,
+				    double *crossing_pct)
+{
+	struct section_props pr = cons_props();
+	double area = M_PI / 4.0 * g->diameter_m * g->diameter_m;
+	double rho_g = 101325.0 * 28.96 / (8314.462618 * 293.15);
+	struct section_point p = {.gas_kgs = 1.0 * rho_g * area,
+				  .liquid_kgs = load_m3m2h / 3600.0 * 998.0 * area,
+				  .dp_pa = NAN, .pressure_pa = 101325.0, .temperature_k = 293.15,
+				  .level_m = NAN, .gas_density_kgm3 = NAN};
+	struct section_result r;
+	section_eval(g, &pr, &p, &r);
+	*crossing_pct = NAN;
+	if (!isfinite(r.v[RF_FLOOD_PCT]) || !(r.v[RF_FLOOD_PCT] > 0.0))
+		return NAN;
+	double g_flood = p.gas_kgs * 100.0 / r.v[RF_FLOOD_PCT];
+	/* Just below the flood point: Stichlmair has no steady DP above it. */
+	p.gas_kgs = g_flood * 0.99999;
+	section_eval(g, &pr, &p, &r);
+	assert_true(fabs(r.v[RF_FLOOD_PCT] - 99.999) < 1e-6);
+	if (!isfinite(r.v[RF_DP_MODEL_PA]))
+		return NAN;
+	p.dp_pa = r.v[RF_DP_MODEL_PA];
+	section_eval(g, &pr, &p, &r);
+	double pct = r.v[RF_DP_FLOOD_PCT];
+	/* Where does the model DP reach the flood DP? Scan up in 1 % steps. */
+	for (double f = 0.50; f <= 3.0 && isfinite(pct); f += 0.01) {
+		struct section_point q = p;
+		q.gas_kgs = g_flood * f;
+		q.dp_pa = NAN;
+		section_eval(g, &pr, &q, &r);
+		if (!isfinite(r.v[RF_DP_MODEL_PA]))
+			break;
+		q.dp_pa = r.v[RF_DP_MODEL_PA];
+		section_eval(g, &pr, &q, &r);
+		if (r.v[RF_DP_FLOOD_PCT] >= 100.0) {
+			*crossing_pct = 100.0 * f;
+			break;
+		}
+	}
+	return pct;
+}
+
+/* What the test expects of one case: agreement within CONS_TOL, or the
+ * disagreement reported in the README ("Two flood indicators on a packed
+ * bed"), pinned so that a change of model or constant makes us look again. */
+enum cons_expect { CONS_AGREE, CONS_DP_READS_LOW, CONS_DP_READS_HIGH, CONS_NO_DP_MODEL };
+
+struct cons_case {
+	const char *packing;
+	double fpd_1ft;        /* Robbins' Fpd as a config gives it, NAN: table */
+	double load_m3m2h;
+	enum cons_expect expect;
+};
+
+/* Tolerance 25 % of the flood DP: the flood velocities of Stichlmair et al.
+ * and of Billet & Schultes carry about +-10..12 % against their data (from
+ * memory), and near flooding the DP rises at least with the square of the
+ * gas load, so a flood point that is right within its own accuracy still
+ * moves the DP there by (1.12)^2 - 1 = 25 %. Kister & Gill's flood DP has
+ * its own scatter on top (not recalled), which we do not add. */
+#define CONS_TOL_PCT 25.0
+
+/* For every table packing at the model's flood point: the DP-based
+ * indicator (dp_flood_pct, measured DP against the Kister & Gill flood DP,
+ * fed the model's own DP) against the model flood % (100). Rows without a
+ * DP model in the table are run with the Fpd the demo (C402, 20 1/ft) and
+ * site template (K701, 40 1/ft) configs give, both from memory. Findings,
+ * explained in the README:
+ *  - Stichlmair rows agree at low liquid load and read low above it: the
+ *    model's flood point (where the DP-holdup curve turns vertical) comes at
+ *    a DP that falls with liquid load, while Kister & Gill's flood DP does
+ *    not depend on it;
+ *  - Billet-Schultes rows with Robbins' DP agree at 5 m3/(m2 h) (the 25 mm
+ *    ring reads high there: Robbins' DP is so steep near flooding that 6 %
+ *    of gas load is 36 % of DP) and read low at 20 and 40: Robbins reaches
+ *    the Kister-Gill flood DP only at 1.1..1.4 times the Billet-Schultes
+ *    flood gas load (printed), i.e. the recalled C_Fl, Fp and Fpd imply
+ *    capacities that far apart; we do not edit any of them to agree;
+ *  - corrugated-sheet rows carry no constants at all. */
+static void test_dp_flood_indicator_agrees_with_model_flood(void **state)
+{
+	(void)state;
+	static const struct cons_case cases[] = {
+		{"ceramic-saddle-25mm", NAN, 5.0, CONS_AGREE},
+		{"ceramic-saddle-25mm", NAN, 10.0, CONS_AGREE},
+		{"ceramic-saddle-25mm", NAN, 20.0, CONS_DP_READS_LOW},
+		{"ceramic-saddle-25mm", NAN, 40.0, CONS_DP_READS_LOW},
+		{"ceramic-ring-25mm", NAN, 5.0, CONS_DP_READS_LOW},
+		{"ceramic-ring-25mm", NAN, 10.0, CONS_DP_READS_LOW},
+		{"ceramic-ring-25mm", NAN, 20.0, CONS_DP_READS_LOW},
+		{"ceramic-ring-25mm", NAN, 40.0, CONS_DP_READS_LOW},
+		{"metal-slotted-ring-25mm", NAN, 20.0, CONS_NO_DP_MODEL},
+		{"metal-slotted-ring-25mm", 40.0, 5.0, CONS_DP_READS_HIGH},
+		{"metal-slotted-ring-25mm", 40.0, 20.0, CONS_DP_READS_LOW},
+		{"metal-slotted-ring-25mm", 40.0, 40.0, CONS_DP_READS_LOW},
+		{"metal-slotted-ring-50mm", NAN, 20.0, CONS_NO_DP_MODEL},
+		{"metal-slotted-ring-50mm", 20.0, 5.0, CONS_AGREE},
+		{"metal-slotted-ring-50mm", 20.0, 20.0, CONS_DP_READS_LOW},
+		{"metal-slotted-ring-50mm", 20.0, 40.0, CONS_DP_READS_LOW},
+		{"plastic-slotted-ring-50mm", NAN, 20.0, CONS_NO_DP_MODEL},
+		{"plastic-slotted-ring-50mm", 20.0, 5.0, CONS_AGREE},
+		{"plastic-slotted-ring-50mm", 20.0, 20.0, CONS_DP_READS_LOW},
+		{"plastic-slotted-ring-50mm", 20.0, 40.0, CONS_DP_READS_LOW},
+		{"metal-corrugated-sheet-250", NAN, 20.0, CONS_NO_DP_MODEL},
+		{"metal-corrugated-sheet-500", NAN, 20.0, CONS_NO_DP_MODEL},
+	};
+	/* Every table row appears at least once. */
+	for (unsigned i = 0; i < packing_count(); i++) {
+		bool seen = false;
+		for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++)
+			seen = seen || strcmp(cases[k].packing, packing_name_at(i)) == 0;
+		assert_true(seen);
+	}
+	for (size_t k = 0; k < sizeof cases / sizeof cases[0]; k++) {
+		const struct cons_case *cc = &cases[k];
+		struct section_geom g = cons_geom(cc->packing, cc->fpd_1ft);
+		double cross = NAN;
+		double pct = dp_pct_at_model_flood(&g, cc->load_m3m2h, &cross);
+		print_message("# %-26s Fpd %4.0f  L %4.0f m3/(m2 h): dp_flood_pct %6.1f at the "
+			      "model flood point; DP reaches the flood DP at %5.1f %% of the model "
+			      "flood load\n", cc->packing, cc->fpd_1ft, cc->load_m3m2h, pct, cross);
+		switch (cc->expect) {
+		case CONS_AGREE:
+			assert_true(fabs(pct - 100.0) <= CONS_TOL_PCT);
+			break;
+		case CONS_DP_READS_LOW:
+			assert_true(pct < 100.0 - CONS_TOL_PCT);
+			break;
+		case CONS_DP_READS_HIGH:
+			assert_true(pct > 100.0 + CONS_TOL_PCT);
+			break;
+		case CONS_NO_DP_MODEL:
+			assert_true(isnan(pct));
+			break;
+		}
+	}
 }
 
 int main(void)
@@ -176,6 +358,7 @@ int main(void)
 		cmocka_unit_test(test_kister_gill_flood_dp),
 		cmocka_unit_test(test_bs_holdup_agrees_with_stichlmair_h0),
 		cmocka_unit_test(test_bs_capacity_of_50mm_rings_is_plausible),
+		cmocka_unit_test(test_dp_flood_indicator_agrees_with_model_flood),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

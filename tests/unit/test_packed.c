@@ -36,7 +36,7 @@ static struct packing_constants saddle(void)
 static struct packing_constants ring50(void)
 {
 	bool s;
-	const struct packing_constants *c = packing_lookup("metal-pall-ring-50mm", &s);
+	const struct packing_constants *c = packing_lookup("metal-slotted-ring-50mm", &s);
 	assert_non_null(c);
 	return *c;
 }
@@ -59,7 +59,7 @@ static void test_packing_lookup_returns_row_and_structured_flag(void **state)
 {
 	(void)state;
 	bool s = true;
-	const struct packing_constants *c = packing_lookup("metal-pall-ring-50mm", &s);
+	const struct packing_constants *c = packing_lookup("metal-slotted-ring-50mm", &s);
 	assert_non_null(c);
 	assert_false(s);
 	assert_true(close_rel(c->area_m2m3, 112.6, 1e-12));
@@ -89,6 +89,46 @@ static void test_packing_names_lists_every_row(void **state)
 		const struct packing_constants *c = packing_lookup(n, NULL);
 		assert_true(c->area_m2m3 > 0.0);
 		assert_true(c->void_frac > 0.0 && c->void_frac < 1.0);
+		/* Every row names where its constants come from. */
+		bool mem = false;
+		const char *src = packing_source(n, &mem);
+		assert_non_null(src);
+		assert_true(strlen(src) > 20);
+		/* A row recalled from memory says so in its source text. */
+		assert_true(!mem || strstr(src, "from memory") != NULL);
+		assert_string_equal(packing_canonical_name(n), n);
+	}
+}
+
+/* The names the table used before it named shapes only still resolve, to
+ * the same row; trade-derived names are not listed. */
+static void test_packing_old_names_are_aliases(void **state)
+{
+	(void)state;
+	assert_ptr_equal(packing_lookup("metal-pall-ring-50mm", NULL),
+			 packing_lookup("metal-slotted-ring-50mm", NULL));
+	assert_ptr_equal(packing_lookup("ceramic-raschig-ring-25mm", NULL),
+			 packing_lookup("ceramic-ring-25mm", NULL));
+	assert_string_equal(packing_canonical_name("metal-sheet-250"),
+			    "metal-corrugated-sheet-250");
+	assert_null(strstr(packing_names(), "pall"));
+	assert_null(strstr(packing_names(), "raschig"));
+	assert_null(packing_source("no-such-packing", NULL));
+}
+
+/* Structured rows carry geometry only: the constants published for
+ * corrugated sheets belong to single makers' products. */
+static void test_structured_rows_have_no_product_constants(void **state)
+{
+	(void)state;
+	for (unsigned i = 0; i < packing_count(); i++) {
+		bool structured = false;
+		const struct packing_constants *c = packing_lookup(packing_name_at(i), &structured);
+		if (!structured)
+			continue;
+		assert_true(isnan(c->packing_factor_1pm));
+		assert_true(isnan(c->billet_cfl));
+		assert_true(isnan(c->stichlmair_c1));
 	}
 }
 
@@ -439,7 +479,7 @@ static void test_eval_fills_flood_holdup_and_dp_for_a_normal_point(void **state)
 static void test_eval_billet_schultes_packing_uses_bs_and_notes_missing_dp(void **state)
 {
 	(void)state;
-	struct section_geom g = geom("metal-pall-ring-50mm", PACKED_FLOOD_BILLET_SCHULTES);
+	struct section_geom g = geom("metal-slotted-ring-50mm", PACKED_FLOOD_BILLET_SCHULTES);
 	struct fluid_state f = air_water();
 	double a = area(&g), ul = 0.005, ug = 1.5;
 	struct section_point p = point(ug * f.rho_g_kgm3 * a, ul * f.rho_l_kgm3 * a);
@@ -462,7 +502,7 @@ static void test_eval_billet_schultes_packing_uses_bs_and_notes_missing_dp(void 
 static void test_eval_falls_back_to_robbins_and_other_flood_method(void **state)
 {
 	(void)state;
-	struct section_geom g = geom("metal-pall-ring-50mm", PACKED_FLOOD_STICHLMAIR);
+	struct section_geom g = geom("metal-slotted-ring-50mm", PACKED_FLOOD_STICHLMAIR);
 	g.packed.c.dry_factor_1pm = 24.0 / 0.3048;
 	struct fluid_state f = air_water();
 	double a = area(&g), ul = 0.005, ug = 1.5;
@@ -481,7 +521,7 @@ static void test_eval_falls_back_to_robbins_and_other_flood_method(void **state)
 static void test_eval_dry_bed_does_not_flood(void **state)
 {
 	(void)state;
-	struct section_geom g = geom("metal-pall-ring-50mm", PACKED_FLOOD_BILLET_SCHULTES);
+	struct section_geom g = geom("metal-slotted-ring-50mm", PACKED_FLOOD_BILLET_SCHULTES);
 	struct fluid_state f = air_water();
 	struct section_point p = point(2.0, 0.0);
 	struct section_result r;
@@ -513,7 +553,7 @@ static void test_eval_zero_gas_gives_zero_flood_and_preload_holdup(void **state)
 static void test_eval_gas_above_flood_is_finite_over_100_and_uncertain(void **state)
 {
 	(void)state;
-	struct section_geom g = geom("metal-pall-ring-50mm", PACKED_FLOOD_BILLET_SCHULTES);
+	struct section_geom g = geom("metal-slotted-ring-50mm", PACKED_FLOOD_BILLET_SCHULTES);
 	struct fluid_state f = air_water();
 	double a = area(&g), ul = 0.005;
 	double u_fl = packed_bs_flood_ms(&g.packed.c, ul, &f, NULL);
@@ -584,7 +624,7 @@ static void test_eval_missing_liquid_flow_is_bad(void **state)
 static void test_eval_missing_all_constants_leaves_fields_nan_with_notes(void **state)
 {
 	(void)state;
-	struct section_geom g = geom("metal-sheet-500", PACKED_FLOOD_STICHLMAIR);
+	struct section_geom g = geom("metal-corrugated-sheet-500", PACKED_FLOOD_STICHLMAIR);
 	struct fluid_state f = air_water();
 	struct section_point p = point(1.0, 2.0);
 	p.dp_pa = 300.0;
@@ -651,7 +691,7 @@ static void test_section_missing_optional_constant_is_not_extrapolation(void **s
 static void test_eval_flood_rises_with_gas_rate(void **state)
 {
 	(void)state;
-	struct section_geom g = geom("metal-sheet-250", PACKED_FLOOD_BILLET_SCHULTES);
+	struct section_geom g = geom("metal-slotted-ring-50mm", PACKED_FLOOD_BILLET_SCHULTES);
 	struct fluid_state f = air_water();
 	double prev = -1.0;
 	for (double gas = 0.5; gas < 4.0; gas += 0.5) {
@@ -670,6 +710,8 @@ int main(void)
 		cmocka_unit_test(test_packing_lookup_returns_row_and_structured_flag),
 		cmocka_unit_test(test_packing_lookup_unknown_returns_null),
 		cmocka_unit_test(test_packing_names_lists_every_row),
+		cmocka_unit_test(test_packing_old_names_are_aliases),
+		cmocka_unit_test(test_structured_rows_have_no_product_constants),
 		cmocka_unit_test(test_stichlmair_dry_rises_with_gas_rate),
 		cmocka_unit_test(test_stichlmair_dry_zero_gas_is_zero),
 		cmocka_unit_test(test_stichlmair_missing_constants_nan_and_noted),
