@@ -205,6 +205,7 @@ static void tag_defaults(struct tag_cfg *t)
 	t->min = NAN;
 	t->max = NAN;
 	t->stale_periods = 3.0;
+	t->frozen_s = NAN; /* resolved: VALIDATE_FROZEN_DEFAULT_S for a polled tag */
 	t->median = 1;
 }
 

@@ -70,7 +70,8 @@ struct tag_cfg {
 	double min, max;             /* valid range in the tag's unit (NAN = open) */
 	/* Validation and filtering (engine). 0 switches a check off. */
 	double stale_periods;        /* bad when no fresh read for this many periods (default 3) */
-	double frozen_s;             /* uncertain when unchanged this long (default 0 = off) */
+	double frozen_s;             /* uncertain when unchanged this long (0 = off; default
+	                              * VALIDATE_FROZEN_DEFAULT_S for polled tags) */
 	double frozen_tolerance;     /* change below this, in the tag's unit, is "unchanged" */
 	double spike_limit;          /* a step larger than this (tag unit) is rejected once */
 	double filter_tau_s;         /* first-order lag time constant (0 = none) */

@@ -16,6 +16,7 @@
 #include "mbclient.h"
 #include "packing.h"
 #include "tzone.h"
+#include "validate.h"
 
 const char *config_tag_column(const struct tag_cfg *t)
 {
@@ -200,6 +201,10 @@ static void resolve_tags(struct config_ctx *c)
 				config_error(c, t->line, "[tag.%s]: a 32-bit value at 65535 has no "
 							 "second register", t->name);
 		}
+		/* Frozen detection is on by default for what is read from the plant
+		 * or a historian; a 'value =' tag never changes by design. */
+		if (isnan(t->frozen_s))
+			t->frozen_s = polled ? VALIDATE_FROZEN_DEFAULT_S : 0.0;
 		if (isfinite(t->min) && isfinite(t->max) && t->min >= t->max)
 			config_error(c, t->line, "[tag.%s]: min must be below max", t->name);
 		if (fixed && ((isfinite(t->min) && t->fixed_value < t->min) ||

@@ -75,6 +75,12 @@ static void filter(struct tag_state *s, int64_t t_ms, double x)
 	s->value_si = config_tag_to_si(c, s->value);
 }
 
+/* A reading at the end of its span (saturated there): exempt from frozen. */
+static bool at_span_end(const struct tag_cfg *c, double v)
+{
+	return (isfinite(c->min) && v <= c->min) || (isfinite(c->max) && v >= c->max);
+}
+
 static void fresh(struct tag_state *s, int64_t t_ms, double v)
 {
 	const struct tag_cfg *c = s->cfg;
@@ -103,7 +109,7 @@ static void fresh(struct tag_state *s, int64_t t_ms, double v)
 	s->seen = true;
 	s->last_fresh_t_ms = t_ms;
 	filter(s, t_ms, v);
-	bool frozen = c->frozen_s > 0.0 &&
+	bool frozen = c->frozen_s > 0.0 && !at_span_end(c, v) &&
 		      (double)(t_ms - s->frozen_since_t_ms) >= c->frozen_s * 1000.0;
 	s->quality = frozen ? FG_QUALITY_UNCERTAIN : FG_QUALITY_GOOD;
 	s->reason = frozen ? ALARM_REASON_FROZEN : NULL;

@@ -22,6 +22,23 @@
 #include "alarm.h"
 #include "config.h"
 
+/*
+ * Frozen detection is on by default for every polled or recorded tag: 900 s
+ * (15 min) without any change of the raw value. Why 15 min: a live
+ * transmitter's noise moves the last digit of its reading within seconds to
+ * a minute even at steady state, and historians that compress by deadband
+ * still write a value at least every 10-15 min (a common "max time"
+ * setting), so a value identical for 15 min is a stuck transmitter, a frozen
+ * PLC register or a historian repeating its last value (common practice,
+ * not a standard). Much shorter windows flag coarse-resolution tags (an
+ * int16 temperature in 0.1 degC) at steady state; much longer ones let a
+ * frozen DP hide the run-up to flooding, which takes tens of minutes. A tag
+ * that may legitimately sit still longer sets its own frozen_s, or 0 (off).
+ * A reading at or beyond the end of its span (min or max, where a
+ * transmitter saturates) is exempt: a pegged reading does not move.
+ */
+#define VALIDATE_FROZEN_DEFAULT_S 900.0
+
 enum tag_status {
 	TAG_STATUS_FRESH,     /* a new reading this period */
 	TAG_STATUS_MISSING,   /* no reading (empty historian field) */

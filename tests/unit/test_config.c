@@ -15,6 +15,7 @@
 #include <unistd.h>
 
 #include "config.h"
+#include "validate.h"
 
 static const char base_ini[] =
 	"[monitor]\n"                                  /* 1 */
@@ -312,10 +313,25 @@ static void test_demo_config_is_valid(void **state)
 	free(c);
 }
 
+static void test_frozen_detection_is_on_by_default_for_polled_tags(void **state)
+{
+	(void)state;
+	struct loaded *l = load_text(base_ini);
+	assert_int_equal(l->rc, 0);
+	assert_true(l->cfg.tags[0].frozen_s == VALIDATE_FROZEN_DEFAULT_S); /* polled FG */
+	assert_true(l->cfg.tags[1].frozen_s == 0.0);                       /* value = 30 */
+	loaded_free(l);
+	l = load_edit("unit = t/h\n[tag.FL]", "unit = t/h\nfrozen_s = 0\n[tag.FL]");
+	assert_int_equal(l->rc, 0);
+	assert_true(l->cfg.tags[0].frozen_s == 0.0); /* switched off */
+	loaded_free(l);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_valid_config_loads_with_its_values),
+		cmocka_unit_test(test_frozen_detection_is_on_by_default_for_polled_tags),
 		cmocka_unit_test(test_unknown_key_is_refused_with_its_line),
 		cmocka_unit_test(test_missing_required_key_names_the_section_line),
 		cmocka_unit_test(test_bad_number_is_refused),

@@ -194,12 +194,37 @@ static void test_hold_s_keeps_an_on_change_tag_fresh(void **state)
 	assert_string_equal(s.reason, ALARM_REASON_STALE);
 }
 
+/* The default window: good until 900 s without any change, then frozen; a
+ * reading pegged at the end of its span is exempt. */
+static void test_frozen_default_window_and_span_end_exempt(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	c.frozen_s = VALIDATE_FROZEN_DEFAULT_S;
+	struct tag_state s;
+	validate_init(&s, &c, 10.0);
+	for (int k = 0; k <= 89; k++)
+		validate_step(&s, S(10000 * k), 42.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD); /* 890 s unchanged */
+	validate_step(&s, S(900000), 42.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_UNCERTAIN);
+	assert_string_equal(s.reason, ALARM_REASON_FROZEN);
+	validate_step(&s, S(910000), 42.001, TAG_STATUS_FRESH); /* any change: live again */
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	struct tag_state p;
+	validate_init(&p, &c, 10.0);
+	for (int k = 0; k <= 300; k++)
+		validate_step(&p, S(10000 * k), 500.0, TAG_STATUS_FRESH); /* at max for 50 min */
+	assert_null(p.reason);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_fresh_value_is_good_and_in_si),
 		cmocka_unit_test(test_historian_bad_and_missing_column_are_bad),
 		cmocka_unit_test(test_hold_s_keeps_an_on_change_tag_fresh),
+		cmocka_unit_test(test_frozen_default_window_and_span_end_exempt),
 		cmocka_unit_test(test_comm_fail_is_bad_at_once),
 		cmocka_unit_test(test_missing_holds_until_stale),
 		cmocka_unit_test(test_nan_and_out_of_range_are_bad),
