@@ -214,6 +214,7 @@ static void section_defaults(struct section_cfg *s)
 	for (int i = 0; i < SIGNAL_COUNT; i++)
 		s->signal[i] = -1;
 	s->props.gas_molar_mass_kgkmol = NAN;
+	s->active_area_m2 = s->downcomer_area_m2 = s->hole_area_m2 = NAN;
 	s->props.gas_compressibility = 1.0;
 	s->sump_area_m2 = NAN;
 	s->geom.tray.deck_thickness_m = 0.002; /* common practice: 2 mm stainless deck */

@@ -98,6 +98,9 @@ struct section_cfg {
 	int signal[SIGNAL_COUNT];    /* tag index, -1 when not wired */
 	double in_service_gas_kgs;   /* below: out of service, process alarms suppressed */
 	double sump_area_m2;         /* liquid inventory: sump cross-section (default tower) */
+	/* Tray areas per tray as a datasheet gives them, m2 (NAN unless given);
+	 * the loader turns them into geom.tray's fractions. */
+	double active_area_m2, downcomer_area_m2, hole_area_m2;
 	int line;
 };
 
@@ -170,6 +173,14 @@ struct fg_config {
 
 /* The data-file column of tag t: its `column =`, else its name. */
 const char *config_tag_column(const struct tag_cfg *t);
+
+/* Tray areas from a datasheet are rounded to the digits it prints: the
+ * geometry checks allow this much (a fraction of the tower cross-section)
+ * before they call the areas impossible. Each of three areas rounded to 4
+ * significant digits is off by up to 0.05 %, and a diameter rounded to 4
+ * digits puts up to 0.1 % on the tower area: 0.05 + 2 x 0.05 + 0.1 = 0.25 %
+ * in the worst case, so 0.3 %. A sum 1 % over is still refused. */
+#define CONFIG_AREA_ROUNDING 0.003
 
 /* Loads and checks path into *cfg (the caller owns cfg; it is large, so
  * allocate it). Every problem found is written to errf as "FILE:LINE: what"

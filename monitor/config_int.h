@@ -101,6 +101,8 @@ int config_alarm_key(struct config_ctx *c, unsigned ai, const char *key, const c
 int config_mqtt_key(struct config_ctx *c, const char *key, const char *v);
 int config_export_key(struct config_ctx *c, const char *key, const char *v);
 int config_replay_key(struct config_ctx *c, const char *key, const char *v);
+/* The line of section key `key` in sp, 0 when it was not given. */
+int config_section_key_line(const struct section_pending *sp, const char *key);
 /* Applicability and required keys of section si, once its type is known. */
 int config_section_keys_check(struct config_ctx *c, unsigned si);
 

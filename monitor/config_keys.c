@@ -67,9 +67,13 @@ static const struct key_desc section_keys[] = {
 	{"tray_spacing_m", KK_DOUBLE, T_TRAY, GEO(tray.spacing_m), 0.15, 1.5, T_TRAY},
 	{"weir_height_m", KK_DOUBLE, T_TRAY, GEO(tray.weir_height_m), 0.0, 0.3, T_TRAY},
 	{"weir_length_m", KK_DOUBLE, T_TRAY, GEO(tray.weir_length_m), 0.05, 20.0, T_TRAY},
-	{"active_area_frac", KK_DOUBLE, T_TRAY, GEO(tray.active_area_frac), 0.2, 1.0, T_TRAY},
-	{"downcomer_area_frac", KK_DOUBLE, T_TRAY, GEO(tray.downcomer_area_frac), 0.01, 0.4, T_TRAY},
-	{"hole_area_frac", KK_DOUBLE, T_TRAY, GEO(tray.hole_area_frac), 0.01, 0.5, T_TRAY},
+	/* Each area as a fraction or in m2 per tray (area_pairs below: one of each). */
+	{"active_area_frac", KK_DOUBLE, T_TRAY, GEO(tray.active_area_frac), 0.2, 1.0, 0},
+	{"downcomer_area_frac", KK_DOUBLE, T_TRAY, GEO(tray.downcomer_area_frac), 0.01, 0.4, 0},
+	{"hole_area_frac", KK_DOUBLE, T_TRAY, GEO(tray.hole_area_frac), 0.01, 0.5, 0},
+	{"active_area_m2", KK_DOUBLE, T_TRAY, SC(active_area_m2), 1e-4, 400.0, 0},
+	{"downcomer_area_m2", KK_DOUBLE, T_TRAY, SC(downcomer_area_m2), 1e-5, 200.0, 0},
+	{"hole_area_m2", KK_DOUBLE, T_TRAY, SC(hole_area_m2), 1e-6, 200.0, 0},
 	{"hole_diameter_m", KK_DOUBLE, T_TRAY, GEO(tray.hole_diameter_m), 0.0005, 0.1, T_TRAY},
 	{"deck_thickness_m", KK_DOUBLE, T_TRAY, GEO(tray.deck_thickness_m), 0.0005, 0.02, 0},
 	{"downcomer_clearance_m", KK_DOUBLE, T_TRAY, GEO(tray.downcomer_clearance_m), 0.005, 0.3,
@@ -174,6 +178,45 @@ int config_section_key(struct config_ctx *c, struct section_cfg *s, struct secti
 }
 
 /* Applicability and required keys, once the type is known. */
+static int section_key_number(const char *key)
+{
+	for (unsigned i = 0; i < SECTION_KEY_COUNT; i++)
+		if (!strcmp(section_keys[i].name, key))
+			return (int)i;
+	return -1;
+}
+
+int config_section_key_line(const struct section_pending *sp, const char *key)
+{
+	int i = section_key_number(key);
+	assert(i >= 0);
+	return (sp->keys_set & (1ull << i)) != 0 ? sp->key_line[i] : 0;
+}
+
+/* A tray gives each area once: as a fraction or in m2. */
+static int area_pairs_check(struct config_ctx *c, const struct section_cfg *s,
+			    const struct section_pending *sp)
+{
+	static const char *const pairs[3][2] = {{"active_area_frac", "active_area_m2"},
+						{"downcomer_area_frac", "downcomer_area_m2"},
+						{"hole_area_frac", "hole_area_m2"}};
+	int rc = 0;
+	for (unsigned i = 0; i < 3; i++) {
+		int lf = config_section_key_line(sp, pairs[i][0]);
+		int lm = config_section_key_line(sp, pairs[i][1]);
+		if (lf > 0 && lm > 0) {
+			config_error(c, lm, "%s and %s (line %d) give the same area twice: keep one",
+				     pairs[i][1], pairs[i][0], lf);
+			rc = -EINVAL;
+		} else if (lf == 0 && lm == 0) {
+			config_error(c, s->line, "[section.%s] (tray) needs '%s' (or '%s', per tray)",
+				     s->name, pairs[i][0], pairs[i][1]);
+			rc = -EINVAL;
+		}
+	}
+	return rc;
+}
+
 int config_section_keys_check(struct config_ctx *c, unsigned si)
 {
 	struct section_cfg *s = &c->cfg->sections[si];
@@ -199,6 +242,8 @@ int config_section_keys_check(struct config_ctx *c, unsigned si)
 			rc = -EINVAL;
 		}
 	}
+	if (s->geom.type == SECTION_TRAY && area_pairs_check(c, s, sp) != 0)
+		rc = -EINVAL;
 	return rc;
 }
 

@@ -277,10 +277,32 @@ static void resolve_signals(struct config_ctx *c, unsigned si)
 					 "tap_spacing_m", s->name);
 }
 
-static void resolve_tray(struct config_ctx *c, struct section_cfg *s)
+/* A datasheet area in m2 as the fraction `frac` of `of_m2`, in lo..hi. */
+static void area_from_m2(struct config_ctx *c, const struct section_pending *sp, const char *key,
+			 double m2, double of_m2, const char *of_what, double lo, double hi,
+			 double *frac)
+{
+	if (!isfinite(m2))
+		return;
+	*frac = m2 / of_m2;
+	if (*frac < lo || *frac > hi * (1.0 + CONFIG_AREA_ROUNDING))
+		config_error(c, config_section_key_line(sp, key),
+			     "%s = %.4g m2 is %.3g of the %s (%.4g m2); expected %.2g..%.2g", key, m2,
+			     *frac, of_what, of_m2, lo, hi);
+}
+
+static void resolve_tray(struct config_ctx *c, struct section_cfg *s,
+			 const struct section_pending *sp)
 {
 	struct tray_geom *t = &s->geom.tray;
 	int L = s->line;
+	double tower_m2 = section_area_m2(&s->geom);
+	area_from_m2(c, sp, "active_area_m2", s->active_area_m2, tower_m2,
+		     "tower cross-section pi D^2/4", 0.2, 1.0, &t->active_area_frac);
+	area_from_m2(c, sp, "downcomer_area_m2", s->downcomer_area_m2, tower_m2,
+		     "tower cross-section pi D^2/4", 0.01, 0.4, &t->downcomer_area_frac);
+	area_from_m2(c, sp, "hole_area_m2", s->hole_area_m2, t->active_area_frac * tower_m2,
+		     "active area", 0.01, 0.5, &t->hole_area_frac);
 	if (t->weir_height_m >= t->spacing_m)
 		config_error(c, L, "[section.%s]: weir_height_m %.3g is not below tray_spacing_m %.3g",
 			     s->name, t->weir_height_m, t->spacing_m);
@@ -290,11 +312,13 @@ static void resolve_tray(struct config_ctx *c, struct section_cfg *s)
 	if (t->weir_length_m >= s->geom.diameter_m)
 		config_error(c, L, "[section.%s]: weir_length_m %.3g m is not shorter than the "
 				   "diameter %.3g m", s->name, t->weir_length_m, s->geom.diameter_m);
-	/* A one-pass tray: downcomer top and bottom seal areas plus the active area. */
-	if (t->active_area_frac + 2.0 * t->downcomer_area_frac > 1.0 + 1e-9)
-		config_error(c, L, "[section.%s]: active_area_frac + 2 x downcomer_area_frac = %.3g "
-				   "exceeds the tower cross-section", s->name,
-			     t->active_area_frac + 2.0 * t->downcomer_area_frac);
+	/* A one-pass tray: downcomer top and bottom seal areas plus the active
+	 * area, allowing for a datasheet's rounding (CONFIG_AREA_ROUNDING). */
+	double sum = t->active_area_frac + 2.0 * t->downcomer_area_frac;
+	if (sum > 1.0 + CONFIG_AREA_ROUNDING)
+		config_error(c, L, "[section.%s]: active area + 2 x downcomer area = %.4g of the tower "
+				   "cross-section, more than it (%.1f %% allowed for rounding)", s->name,
+			     sum, 100.0 * CONFIG_AREA_ROUNDING);
 	if (t->hole_diameter_m <= t->deck_thickness_m * 0.2)
 		config_error(c, L, "[section.%s]: hole_diameter_m is implausibly small for the deck "
 				   "thickness", s->name);
@@ -345,7 +369,7 @@ static void resolve_sections(struct config_ctx *c)
 				c, &sp->flood_method, "flood_method", tray_flood, TRAY_FLOOD_FAIR);
 			s->geom.tray.kind = (enum tray_kind)resolve_choice(c, &sp->tray_kind,
 									   "tray_kind", kinds, 0);
-			resolve_tray(c, s);
+			resolve_tray(c, s, sp);
 			break;
 		case SECTION_PACKED:
 			s->geom.packed.flood_method = (enum packed_flood_method)resolve_choice(

@@ -223,7 +223,59 @@ static void test_areas_larger_than_the_tower_are_refused(void **state)
 {
 	(void)state;
 	struct loaded *l = load_edit("active_area_frac = 0.76", "active_area_frac = 0.9");
-	assert_error(l, 21, "exceeds the tower cross-section");
+	assert_error(l, 21, "more than it (0.3 % allowed for rounding)");
+	loaded_free(l);
+	/* 1 % over is not rounding either. */
+	l = load_edit("active_area_frac = 0.76", "active_area_frac = 0.77");
+	assert_error(l, 21, "= 1.01 of the tower cross-section");
+	loaded_free(l);
+}
+
+/* Areas copied from a datasheet, rounded to 4 digits, may add up to a hair
+ * over the tower: 0.76002 + 2 x 0.12 = 1.00002 (the case a site reported). */
+static void test_datasheet_rounding_is_allowed(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("active_area_frac = 0.76", "active_area_frac = 0.76002");
+	if (l->rc != 0)
+		fail_msg("%s", l->err);
+	loaded_free(l);
+}
+
+/* Areas in m2 per tray. Tower pi x 1.5^2 / 4 = 1.76715 m2 (arithmetic); the
+ * datasheet's 4-digit areas 1.343, 0.2121 and 0.1343 m2 are 0.76, 0.12 of
+ * it and 0.10 of the active area, to the datasheet's rounding (0.05 %). */
+static void test_tray_areas_in_m2_per_tray(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("active_area_frac = 0.76\n"
+				     "downcomer_area_frac = 0.12\n"
+				     "hole_area_frac = 0.1\n",
+				     "active_area_m2 = 1.343\n"
+				     "downcomer_area_m2 = 0.2121\n"
+				     "hole_area_m2 = 0.1343\n");
+	if (l->rc != 0)
+		fail_msg("%s", l->err);
+	const struct tray_geom *t = &l->cfg.sections[0].geom.tray;
+	assert_true(fabs(t->active_area_frac / 0.76 - 1.0) < 5e-4);
+	assert_true(fabs(t->downcomer_area_frac / 0.12 - 1.0) < 5e-4);
+	assert_true(fabs(t->hole_area_frac / 0.10 - 1.0) < 5e-4);
+	loaded_free(l);
+}
+
+static void test_one_area_given_twice_or_not_at_all_is_refused(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("hole_area_frac = 0.1\n", "hole_area_frac = 0.1\n"
+							      "active_area_m2 = 1.343\n");
+	assert_error(l, 31, "active_area_m2 and active_area_frac (line 28) give the same area");
+	loaded_free(l);
+	l = load_edit("downcomer_area_frac = 0.12\n", "");
+	assert_error(l, 21, "needs 'downcomer_area_frac' (or 'downcomer_area_m2', per tray)");
+	loaded_free(l);
+	/* An m2 area larger than the tower is refused at its line. */
+	l = load_edit("active_area_frac = 0.76", "active_area_m2 = 2.5");
+	assert_error(l, 28, "active_area_m2 = 2.5 m2 is 1.41 of the tower cross-section");
 	loaded_free(l);
 }
 
@@ -340,6 +392,9 @@ int main(void)
 		cmocka_unit_test(test_unit_that_does_not_fit_the_signal_is_refused),
 		cmocka_unit_test(test_weir_taller_than_tray_spacing_is_refused),
 		cmocka_unit_test(test_areas_larger_than_the_tower_are_refused),
+		cmocka_unit_test(test_datasheet_rounding_is_allowed),
+		cmocka_unit_test(test_tray_areas_in_m2_per_tray),
+		cmocka_unit_test(test_one_area_given_twice_or_not_at_all_is_refused),
 		cmocka_unit_test(test_duplicate_key_and_header_are_refused),
 		cmocka_unit_test(test_long_line_is_refused_not_split),
 		cmocka_unit_test(test_alarm_on_unknown_field_is_refused),
