@@ -11,6 +11,7 @@
 #include <math.h>
 
 #include "section.h"
+#include "solve.h"
 
 #define AY_BISECT_STEPS 60
 
@@ -53,8 +54,22 @@ double bubble_holdup_dp_frac(double dp_pa, double dz_m, double rho_l_kgm3, doubl
 	return eps < 0.0 ? 0.0 : 1.0;
 }
 
+static double ay_resid(double eps, const void *ctx)
+{
+	double rhs = *(const double *)ctx, om = 1.0 - eps;
+	return eps - rhs * om * om * om * om;
+}
+
 double bubble_akita_yoshida_frac(double ug_ms, double d_m, double rho_l_kgm3, double mu_l_pas,
 				 double sigma_nm, bool electrolyte, struct fg_extrap *x)
+{
+	return bubble_akita_yoshida_frac_warm(ug_ms, d_m, rho_l_kgm3, mu_l_pas, sigma_nm,
+					      electrolyte, x, NULL);
+}
+
+double bubble_akita_yoshida_frac_warm(double ug_ms, double d_m, double rho_l_kgm3,
+				      double mu_l_pas, double sigma_nm, bool electrolyte,
+				      struct fg_extrap *x, double *guess)
 {
 	if (!isfinite(ug_ms) || ug_ms < 0.0 || !positive(d_m) || !positive(rho_l_kgm3) ||
 	    !positive(mu_l_pas) || !positive(sigma_nm))
@@ -76,6 +91,13 @@ double bubble_akita_yoshida_frac(double ug_ms, double d_m, double rho_l_kgm3, do
 	/* eps / (1 - eps)^4 rises from 0 to infinity on 0..1: one root. */
 	double lo = 0.0;
 	double hi = 1.0;
+	double root;
+	/* 1e-15 absolute: the cold 60-step bisection leaves 1e-18. */
+	if (guess != NULL &&
+	    solve_near(ay_resid, &rhs, lo, hi, true, *guess, 1e-6, 1e-15, &root, NULL)) {
+		*guess = root;
+		return root;
+	}
 	for (int i = 0; i < AY_BISECT_STEPS; i++) {
 		double mid = 0.5 * (lo + hi);
 		double om = 1.0 - mid;
@@ -84,6 +106,8 @@ double bubble_akita_yoshida_frac(double ug_ms, double d_m, double rho_l_kgm3, do
 		else
 			hi = mid;
 	}
+	if (guess != NULL)
+		*guess = 0.5 * (lo + hi);
 	return 0.5 * (lo + hi);
 }
 
@@ -159,14 +183,15 @@ static bool bubble_fluids_usable(const struct fluid_state *f)
 }
 
 static double correlation_frac(const struct section_geom *g, const struct fluid_state *f,
-			       double ug, struct fg_extrap *x)
+			       double ug, struct fg_extrap *x, struct solve_warm *w)
 {
 	const struct bubble_geom *b = &g->bubble;
 	if (b->holdup_method == BUBBLE_HOLDUP_HUGHMARK)
 		return bubble_hughmark_frac(ug, g->diameter_m, f->rho_l_kgm3, f->sigma_nm, x);
 	assert(b->holdup_method == BUBBLE_HOLDUP_AKITA_YOSHIDA);
-	return bubble_akita_yoshida_frac(ug, g->diameter_m, f->rho_l_kgm3, f->mu_l_pas,
-					 f->sigma_nm, b->electrolyte, x);
+	return bubble_akita_yoshida_frac_warm(ug, g->diameter_m, f->rho_l_kgm3, f->mu_l_pas,
+					      f->sigma_nm, b->electrolyte, x,
+					      w != NULL ? &w->bubble_ay_eps : NULL);
 }
 
 /* Tap holdup when the DP and the tap spacing are known and the DP is within
@@ -187,6 +212,13 @@ static double tap_frac(const struct section_geom *g, const struct fluid_state *f
 void bubble_eval(const struct section_geom *g, const struct fluid_state *f,
 		 const struct section_point *p, struct section_result *r)
 {
+	bubble_eval_warm(g, f, p, r, NULL);
+}
+
+void bubble_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		      const struct section_point *p, struct section_result *r,
+		      struct solve_warm *w)
+{
 	assert(g != NULL);
 	assert(f != NULL);
 	assert(p != NULL);
@@ -196,7 +228,7 @@ void bubble_eval(const struct section_geom *g, const struct fluid_state *f,
 		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
 		return;
 	}
-	double eps_corr = correlation_frac(g, f, ug, &r->extrap);
+	double eps_corr = correlation_frac(g, f, ug, &r->extrap, w);
 	r->v[RF_GAS_HOLDUP_FRAC] = eps_corr;
 	bool tap_ok = false;
 	double eps_tap = tap_frac(g, f, p, &tap_ok, &r->extrap);

@@ -18,12 +18,20 @@
  *   - flood velocity: bisection on ln u_g of the residual at t_f, which rises
  *     with u_g because D does.
  * Every loop has a fixed iteration cap; nothing allocates.
+ *
+ * The *_warm variants solve the same equations from the last sample's
+ * answers (struct solve_warm, see solve.h): a bracket found near the guess
+ * and closed by Brent's method, on ln t, ln y and ln u to 1e-13 relative,
+ * and the cold bisections above whenever the guess brackets nothing. They
+ * agree with the cold functions to 1e-9 relative (tests/unit/test_warm.c).
  */
 #include "packed.h"
 
 #include <assert.h>
 #include <math.h>
 #include <stddef.h>
+
+#include "solve.h"
 
 #define BISECT_MAX 200          /* hard cap; intervals collapse well before */
 #define FLOOD_U_LO_MS 1e-6      /* search range of the flood solve, m/s */
@@ -177,6 +185,28 @@ static double stich_flood_t(const struct stich *s)
 	return sqrt(lo * hi);
 }
 
+static double flood_cond_ln(double ln_t, const void *ctx)
+{
+	return stich_flood_cond(ctx, exp(ln_t));
+}
+
+/* stich_flood_t from the guess *ln_t (updated); cold when ln_t is NULL. */
+static double stich_flood_t_w(const struct stich *s, double *ln_t)
+{
+	if (ln_t == NULL)
+		return stich_flood_t(s);
+	double t_lim = (s->eps / s->h0 - 1.0) / 20.0;
+	double lo = log(t_lim * 1e-15), hi = log(t_lim);
+	double root;
+	if (solve_near(flood_cond_ln, s, lo, hi, false, *ln_t, 1e-4, SOLVE_TOL_LN, &root, NULL)) {
+		*ln_t = root;
+		return exp(root);
+	}
+	double t = stich_flood_t(s);
+	*ln_t = log(t);
+	return t;
+}
+
 static bool stich_setup(struct stich *s, const struct packing_constants *c, double u_g,
 			double u_l, const struct fluid_state *f)
 {
@@ -190,9 +220,47 @@ static bool stich_setup(struct stich *s, const struct packing_constants *c, doub
 	return s->dry_pam > 0.0 && s->h0 < s->eps;
 }
 
+static double wet_resid_ln(double ln_y, const void *ctx)
+{
+	const struct stich *s = ctx;
+	double t = exp(2.0 * ln_y) / (s->rlg * s->rlg);
+	return stich_resid(s, t);
+}
+
+/* The lower root in y between the dry DP (residual >= 0) and y_f (<= 0). */
+static double stich_wet_root(const struct stich *s, double t_f, struct solve_warm *w)
+{
+	double lo = s->dry_pam, hi = s->rlg * sqrt(t_f);
+	double root;
+	if (w != NULL && solve_near(wet_resid_ln, s, log(lo), log(hi), false, w->stich_wet_ln_y,
+				    1e-4, SOLVE_TOL_LN, &root, NULL)) {
+		w->stich_wet_ln_y = root;
+		return exp(root);
+	}
+	for (int i = 0; i < BISECT_MAX && hi - lo > 1e-15 * hi; i++) {
+		double mid = 0.5 * (lo + hi);
+		double t = (mid / s->rlg) * (mid / s->rlg);
+		if (stich_resid(s, t) > 0.0)
+			lo = mid;
+		else
+			hi = mid;
+	}
+	double y = 0.5 * (lo + hi);
+	if (w != NULL)
+		w->stich_wet_ln_y = log(y);
+	return y;
+}
+
 double packed_stichlmair_wet_pam(const struct packing_constants *c, double u_g_ms,
 				 double u_l_ms, const struct fluid_state *f, double *holdup,
 				 struct fg_extrap *x)
+{
+	return packed_stichlmair_wet_pam_warm(c, u_g_ms, u_l_ms, f, holdup, x, NULL);
+}
+
+double packed_stichlmair_wet_pam_warm(const struct packing_constants *c, double u_g_ms,
+				      double u_l_ms, const struct fluid_state *f, double *holdup,
+				      struct fg_extrap *x, struct solve_warm *w)
 {
 	assert(c != NULL);
 	assert(f != NULL);
@@ -216,25 +284,55 @@ double packed_stichlmair_wet_pam(const struct packing_constants *c, double u_g_m
 		fg_extrap_note(x, "stichlmair: liquid holdup fills the voids or f0 <= 0");
 		return NAN;
 	}
-	double t_f = stich_flood_t(&s);
+	double t_f = stich_flood_t_w(&s, w != NULL ? &w->stich_wet_ln_t : NULL);
 	if (stich_resid(&s, t_f) > 0.0) {
 		fg_extrap_note(x, "stichlmair: gas above the flood point, no steady irrigated DP");
 		return NAN;
 	}
-	/* Lower root in y between the dry DP (residual >= 0) and y_f (<= 0). */
-	double lo = s.dry_pam, hi = s.rlg * sqrt(t_f);
-	for (int i = 0; i < BISECT_MAX && hi - lo > 1e-15 * hi; i++) {
-		double mid = 0.5 * (lo + hi);
-		double t = (mid / s.rlg) * (mid / s.rlg);
-		if (stich_resid(&s, t) > 0.0)
-			lo = mid;
-		else
-			hi = mid;
-	}
-	double y = 0.5 * (lo + hi);
+	double y = stich_wet_root(&s, t_f, w);
 	if (holdup != NULL)
 		*holdup = stich_ht(&s, (y / s.rlg) * (y / s.rlg));
 	return y;
+}
+
+/* What the outer flood solve needs: the residual at the flood condition as
+ * a function of ln u_g, the inner solve warm-started from the last one. */
+struct flood_ctx {
+	const struct packing_constants *c;
+	const struct fluid_state *f;
+	double u_l;
+	double *ln_t;
+};
+
+static double flood_resid_ln(double ln_u, const void *ctx)
+{
+	const struct flood_ctx *fc = ctx;
+	struct stich s;
+	if (!stich_setup(&s, fc->c, exp(ln_u), fc->u_l, fc->f))
+		return INFINITY; /* treated as above flooding, as the cold solve does */
+	return stich_resid(&s, stich_flood_t_w(&s, fc->ln_t));
+}
+
+double packed_stichlmair_flood_ms_warm(const struct packing_constants *c, double u_l_ms,
+				       const struct fluid_state *f, struct fg_extrap *x,
+				       struct solve_warm *w)
+{
+	assert(c != NULL);
+	assert(f != NULL);
+	if (w != NULL && nonneg_finite(u_l_ms) && u_l_ms > 0.0 && fluids_ok(f) &&
+	    has_stichlmair(c)) {
+		struct flood_ctx fc = {.c = c, .f = f, .u_l = u_l_ms, .ln_t = &w->stich_flood_ln_t};
+		double root;
+		if (solve_near(flood_resid_ln, &fc, log(FLOOD_U_LO_MS), log(FLOOD_U_HI_MS), true,
+			       w->stich_flood_ln_u, 1e-3, SOLVE_TOL_LN, &root, NULL)) {
+			w->stich_flood_ln_u = root;
+			return exp(root);
+		}
+	}
+	double u = packed_stichlmair_flood_ms(c, u_l_ms, f, x);
+	if (w != NULL)
+		w->stich_flood_ln_u = isfinite(u) && u > 0.0 ? log(u) : NAN;
+	return u;
 }
 
 double packed_stichlmair_flood_ms(const struct packing_constants *c, double u_l_ms,
@@ -373,8 +471,29 @@ double packed_bs_loading_ms(const struct packing_constants *c, double u_l_ms,
 /* Flood-point holdup (from memory): h^3 (3 h - eps) = (6/g) a^2 eps
  * (mu_l/rho_l) u_l, the liquid velocity at flooding being the current one.
  * The left side rises from 0 at h = eps/3 to 2 eps^4 at h = eps. */
+static double bs_flood_poly(double h, const void *ctx)
+{
+	const double *k = ctx; /* eps, rhs */
+	return h * h * h * (3.0 * h - k[0]) - k[1];
+}
+
+static double bs_flood_holdup_w(const struct packing_constants *c, double u_l_ms,
+				const struct fluid_state *f, struct fg_extrap *x,
+				struct solve_warm *w);
+
 double packed_bs_flood_holdup(const struct packing_constants *c, double u_l_ms,
 			      const struct fluid_state *f, struct fg_extrap *x)
+{
+	return bs_flood_holdup_w(c, u_l_ms, f, x, NULL);
+}
+
+/* Absolute tolerance of the warm flood-holdup solve: holdups are 0.01..1,
+ * so 1e-14 is better than 1e-12 relative. */
+#define BS_H_TOL 1e-14
+
+static double bs_flood_holdup_w(const struct packing_constants *c, double u_l_ms,
+				const struct fluid_state *f, struct fg_extrap *x,
+				struct solve_warm *w)
 {
 	assert(c != NULL);
 	assert(f != NULL);
@@ -391,6 +510,12 @@ double packed_bs_flood_holdup(const struct packing_constants *c, double u_l_ms,
 		return NAN;
 	}
 	double lo = eps / 3.0, hi = eps;
+	double k[2] = {eps, rhs}, root;
+	if (w != NULL && solve_near(bs_flood_poly, k, lo, hi, true, w->bs_flood_h, 1e-6, BS_H_TOL,
+				    &root, NULL)) {
+		w->bs_flood_h = root;
+		return root;
+	}
 	for (int i = 0; i < BISECT_MAX && hi - lo > 1e-16; i++) {
 		double mid = 0.5 * (lo + hi);
 		if (mid * mid * mid * (3.0 * mid - eps) < rhs)
@@ -398,6 +523,8 @@ double packed_bs_flood_holdup(const struct packing_constants *c, double u_l_ms,
 		else
 			hi = mid;
 	}
+	if (w != NULL)
+		w->bs_flood_h = 0.5 * (lo + hi);
 	return 0.5 * (lo + hi);
 }
 
@@ -406,8 +533,17 @@ double packed_bs_flood_holdup(const struct packing_constants *c, double u_l_ms,
  *   sqrt(g/psi_Fl) = C_Fl X^n_Fl,  X = (L/V) sqrt(rho_g/rho_l) (mu_l/mu_g)^0.2,
  *   n_Fl = -0.194 with C_Fl for a flow parameter <= 0.4; n_Fl = -0.708 with
  *   0.6244 C_Fl (mu_l/mu_g)^0.1028 above it. */
+static double bs_flood_ms_w(const struct packing_constants *c, double u_l_ms,
+			    const struct fluid_state *f, struct fg_extrap *x, struct solve_warm *w);
+
 double packed_bs_flood_ms(const struct packing_constants *c, double u_l_ms,
 			  const struct fluid_state *f, struct fg_extrap *x)
+{
+	return bs_flood_ms_w(c, u_l_ms, f, x, NULL);
+}
+
+static double bs_flood_ms_w(const struct packing_constants *c, double u_l_ms,
+			    const struct fluid_state *f, struct fg_extrap *x, struct solve_warm *w)
 {
 	assert(c != NULL);
 	assert(f != NULL);
@@ -419,7 +555,7 @@ double packed_bs_flood_ms(const struct packing_constants *c, double u_l_ms,
 	}
 	if (u_l_ms == 0.0)
 		return INFINITY;
-	double h = packed_bs_flood_holdup(c, u_l_ms, f, x);
+	double h = bs_flood_holdup_w(c, u_l_ms, f, x, w);
 	if (isnan(h))
 		return NAN;
 	double eps = c->void_frac;
@@ -436,8 +572,17 @@ double packed_bs_flood_ms(const struct packing_constants *c, double u_l_ms,
  * u_S < u_g <= u_Fl, h_S the pre-loading holdup. At u_g = u_S the added
  * term is (u_S/u_Fl)^13, about 1 % of (h_Fl - h_S) for u_S = 0.7 u_Fl: the
  * small step the paper's form has at the loading point is kept. */
+static double bs_holdup_w(const struct packing_constants *c, double u_g_ms, double u_l_ms,
+			  const struct fluid_state *f, struct fg_extrap *x, struct solve_warm *w);
+
 double packed_bs_holdup(const struct packing_constants *c, double u_g_ms, double u_l_ms,
 			const struct fluid_state *f, struct fg_extrap *x)
+{
+	return bs_holdup_w(c, u_g_ms, u_l_ms, f, x, NULL);
+}
+
+static double bs_holdup_w(const struct packing_constants *c, double u_g_ms, double u_l_ms,
+			  const struct fluid_state *f, struct fg_extrap *x, struct solve_warm *w)
 {
 	assert(c != NULL);
 	assert(f != NULL);
@@ -449,8 +594,8 @@ double packed_bs_holdup(const struct packing_constants *c, double u_g_ms, double
 	double u_s = packed_bs_loading_ms(c, u_l_ms, f, x);
 	if (u_g_ms <= u_s)
 		return h_s;
-	double u_fl = packed_bs_flood_ms(c, u_l_ms, f, x);
-	double h_fl = packed_bs_flood_holdup(c, u_l_ms, f, x);
+	double u_fl = bs_flood_ms_w(c, u_l_ms, f, x, w);
+	double h_fl = bs_flood_holdup_w(c, u_l_ms, f, x, w);
 	if (isnan(u_fl) || isnan(h_fl))
 		return NAN;
 	double ratio = u_g_ms / u_fl;
@@ -531,6 +676,8 @@ struct pe {
 	double u_g, u_l;          /* superficial velocities, m/s */
 	double gas_flux, liq_flux;/* mass fluxes, kg/(s m2) */
 	double area_m2, height_m;
+	struct solve_warm *w;     /* warm-start memory, NULL for a cold evaluation */
+	double stich_holdup;      /* Stichlmair irrigated holdup of eval_dp, NAN if none */
 };
 
 static bool has_bs_flood(const struct packing_constants *c)
@@ -561,8 +708,8 @@ static void eval_flood(struct pe *e, const struct section_geom *g, struct sectio
 		note_missing(e, r, "packed: no flood constants (Stichlmair C1..C3 or C_Fl)");
 		return;
 	}
-	double u_fl = stich ? packed_stichlmair_flood_ms(e->c, e->u_l, e->f, &r->extrap)
-			    : packed_bs_flood_ms(e->c, e->u_l, e->f, &r->extrap);
+	double u_fl = stich ? packed_stichlmair_flood_ms_warm(e->c, e->u_l, e->f, &r->extrap, e->w)
+			    : bs_flood_ms_w(e->c, e->u_l, e->f, &r->extrap, e->w);
 	if (isnan(u_fl) || u_fl <= 0.0)
 		return;
 	/* A dry bed (u_fl infinite) cannot flood: 0 %. */
@@ -591,7 +738,8 @@ static void eval_dp(struct pe *e, struct section_result *r)
 {
 	double pam = NAN;
 	if (has_stichlmair(e->c)) {
-		pam = packed_stichlmair_wet_pam(e->c, e->u_g, e->u_l, e->f, NULL, &r->extrap);
+		pam = packed_stichlmair_wet_pam_warm(e->c, e->u_g, e->u_l, e->f, &e->stich_holdup,
+						     &r->extrap, e->w);
 	} else if (pos_finite(e->c->dry_factor_1pm)) {
 		pam = packed_robbins_pam(e->c->dry_factor_1pm, e->gas_flux, e->liq_flux,
 					 e->f->rho_g_kgm3, e->f->rho_l_kgm3, e->f->mu_l_pas,
@@ -624,13 +772,14 @@ static void eval_holdup(struct pe *e, struct section_result *r)
 	double h = NAN;
 	if (has_geometry(c) && pos_finite(c->billet_ch)) {
 		if (pos_finite(c->billet_cs) && pos_finite(c->billet_cfl)) {
-			h = packed_bs_holdup(c, e->u_g, e->u_l, e->f, &r->extrap);
+			h = bs_holdup_w(c, e->u_g, e->u_l, e->f, &r->extrap, e->w);
 		} else {
 			note_missing(e, r, "packed: C_S or C_Fl missing, pre-loading holdup only");
 			h = packed_bs_holdup_preload(c, e->u_l, e->f, &r->extrap);
 		}
 	} else if (has_stichlmair(c)) {
-		(void)packed_stichlmair_wet_pam(c, e->u_g, e->u_l, e->f, &h, &r->extrap);
+		/* eval_dp solved the same point (and noted its range problems). */
+		h = e->stich_holdup;
 	} else {
 		note_missing(e, r, "packed: no holdup constants (C_h or Stichlmair C1..C3)");
 	}
@@ -648,6 +797,13 @@ static bool eval_inputs_ok(const struct section_geom *g, const struct fluid_stat
 void packed_eval(const struct section_geom *g, const struct fluid_state *f,
 		 const struct section_point *p, struct section_result *r)
 {
+	packed_eval_warm(g, f, p, r, NULL);
+}
+
+void packed_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		      const struct section_point *p, struct section_result *r,
+		      struct solve_warm *w)
+{
 	assert(g != NULL);
 	assert(f != NULL);
 	assert(p != NULL);
@@ -663,7 +819,7 @@ void packed_eval(const struct section_geom *g, const struct fluid_state *f,
 		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
 		return;
 	}
-	struct pe e = {.c = &g->packed.c, .f = f};
+	struct pe e = {.c = &g->packed.c, .f = f, .w = w, .stich_holdup = NAN};
 	/* The tower cross-section, computed here so this file needs only the
 	 * geometry (section_area_m2 gives the same pi d^2/4). */
 	e.area_m2 = section_area_m2(g);

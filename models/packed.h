@@ -45,11 +45,23 @@ double packed_stichlmair_wet_pam(const struct packing_constants *c, double u_g_m
 				 double u_l_ms, const struct fluid_state *f, double *holdup,
 				 struct fg_extrap *x);
 
+/* The same, warm-started from w (see solve.h); w NULL is the cold solve.
+ * Agrees with packed_stichlmair_wet_pam to 1e-9 relative. */
+double packed_stichlmair_wet_pam_warm(const struct packing_constants *c, double u_g_ms,
+				      double u_l_ms, const struct fluid_state *f, double *holdup,
+				      struct fg_extrap *x, struct solve_warm *w);
+
 /* Stichlmair et al. (1989): gas velocity at flooding, m/s, at liquid
  * velocity u_l_ms. INFINITY for zero liquid (a dry bed does not flood in
  * this model). NAN, noted, when no flood point lies in 1e-6..1e3 m/s. */
 double packed_stichlmair_flood_ms(const struct packing_constants *c, double u_l_ms,
 				  const struct fluid_state *f, struct fg_extrap *x);
+
+/* The same, warm-started from w (see solve.h); w NULL is the cold solve.
+ * Agrees with packed_stichlmair_flood_ms to 1e-9 relative. */
+double packed_stichlmair_flood_ms_warm(const struct packing_constants *c, double u_l_ms,
+				       const struct fluid_state *f, struct fg_extrap *x,
+				       struct solve_warm *w);
 
 /* Billet & Schultes (1999): liquid holdup below the loading point, -.
  * Needs a, epsilon, C_h. 0 for zero liquid. */

@@ -160,6 +160,13 @@ bool section_type_has_field(enum section_type t, int field)
 void section_eval(const struct section_geom *g, const struct section_props *props,
 		  const struct section_point *p, struct section_result *r)
 {
+	section_eval_warm(g, props, p, r, NULL);
+}
+
+void section_eval_warm(const struct section_geom *g, const struct section_props *props,
+		       const struct section_point *p, struct section_result *r,
+		       struct solve_warm *w)
+{
 	assert(g != NULL);
 	assert(props != NULL);
 	assert(p != NULL);
@@ -185,10 +192,10 @@ void section_eval(const struct section_geom *g, const struct section_props *prop
 		return;
 	}
 	switch (g->type) {
-	case SECTION_TRAY: tray_eval(g, &f, &q, r); break;
-	case SECTION_PACKED: packed_eval(g, &f, &q, r); break;
-	case SECTION_SPRAY: spray_eval(g, &f, &q, r); break;
-	case SECTION_BUBBLE: bubble_eval(g, &f, &q, r); break;
+	case SECTION_TRAY: tray_eval_warm(g, &f, &q, r, w); break;
+	case SECTION_PACKED: packed_eval_warm(g, &f, &q, r, w); break;
+	case SECTION_SPRAY: spray_eval_warm(g, &f, &q, r, w); break;
+	case SECTION_BUBBLE: bubble_eval_warm(g, &f, &q, r, w); break;
 	case SECTION_PACKED_BUBBLE: packed_bubble_eval(g, &f, &q, r); break;
 	case SECTION_STIRRED: stirred_eval(g, &f, &q, r); break;
 	case SECTION_LOOP: loop_eval(g, &f, &q, r); break;
@@ -219,4 +226,9 @@ void section_fuse(struct section_result *r, double trend_pct)
 	}
 	r->v[RF_FLOOD_INDEX] = best;
 	r->basis = isfinite(best) ? basis : FLOOD_BASIS_NONE;
+}
+
+bool section_regime_applies(enum section_type t)
+{
+	return t == SECTION_BUBBLE || t == SECTION_PACKED_BUBBLE;
 }

@@ -20,6 +20,7 @@
 
 #include "fg_limits.h"
 #include "fg_result.h"
+#include "solve.h"
 
 enum section_type {
 	SECTION_TRAY,
@@ -191,6 +192,13 @@ bool section_type_has_field(enum section_type t, int field);
 void section_eval(const struct section_geom *g, const struct section_props *props,
 		  const struct section_point *p, struct section_result *r);
 
+/* The same, with the iterative solves warm-started from w and w updated
+ * (solve.h): what the engine calls once per sample. w NULL is
+ * section_eval. Agrees with section_eval to 1e-9 relative. */
+void section_eval_warm(const struct section_geom *g, const struct section_props *props,
+		       const struct section_point *p, struct section_result *r,
+		       struct solve_warm *w);
+
 /* Resolves the property tables at temperature t_k (NAN: first point used).
  * Notes a table extrapolation in x. */
 void section_fluids(const struct section_props *props, double t_k, double rho_g_kgm3,
@@ -205,6 +213,9 @@ double prop_table_at(const struct prop_table *t, double t_k, struct fg_extrap *x
  * what drove it. The type evaluators set r->basis for flood_pct; this keeps
  * that basis when flood_pct is the largest. */
 void section_fuse(struct section_result *r, double trend_pct);
+
+/* Does the bubble-column regime apply to type t? */
+bool section_regime_applies(enum section_type t);
 
 /* Tower cross-section, m2. */
 double section_area_m2(const struct section_geom *g);
@@ -228,5 +239,19 @@ void stirred_eval(const struct section_geom *g, const struct fluid_state *f,
 		  const struct section_point *p, struct section_result *r);
 void loop_eval(const struct section_geom *g, const struct fluid_state *f,
 	       const struct section_point *p, struct section_result *r);
+
+/* The same with the section's warm-start memory w (solve.h; NULL: cold). */
+void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		    const struct section_point *p, struct section_result *r,
+		    struct solve_warm *w);
+void packed_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		      const struct section_point *p, struct section_result *r,
+		      struct solve_warm *w);
+void spray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		     const struct section_point *p, struct section_result *r,
+		     struct solve_warm *w);
+void bubble_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		      const struct section_point *p, struct section_result *r,
+		      struct solve_warm *w);
 
 #endif

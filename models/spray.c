@@ -2,11 +2,13 @@
  * spray.c - spray-tower hydraulics (see spray.h for the model and sources).
  *
  * Both root problems are solved the same way: a fixed number of bisection
- * steps on ln Re between RE_LO and RE_HI. The two functions bisected,
- * Cd Re^2 and Re / Cd, rise monotonically with Re over the subcritical
- * drag curve, so the bracket always holds the single root; 64 halvings of a
- * ln-width of 48 leave ~3e-18 relative, below double precision. A fixed
- * count keeps the per-sample cost bounded and the result deterministic.
+ * steps on ln Re inside one piece of the drag table. The two functions
+ * bisected, Cd Re^2 and Re / Cd, rise with Re within each piece, but drop a
+ * little where the pieces meet, so the answer is defined as the first Re
+ * that reaches the target (see solve_re); 64 halvings of a ln-width of at
+ * most 48 leave ~3e-18 relative, below double precision. A fixed count
+ * keeps the per-sample cost bounded and the result deterministic. The warm
+ * variants (spray.h) find the same first crossing from the last answer.
  */
 #include "spray.h"
 
@@ -15,59 +17,135 @@
 #include <stdbool.h>
 
 #include "section.h"
+#include "solve.h"
 
 #define RE_LO 1.0e-12
 #define RE_HI 1.0e9
 #define BISECT_STEPS 64
 
+/* The pieces of the drag curve: piece k holds for PIECE_LO[k] <= Re <
+ * PIECE_LO[k + 1]. */
+#define PIECE_COUNT 7
+static const double PIECE_LO[PIECE_COUNT + 1] = {0.0, 0.01, 20.0, 260.0, 1500.0, 1.2e4, 4.4e4,
+						 INFINITY};
+
+static int piece_of(double re)
+{
+	int k = 0;
+	while (k < PIECE_COUNT - 1 && re >= PIECE_LO[k + 1])
+		k++;
+	return k;
+}
+
+/* Clift, Grace & Weber (1978) Table 5.2, piece k at Re (w = log10 Re). */
+static double cd_piece(int k, double re)
+{
+	double w = log10(re);
+	switch (k) {
+	case 0: return 24.0 / re + 3.0 / 16.0;
+	case 1: return 24.0 / re * (1.0 + 0.1315 * pow(re, 0.82 - 0.05 * w));
+	case 2: return 24.0 / re * (1.0 + 0.1935 * pow(re, 0.6305));
+	case 3: return pow(10.0, 1.6435 - 1.1242 * w + 0.1558 * w * w);
+	case 4: return pow(10.0, -2.4571 + 2.5558 * w - 0.9295 * w * w + 0.1049 * w * w * w);
+	case 5: return pow(10.0, -1.9181 + 0.6370 * w - 0.0636 * w * w);
+	default: return pow(10.0, -4.3390 + 1.5809 * w - 0.1546 * w * w);
+	}
+}
+
 double spray_drag_coefficient(double re)
 {
 	if (!(re > 0.0) || !isfinite(re))
 		return NAN;
-	double w = log10(re);
-	/* Clift, Grace & Weber (1978) Table 5.2, piece by piece. */
-	if (re < 0.01)
-		return 24.0 / re + 3.0 / 16.0;
-	if (re < 20.0)
-		return 24.0 / re * (1.0 + 0.1315 * pow(re, 0.82 - 0.05 * w));
-	if (re < 260.0)
-		return 24.0 / re * (1.0 + 0.1935 * pow(re, 0.6305));
-	if (re < 1500.0)
-		return pow(10.0, 1.6435 - 1.1242 * w + 0.1558 * w * w);
-	if (re < 1.2e4)
-		return pow(10.0, -2.4571 + 2.5558 * w - 0.9295 * w * w + 0.1049 * w * w * w);
-	if (re < 4.4e4)
-		return pow(10.0, -1.9181 + 0.6370 * w - 0.0636 * w * w);
-	return pow(10.0, -4.3390 + 1.5809 * w - 0.1546 * w * w);
+	return cd_piece(piece_of(re), re);
 }
 
-/* ln(Cd Re^2) or ln(Re / Cd): both rise with Re. */
-static double force_group_ln(double re, bool per_cd)
+/* ln(Cd Re^2) or ln(Re / Cd) with piece k's drag: both rise with Re. */
+static double group_ln(int k, double re, bool per_cd)
 {
 	assert(re > 0.0);
-	double cd = spray_drag_coefficient(re);
+	double cd = cd_piece(k, re);
 	assert(cd > 0.0);
 	return per_cd ? log(re / cd) : log(cd * re * re);
 }
 
-/* Re at which the chosen group equals exp(target_ln), by bisection on ln Re. */
+struct group_target {
+	double ln;
+	bool per_cd;
+	int piece;
+};
+
+static double group_resid(double ln_re, const void *ctx)
+{
+	const struct group_target *g = ctx;
+	return group_ln(g->piece, exp(ln_re), g->per_cd) - g->ln;
+}
+
+/* The ends of the search in piece k, ln Re. */
+static double piece_ln_lo(int k)
+{
+	return k == 0 ? log(RE_LO) : log(PIECE_LO[k]);
+}
+
+static double piece_ln_hi(int k)
+{
+	return k == PIECE_COUNT - 1 ? log(RE_HI) : log(PIECE_LO[k + 1]);
+}
+
+/*
+ * Re at which the chosen group equals exp(target_ln): the smallest Re where
+ * the group reaches the target. The table's pieces do not join exactly (the
+ * group drops by up to 0.75 % at Re = 20), so near a joint the target can be
+ * met two or three times; taking the first makes the answer one number, the
+ * same for the cold and the warm solve. Each piece is continuous and rising:
+ * the first piece whose upper end reaches the target holds the answer, at
+ * its lower joint when the target fell in the drop, else by bisection on
+ * ln Re inside it.
+ */
 static double solve_re(double target_ln, bool per_cd)
 {
 	assert(isfinite(target_ln));
-	double lo = log(RE_LO);
-	double hi = log(RE_HI);
-	if (force_group_ln(RE_LO, per_cd) >= target_ln)
+	if (group_ln(0, RE_LO, per_cd) >= target_ln)
 		return RE_LO;
-	if (force_group_ln(RE_HI, per_cd) <= target_ln)
+	int k = 0;
+	while (k < PIECE_COUNT - 1 && group_ln(k, PIECE_LO[k + 1], per_cd) < target_ln)
+		k++;
+	if (k == PIECE_COUNT - 1 && group_ln(k, RE_HI, per_cd) <= target_ln)
 		return RE_HI;
+	if (k > 0 && group_ln(k, PIECE_LO[k], per_cd) >= target_ln)
+		return PIECE_LO[k];
+	double lo = piece_ln_lo(k), hi = piece_ln_hi(k);
 	for (int i = 0; i < BISECT_STEPS; i++) {
 		double mid = 0.5 * (lo + hi);
-		if (force_group_ln(exp(mid), per_cd) < target_ln)
+		if (group_ln(k, exp(mid), per_cd) < target_ln)
 			lo = mid;
 		else
 			hi = mid;
 	}
 	return exp(0.5 * (lo + hi));
+}
+
+/* solve_re from the guess *ln_re (updated), cold when ln_re is NULL or the
+ * guess brackets nothing. The warm solve stays inside the guess's piece and
+ * is accepted only when the piece below does not reach the target already
+ * (so it is the first crossing, as solve_re defines it). */
+static double solve_re_w(double target_ln, bool per_cd, double *ln_re)
+{
+	if (ln_re != NULL && isfinite(*ln_re) && *ln_re > log(RE_LO) && *ln_re < log(RE_HI)) {
+		int k = piece_of(exp(*ln_re));
+		struct group_target gt = {.ln = target_ln, .per_cd = per_cd, .piece = k};
+		double root, lo = piece_ln_lo(k), hi = piece_ln_hi(k);
+		double guess = fmin(fmax(*ln_re, lo), hi);
+		bool first = k == 0 || group_ln(k - 1, PIECE_LO[k], per_cd) < target_ln;
+		if (first && solve_near(group_resid, &gt, lo, hi, true, guess, 1e-3, SOLVE_TOL_LN,
+					&root, NULL)) {
+			*ln_re = root;
+			return exp(root);
+		}
+	}
+	double re = solve_re(target_ln, per_cd);
+	if (ln_re != NULL)
+		*ln_re = log(re);
+	return re;
 }
 
 static bool positive(double v)
@@ -78,13 +156,19 @@ static bool positive(double v)
 double spray_terminal_velocity_ms(double d_m, double rho_l_kgm3, double rho_g_kgm3,
 				  double mu_g_pas, struct fg_extrap *x)
 {
+	return spray_terminal_velocity_ms_warm(d_m, rho_l_kgm3, rho_g_kgm3, mu_g_pas, x, NULL);
+}
+
+double spray_terminal_velocity_ms_warm(double d_m, double rho_l_kgm3, double rho_g_kgm3,
+				       double mu_g_pas, struct fg_extrap *x, double *ln_re)
+{
 	if (!positive(d_m) || !positive(rho_l_kgm3) || !positive(rho_g_kgm3) ||
 	    !positive(mu_g_pas) || !(rho_l_kgm3 > rho_g_kgm3))
 		return NAN;
 	/* Archimedes number; the force balance is Cd Re^2 = 4/3 Ar. */
 	double ar = rho_g_kgm3 * (rho_l_kgm3 - rho_g_kgm3) * SPRAY_G_MS2 * d_m * d_m * d_m /
 		    (mu_g_pas * mu_g_pas);
-	double re = solve_re(log(4.0 / 3.0 * ar), false);
+	double re = solve_re_w(log(4.0 / 3.0 * ar), false, ln_re);
 	if (re > SPRAY_RE_MAX)
 		fg_extrap_note(x, "spray: droplet Reynolds number above 3.38e5 (drag crisis)");
 	return re * mu_g_pas / (rho_g_kgm3 * d_m);
@@ -93,6 +177,12 @@ double spray_terminal_velocity_ms(double d_m, double rho_l_kgm3, double rho_g_kg
 double spray_critical_droplet_m(double ug_ms, double rho_l_kgm3, double rho_g_kgm3,
 				double mu_g_pas, struct fg_extrap *x)
 {
+	return spray_critical_droplet_m_warm(ug_ms, rho_l_kgm3, rho_g_kgm3, mu_g_pas, x, NULL);
+}
+
+double spray_critical_droplet_m_warm(double ug_ms, double rho_l_kgm3, double rho_g_kgm3,
+				     double mu_g_pas, struct fg_extrap *x, double *ln_re)
+{
 	if (!isfinite(ug_ms) || ug_ms < 0.0 || !positive(rho_l_kgm3) || !positive(rho_g_kgm3) ||
 	    !positive(mu_g_pas) || !(rho_l_kgm3 > rho_g_kgm3))
 		return NAN;
@@ -100,7 +190,7 @@ double spray_critical_droplet_m(double ug_ms, double rho_l_kgm3, double rho_g_kg
 		return 0.0;
 	double k = 3.0 * rho_g_kgm3 * rho_g_kgm3 * ug_ms * ug_ms * ug_ms /
 		   (4.0 * mu_g_pas * SPRAY_G_MS2 * (rho_l_kgm3 - rho_g_kgm3));
-	double re = solve_re(log(k), true);
+	double re = solve_re_w(log(k), true, ln_re);
 	if (re > SPRAY_RE_MAX)
 		fg_extrap_note(x, "spray: droplet Reynolds number above 3.38e5 (drag crisis)");
 	return re * mu_g_pas / (rho_g_kgm3 * ug_ms);
@@ -161,6 +251,13 @@ static void note_deformation(const struct spray_geom *s, const struct fluid_stat
 void spray_eval(const struct section_geom *g, const struct fluid_state *f,
 		const struct section_point *p, struct section_result *r)
 {
+	spray_eval_warm(g, f, p, r, NULL);
+}
+
+void spray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		     const struct section_point *p, struct section_result *r,
+		     struct solve_warm *w)
+{
 	assert(g != NULL);
 	assert(f != NULL);
 	assert(p != NULL);
@@ -171,13 +268,14 @@ void spray_eval(const struct section_geom *g, const struct fluid_state *f,
 		return;
 	}
 	const struct spray_geom *s = &g->spray;
-	double vt = spray_terminal_velocity_ms(s->design_droplet_m, f->rho_l_kgm3, f->rho_g_kgm3,
-					       f->mu_g_pas, &r->extrap);
+	double vt = spray_terminal_velocity_ms_warm(s->design_droplet_m, f->rho_l_kgm3,
+						    f->rho_g_kgm3, f->mu_g_pas, &r->extrap,
+						    w != NULL ? &w->spray_vt_ln_re : NULL);
 	note_deformation(s, f, &r->extrap);
 	r->v[RF_FLOOD_PCT] = spray_approach_pct(ug, vt);
 	r->basis = FLOOD_BASIS_DROPLET;
-	double dc = spray_critical_droplet_m(ug, f->rho_l_kgm3, f->rho_g_kgm3, f->mu_g_pas,
-					     &r->extrap);
+	double dc = spray_critical_droplet_m_warm(ug, f->rho_l_kgm3, f->rho_g_kgm3, f->mu_g_pas,
+						  &r->extrap, w != NULL ? &w->spray_crit_ln_re : NULL);
 	r->v[RF_CARRYOVER_FRAC] = spray_rosin_rammler_finer(dc, s->design_droplet_m,
 							   s->droplet_spread);
 	/* Liquid in flight needs the liquid rate; section_eval guarantees it,

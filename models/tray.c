@@ -24,6 +24,8 @@
 #include <math.h>
 #include <stdbool.h>
 
+#include "solve.h"
+
 /* --- Extrapolation reasons (static strings, see fg_extrap_note) --- */
 static const char WHY_FAIR_FLV[] = "tray: flow parameter outside Fair chart 0.01..1.0";
 static const char WHY_FAIR_TS[] = "tray: tray spacing outside Fair chart 0.15..0.91 m";
@@ -514,6 +516,42 @@ static double flood_gas_kgs(const struct section_geom *g, const struct fluid_sta
 	return 0.5 * (lo + hi);
 }
 
+struct jet_ctx {
+	const struct section_geom *g;
+	const struct fluid_state *f;
+	const struct areas *a;
+	double liq_kgs;
+};
+
+static double jet_resid_ln(double ln_gas, const void *ctx)
+{
+	const struct jet_ctx *j = ctx;
+	return jet_pct_at(j->g, j->f, j->a, exp(ln_gas), j->liq_kgs, NULL) - 100.0;
+}
+
+/* flood_gas_kgs from the guess *ln_gas (updated), warm-started by solve.h's
+ * bracketed Brent solve on ln G to 1e-13 relative; the cold doubling and
+ * bisection when ln_gas is NULL or the guess brackets nothing. */
+static double flood_gas_kgs_w(const struct section_geom *g, const struct fluid_state *f,
+			      const struct areas *a, double liq_kgs, double *ln_gas)
+{
+	if (ln_gas != NULL) {
+		struct jet_ctx j = {.g = g, .f = f, .a = a, .liq_kgs = liq_kgs};
+		double root;
+		/* The bounds are never reached from a guess (12 doubling steps
+		 * from 1e-3 span a factor of e^8). */
+		if (solve_near(jet_resid_ln, &j, log(1e-12), log(1e12), true, *ln_gas, 1e-3,
+			       SOLVE_TOL_LN, &root, NULL)) {
+			*ln_gas = root;
+			return exp(root);
+		}
+	}
+	double gf = flood_gas_kgs(g, f, a, liq_kgs);
+	if (ln_gas != NULL)
+		*ln_gas = isfinite(gf) && gf > 0.0 ? log(gf) : NAN;
+	return gf;
+}
+
 static bool inputs_ok(const struct section_geom *g, const struct fluid_state *f,
 		      const struct section_point *p)
 {
@@ -571,6 +609,13 @@ static void check_finite(struct section_result *r)
 void tray_eval(const struct section_geom *g, const struct fluid_state *f,
 	       const struct section_point *p, struct section_result *r)
 {
+	tray_eval_warm(g, f, p, r, NULL);
+}
+
+void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+		    const struct section_point *p, struct section_result *r,
+		    struct solve_warm *w)
+{
 	assert(g != NULL);
 	assert(f != NULL);
 	assert(p != NULL);
@@ -604,7 +649,8 @@ void tray_eval(const struct section_geom *g, const struct fluid_state *f,
 		 * one, so they go to a scratch record and are dropped. */
 		struct hyd hf;
 		struct fg_extrap flood_notes = {0, NULL};
-		double gf = flood_gas_kgs(g, f, &a, p->liquid_kgs);
+		double gf = flood_gas_kgs_w(g, f, &a, p->liquid_kgs,
+					    w != NULL ? &w->tray_flood_ln_gas : NULL);
 		if (isfinite(gf)) {
 			hydraulics(g, f, &a, gf, p->liquid_kgs, &hf, &flood_notes);
 			r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / trays) / hf.dp_pa;

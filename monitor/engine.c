@@ -28,6 +28,7 @@ int engine_init(struct engine *e, const struct fg_config *cfg)
 		e->sec[i].r.quality = FG_QUALITY_BAD;
 		e->sec[i].diag_tag = -1;
 		e->sec[i].in_service = true;
+		solve_warm_clear(&e->sec[i].warm);
 	}
 	for (unsigned i = 0; i < cfg->alarm_count; i++)
 		alarm_init(&e->alarms[i], &cfg->alarms[i], i);
@@ -109,7 +110,7 @@ static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 	double sig[SIGNAL_COUNT];
 	enum fg_quality q = gather(e, si, sig);
 	point_from_si(s, e->cfg, sig, &es->point);
-	section_eval(&s->geom, &s->props, &es->point, &es->r);
+	section_eval_warm(&s->geom, &s->props, &es->point, &es->r, &es->warm);
 	fg_quality_raise(&es->r.quality, q);
 	/* Without a good gas flow nobody knows whether the section runs: keep
 	 * the last verdict rather than call a dead transmitter "shut down". */

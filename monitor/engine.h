@@ -32,6 +32,7 @@ struct engine_section {
 	bool in_service;             /* gas load at or above in_service_gas_kgs */
 	const char *diag_reason;     /* first bad/frozen input reason, NULL when healthy */
 	int diag_tag;                /* the tag behind diag_reason, -1 when none */
+	struct solve_warm warm;      /* last answers of the section's solves (warm starts) */
 };
 
 struct engine {

@@ -4,9 +4,12 @@
  * Machine files (results.csv, events.jsonl, summary.json, --json output) keep
  * every bit of a double: numfmt_full writes the shortest of %.15g, %.16g and
  * %.17g that reads back to the same double, so 0.1 stays "0.1" and 1/3 keeps the 16
- * digits it needs. What a person reads (tables, the live view, the report, the
- * printed summary) is rounded to a sensible precision by the caller, and
- * durations are written as h:mm:ss by numfmt_duration.
+ * digits it needs. Values from about 3.8e-6 to 1e14 take an exact
+ * printf-free path (128-bit integers, see numfmt.c) that gives the same
+ * text several times faster; a replay writes millions of them. What a
+ * person reads (tables, the live view, the report, the printed summary) is
+ * rounded to a sensible precision by the caller, and durations are written
+ * as h:mm:ss by numfmt_duration.
  */
 #ifndef NUMFMT_H
 #define NUMFMT_H
@@ -22,6 +25,10 @@
  * "0". v must be finite (callers write NaN as an empty field or null).
  * Returns the length written. */
 int numfmt_full(double v, char *buf, size_t buf_size);
+
+/* The same text by printf alone (%.15g, %.16g, %.17g and strtod): the
+ * definition numfmt_full's printf-free fast path is tested against. */
+int numfmt_full_printf(double v, char *buf, size_t buf_size);
 
 /* Writes v for a person to read: a percentage (unit "%") to 0.1, anything
  * else to 4 significant figures (%.4g: 1235, 3.457, 0.04231), "-" when not

@@ -6,7 +6,10 @@
 #include <stddef.h>
 
 #include <cmocka.h>
+#include <float.h>
 #include <math.h>
+#include <stdint.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -66,12 +69,102 @@ static void test_duration_is_h_mm_ss(void **state)
 	assert_string_equal(b, "-");
 }
 
+/* ---- the printf-free path of numfmt_full ------------------------------
+ * It must give exactly the text of the printf definition
+ * (numfmt_full_printf: the shortest of %.15g..%.17g that glibc's strtod
+ * reads back), and that text must read back as the same double. */
+
+static uint64_t rng = 0x853c49e6748fea9bu;
+
+static uint64_t next_u64(void)
+{
+	rng ^= rng >> 12;
+	rng ^= rng << 25;
+	rng ^= rng >> 27;
+	return rng * 2685821657736338717u;
+}
+
+static void same_as_printf(double v)
+{
+	char fast[NUMFMT_FULL_SIZE], ref[NUMFMT_FULL_SIZE];
+	int n = numfmt_full(v, fast, sizeof fast);
+	numfmt_full_printf(v, ref, sizeof ref);
+	if (strcmp(fast, ref) != 0)
+		fail_msg("%.17g: fast \"%s\", printf \"%s\"", v, fast, ref);
+	assert_int_equal(n, (int)strlen(fast));
+	if (strtod(fast, NULL) != (v == 0.0 ? 0.0 : v))
+		fail_msg("%.17g: \"%s\" does not read back", v, fast);
+}
+
+static void test_full_fast_path_matches_printf_on_random_bits(void **state)
+{
+	(void)state;
+	for (int i = 0; i < 300000; i++) {
+		uint64_t bits = next_u64();
+		double v;
+		memcpy(&v, &bits, sizeof v);
+		if (isfinite(v))
+			same_as_printf(v);
+	}
+}
+
+static void test_full_fast_path_matches_printf_on_result_sized_values(void **state)
+{
+	(void)state;
+	for (int i = 0; i < 1000000; i++) {
+		double mant = (double)(next_u64() >> 11) * 0x1p-53;
+		double v = mant * pow(10.0, (double)((int)(next_u64() % 24) - 8));
+		same_as_printf(next_u64() & 1 ? v : -v);
+		/* Short decimals, as a historian writes them: 12.5, 0.0725, 2700 */
+		double s = (double)(next_u64() % 1000000) / pow(10.0, (double)(next_u64() % 9));
+		same_as_printf(s);
+		same_as_printf(s / 3.0);
+	}
+}
+
+static void test_full_edge_values_match_printf(void **state)
+{
+	(void)state;
+	for (int e = -323; e <= 308; e++) {
+		char text[32];
+		snprintf(text, sizeof text, "1e%d", e);
+		double v = strtod(text, NULL);
+		same_as_printf(v);
+		same_as_printf(-v);
+		same_as_printf(nextafter(v, 0.0));
+		same_as_printf(nextafter(v, INFINITY));
+	}
+	for (int b = -80; b <= 60; b++) { /* powers of two: the wide-ulp edge */
+		same_as_printf(ldexp(1.0, b));
+		same_as_printf(nextafter(ldexp(1.0, b), 0.0));
+		same_as_printf(nextafter(ldexp(1.0, b), INFINITY));
+	}
+	same_as_printf(DBL_TRUE_MIN);
+	same_as_printf(nextafter(DBL_MIN, 0.0)); /* the largest subnormal */
+	same_as_printf(DBL_MIN);
+	same_as_printf(DBL_MAX);
+	same_as_printf(0.1);
+	same_as_printf(1.0 / 3.0);
+	same_as_printf(9007199254740993.0);
+	same_as_printf(-0.0);
+	char out[NUMFMT_FULL_SIZE];
+	numfmt_full(-0.0, out, sizeof out);
+	assert_string_equal(out, "0");
+	numfmt_full(74.25, out, sizeof out);
+	assert_string_equal(out, "74.25");
+	numfmt_full(1.5e-5, out, sizeof out);
+	assert_string_equal(out, "1.5e-05");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_full_round_trips),
 		cmocka_unit_test(test_human_rounds_percent_to_a_tenth),
 		cmocka_unit_test(test_duration_is_h_mm_ss),
+		cmocka_unit_test(test_full_fast_path_matches_printf_on_random_bits),
+		cmocka_unit_test(test_full_fast_path_matches_printf_on_result_sized_values),
+		cmocka_unit_test(test_full_edge_values_match_printf),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -1,0 +1,144 @@
+/*
+ * solve.c - see solve.h.
+ */
+#include "solve.h"
+
+#include <assert.h>
+#include <float.h>
+#include <math.h>
+#include <stddef.h>
+
+static bool same_sign(double a, double b)
+{
+	return (a > 0.0 && b > 0.0) || (a < 0.0 && b < 0.0);
+}
+
+/* Brent's zero finder in the form of Brent (1973), ch. 4, "zero": b is the
+ * best estimate, a the previous one, c the other end of the bracket. An
+ * infinite f at an end forbids interpolation (bisection instead). */
+double solve_brent(solve_fn f, const void *ctx, double a, double fa, double b, double fb,
+		   double tol, int *evals)
+{
+	assert(f != NULL);
+	assert(tol > 0.0);
+	assert(!same_sign(fa, fb));
+	double c = a, fc = fa, d = b - a, e = d;
+	for (int i = 0; i < SOLVE_BRENT_MAX; i++) {
+		if (same_sign(fb, fc)) {
+			c = a;
+			fc = fa;
+			d = e = b - a;
+		}
+		if (fabs(fc) < fabs(fb)) {
+			a = b;
+			b = c;
+			c = a;
+			fa = fb;
+			fb = fc;
+			fc = fa;
+		}
+		double tol1 = 2.0 * DBL_EPSILON * fabs(b) + 0.5 * tol;
+		double xm = 0.5 * (c - b);
+		if (fabs(xm) <= tol1 || fb == 0.0)
+			return b;
+		bool interp = fabs(e) >= tol1 && fabs(fa) > fabs(fb) && isfinite(fa) &&
+			      isfinite(fc);
+		if (interp) {
+			double s = fb / fa, p, q;
+			if (a == c) {
+				p = 2.0 * xm * s;
+				q = 1.0 - s;
+			} else {
+				double qa = fa / fc, r = fb / fc;
+				p = s * (2.0 * xm * qa * (qa - r) - (b - a) * (r - 1.0));
+				q = (qa - 1.0) * (r - 1.0) * (s - 1.0);
+			}
+			if (p > 0.0)
+				q = -q;
+			p = fabs(p);
+			double m1 = 3.0 * xm * q - fabs(tol1 * q), m2 = fabs(e * q);
+			if (isfinite(p / q) && 2.0 * p < fmin(m1, m2)) {
+				e = d;
+				d = p / q;
+			} else {
+				d = e = xm;
+			}
+		} else {
+			d = e = xm;
+		}
+		a = b;
+		fa = fb;
+		b += fabs(d) > tol1 ? d : copysign(tol1, xm);
+		fb = f(b, ctx);
+		if (evals != NULL)
+			(*evals)++;
+	}
+	return b;
+}
+
+static double eval(solve_fn f, const void *ctx, double x, int *evals)
+{
+	if (evals != NULL)
+		(*evals)++;
+	return f(x, ctx);
+}
+
+bool solve_near(solve_fn f, const void *ctx, double lo, double hi, bool rising, double guess,
+		double step, double tol, double *root, int *evals)
+{
+	assert(f != NULL);
+	assert(lo < hi);
+	assert(step > 0.0);
+	assert(root != NULL);
+	if (!(isfinite(guess) && guess >= lo && guess <= hi))
+		return false;
+	double x0 = guess, f0 = eval(f, ctx, guess, evals);
+	if (f0 == 0.0) {
+		*root = guess;
+		return true;
+	}
+	if (isnan(f0))
+		return false;
+	/* The root is above the guess when f is still below zero there (rising). */
+	bool up = rising ? f0 < 0.0 : f0 > 0.0;
+	for (int k = 0; k < SOLVE_WARM_STEPS; k++) {
+		if ((up && x0 >= hi) || (!up && x0 <= lo))
+			return false;
+		double x1 = up ? fmin(x0 + step, hi) : fmax(x0 - step, lo);
+		double f1 = eval(f, ctx, x1, evals);
+		if (isnan(f1))
+			return false;
+		if (!same_sign(f0, f1)) {
+			*root = up ? solve_brent(f, ctx, x0, f0, x1, f1, tol, evals)
+				   : solve_brent(f, ctx, x1, f1, x0, f0, tol, evals);
+			return true;
+		}
+		x0 = x1;
+		f0 = f1;
+		step *= 2.0;
+	}
+	return false;
+}
+
+double solve_warm(solve_fn f, const void *ctx, double lo, double flo, double hi, double fhi,
+		  bool rising, double guess, double step, double tol, int *evals)
+{
+	double root;
+	if (solve_near(f, ctx, lo, hi, rising, guess, step, tol, &root, evals))
+		return root;
+	return solve_brent(f, ctx, lo, flo, hi, fhi, tol, evals);
+}
+
+void solve_warm_clear(struct solve_warm *w)
+{
+	assert(w != NULL);
+	w->stich_flood_ln_u = NAN;
+	w->stich_flood_ln_t = NAN;
+	w->stich_wet_ln_y = NAN;
+	w->bs_flood_h = NAN;
+	w->tray_flood_ln_gas = NAN;
+	w->spray_vt_ln_re = NAN;
+	w->spray_crit_ln_re = NAN;
+	w->bubble_ay_eps = NAN;
+	w->stich_wet_ln_t = NAN;
+}

@@ -1,0 +1,94 @@
+/*
+ * solve.h - one-dimensional root finding with a warm start, for the solves
+ * on the per-sample path (Stichlmair flood point and irrigated DP,
+ * Billet-Schultes flood holdup, Fair's flood gas rate, droplet terminal
+ * velocity, Akita-Yoshida holdup).
+ *
+ * A monitor evaluates the same section once a second at nearly the same
+ * operating point, so the last answer is an excellent first guess. Each
+ * solve here:
+ *   1. brackets the root near the guess: it evaluates f at the guess, then
+ *      steps away from it towards the sign change, doubling the step, at
+ *      most SOLVE_WARM_STEPS times (never beyond the caller's [lo, hi]);
+ *   2. closes the bracket with Brent's method (R. P. Brent, "Algorithms for
+ *      Minimization without Derivatives", 1973, ch. 4: inverse quadratic
+ *      interpolation and secant steps, bisection whenever those would not
+ *      shrink the bracket fast enough) to an absolute tolerance in x;
+ *   3. falls back to Brent on the whole [lo, hi] when there is no guess
+ *      (NAN: the first sample, or after a failed solve) or no sign change
+ *      was found near it.
+ * Every path is bracketed, so a solve cannot diverge, and it makes at most
+ * SOLVE_WARM_STEPS + 2 + SOLVE_BRENT_MAX evaluations of f.
+ *
+ * Tolerance: callers solve on a logarithm (ln u, ln t, ln Re) with
+ * SOLVE_TOL_LN = 1e-13, i.e. 1e-13 relative in the quantity; the cold
+ * bisections they replace stop at 1e-15..1e-10 relative, so warm and cold
+ * answers agree to about 1e-10 relative at worst, inside the 1e-9 the
+ * replay promises (tests/unit/test_solve.c, test_warm.c).
+ *
+ * Pure C, no allocation, no globals.
+ */
+#ifndef SOLVE_H
+#define SOLVE_H
+
+#include <stdbool.h>
+
+/* Steps out from a warm guess before giving up on it (the step doubles:
+ * 2^12 times the first step reaches any change a sample can bring). */
+#define SOLVE_WARM_STEPS 12
+
+/* Brent iterations: far more than a bracket ever needs (bisection alone
+ * halves a 100-wide log interval to 1e-13 in 50 steps). */
+#define SOLVE_BRENT_MAX 120
+
+/* Absolute tolerance on a logarithm: 1e-13 relative in the quantity. */
+#define SOLVE_TOL_LN 1e-13
+
+/* f(x, ctx). May return +-INFINITY where the model has no value (beyond a
+ * limit); it must be monotone over the bracket. */
+typedef double (*solve_fn)(double x, const void *ctx);
+
+/* Brent's method on [a, b], fa = f(a) and fb = f(b) of opposite signs (or
+ * one of them zero). Returns x within tol of the sign change. Evaluations
+ * are added to *evals when evals is not NULL. */
+double solve_brent(solve_fn f, const void *ctx, double a, double fa, double b, double fb,
+		   double tol, int *evals);
+
+/*
+ * The warm part alone: looks for a sign change of f near guess (steps as
+ * above, f evaluated at lo or hi when a step reaches them) and closes it
+ * with Brent. Returns true with *root, or false (no guess, or no sign change
+ * within SOLVE_WARM_STEPS steps): the caller then solves cold.
+ */
+bool solve_near(solve_fn f, const void *ctx, double lo, double hi, bool rising, double guess,
+		double step, double tol, double *root, int *evals);
+
+/*
+ * Root of f on [lo, hi], f rising with x when rising is true (falling
+ * otherwise), with f(lo) and f(hi) already known to bracket the root
+ * (flo, fhi: the caller evaluated them or knows their signs; pass +-INFINITY
+ * for a known sign). guess is the warm start (NAN for none) and step the
+ * first step away from it. Returns the root to within tol.
+ */
+double solve_warm(solve_fn f, const void *ctx, double lo, double flo, double hi, double fhi,
+		  bool rising, double guess, double step, double tol, int *evals);
+
+/* The warm-start memory of one section: the last answer of each solve, NAN
+ * when there is none (cold). Owned by the engine, one per section; the
+ * models read and update it. */
+struct solve_warm {
+	double stich_flood_ln_u;   /* Stichlmair flood gas velocity, ln(m/s) */
+	double stich_flood_ln_t;   /* Stichlmair flooding condition, ln t */
+	double stich_wet_ln_y;     /* Stichlmair irrigated DP, ln(Pa/m) */
+	double bs_flood_h;         /* Billet-Schultes flood holdup, - */
+	double tray_flood_ln_gas;  /* gas rate at 100 % jet flood, ln(kg/s) */
+	double spray_vt_ln_re;     /* droplet terminal velocity, ln Re */
+	double spray_crit_ln_re;   /* critical (carried-over) droplet, ln Re */
+	double bubble_ay_eps;      /* Akita-Yoshida gas holdup, - */
+	double stich_wet_ln_t;     /* Stichlmair flooding condition at the operating gas rate */
+};
+
+/* Sets every memory to NAN (cold). */
+void solve_warm_clear(struct solve_warm *w);
+
+#endif

@@ -1,0 +1,134 @@
+/*
+ * test_solve.c - the bracketed root finder with a warm start (models/solve.c).
+ *
+ * Check values are closed forms (roots of x^3 - 2, ln x - 1, tanh), so the
+ * tolerances are the solver's own: 1e-13 absolute in x as asked, with
+ * 2 DBL_EPSILON |x| on top (Brent's termination test).
+ */
+#include <float.h>
+#include <math.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+
+#include <cmocka.h>
+
+#include "solve.h"
+
+static double cubic(double x, const void *ctx)
+{
+	(void)ctx;
+	return x * x * x - 2.0;
+}
+
+static double falling_log(double x, const void *ctx)
+{
+	(void)ctx;
+	return 1.0 - log(x);
+}
+
+/* +inf beyond a wall at x = 3, as the Stichlmair residual is past h_T = eps. */
+static double walled(double x, const void *ctx)
+{
+	(void)ctx;
+	return x >= 3.0 ? INFINITY : x - 2.5;
+}
+
+static double shifted_tanh(double x, const void *ctx)
+{
+	return tanh(x - *(const double *)ctx);
+}
+
+static void test_brent_finds_cube_root_of_two(void **state)
+{
+	(void)state;
+	int evals = 0;
+	double r = solve_brent(cubic, NULL, 0.0, -2.0, 3.0, 25.0, 1e-13, &evals);
+	assert_true(fabs(r - cbrt(2.0)) <= 1e-13 + 2 * DBL_EPSILON * 2.0);
+	assert_true(evals < 20); /* superlinear: bisection alone needs 45 */
+}
+
+static void test_brent_bisects_past_an_infinite_end(void **state)
+{
+	(void)state;
+	double r = solve_brent(walled, NULL, 0.0, -2.5, 10.0, INFINITY, 1e-13, NULL);
+	assert_true(fabs(r - 2.5) <= 1e-12);
+}
+
+static void test_warm_start_close_to_root_needs_few_evaluations(void **state)
+{
+	(void)state;
+	int evals = 0;
+	double r = solve_warm(falling_log, NULL, 1e-3, INFINITY, 1e3, -INFINITY, false,
+			      exp(1.0) * 1.0001, 1e-3, 1e-13, &evals);
+	assert_true(fabs(r - exp(1.0)) <= 1e-12);
+	assert_true(evals <= 10);
+}
+
+static void test_warm_start_far_away_falls_back_to_whole_bracket(void **state)
+{
+	(void)state;
+	/* The root is at 40; 12 doubling steps of 1e-3 from 1 reach 1 + 8.2. */
+	double at = 40.0;
+	double r;
+	assert_false(solve_near(shifted_tanh, &at, -100.0, 100.0, true, 1.0, 1e-3, 1e-13, &r,
+				NULL));
+	r = solve_warm(shifted_tanh, &at, -100.0, -1.0, 100.0, 1.0, true, 1.0, 1e-3, 1e-13, NULL);
+	assert_true(fabs(r - 40.0) <= 1e-12);
+}
+
+static void test_no_guess_is_the_cold_solve(void **state)
+{
+	(void)state;
+	double r;
+	assert_false(solve_near(cubic, NULL, 0.0, 3.0, true, NAN, 1e-3, 1e-13, &r, NULL));
+	assert_false(solve_near(cubic, NULL, 0.0, 3.0, true, 7.0, 1e-3, 1e-13, &r, NULL));
+	r = solve_warm(cubic, NULL, 0.0, -2.0, 3.0, 25.0, true, NAN, 1e-3, 1e-13, NULL);
+	assert_true(fabs(r - cbrt(2.0)) <= 1e-12);
+}
+
+static void test_warm_start_steps_towards_the_root_on_both_sides(void **state)
+{
+	(void)state;
+	double at = 0.5, r;
+	assert_true(solve_near(shifted_tanh, &at, -10.0, 10.0, true, 0.45, 1e-3, 1e-13, &r, NULL));
+	assert_true(fabs(r - 0.5) <= 1e-12);
+	assert_true(solve_near(shifted_tanh, &at, -10.0, 10.0, true, 0.55, 1e-3, 1e-13, &r, NULL));
+	assert_true(fabs(r - 0.5) <= 1e-12);
+	/* A guess on the root itself is the answer. */
+	assert_true(solve_near(shifted_tanh, &at, -10.0, 10.0, true, 0.5, 1e-3, 1e-13, &r, NULL));
+	assert_true(r == 0.5);
+}
+
+static void test_warm_clear_sets_every_memory_cold(void **state)
+{
+	(void)state;
+	struct solve_warm w;
+	w.stich_flood_ln_u = 1.0;
+	w.bubble_ay_eps = 0.1;
+	solve_warm_clear(&w);
+	assert_true(isnan(w.stich_flood_ln_u));
+	assert_true(isnan(w.stich_flood_ln_t));
+	assert_true(isnan(w.stich_wet_ln_y));
+	assert_true(isnan(w.stich_wet_ln_t));
+	assert_true(isnan(w.bs_flood_h));
+	assert_true(isnan(w.tray_flood_ln_gas));
+	assert_true(isnan(w.spray_vt_ln_re));
+	assert_true(isnan(w.spray_crit_ln_re));
+	assert_true(isnan(w.bubble_ay_eps));
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_brent_finds_cube_root_of_two),
+		cmocka_unit_test(test_brent_bisects_past_an_infinite_end),
+		cmocka_unit_test(test_warm_start_close_to_root_needs_few_evaluations),
+		cmocka_unit_test(test_warm_start_far_away_falls_back_to_whole_bracket),
+		cmocka_unit_test(test_no_guess_is_the_cold_solve),
+		cmocka_unit_test(test_warm_start_steps_towards_the_root_on_both_sides),
+		cmocka_unit_test(test_warm_clear_sets_every_memory_cold),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
