@@ -7,6 +7,7 @@
  * bounded summary of the series to report.html. Rows the reader had to skip
  * are counted and the first of them reported with their line numbers.
  */
+#include <assert.h>
 #include <errno.h>
 #include <getopt.h>
 #include <math.h>
@@ -17,6 +18,7 @@
 #include <time.h>
 #include <unistd.h>
 
+#include "alarmperf.h"
 #include "commands.h"
 #include "histread.h"
 #include "engine.h"
@@ -30,6 +32,8 @@ struct replay {
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
 	const char *from_text, *to_text;  /* --from/--to as given (read in the zone) */
+	const char *event_text[REPORT_MARKERS_MAX]; /* --event as given */
+	unsigned event_text_count;
 	struct histread_opts hopts;
 	struct fg_config *cfg;
 	struct engine *eng;
@@ -37,23 +41,61 @@ struct replay {
 	FILE *results, *events;
 	struct report rp;
 	struct report_summary sum;
+	struct alarmperf perf;
+	unsigned marker_count;           /* --event, in the order given */
+	struct report_marker markers[REPORT_MARKERS_MAX];
 	uint64_t rows_used, rows_outside;
 	int64_t prev_t_ms;
 	char path_results[FG_PATH_MAX + 32], path_events[FG_PATH_MAX + 32],
-		path_report[FG_PATH_MAX + 32];
+		path_report[FG_PATH_MAX + 32], path_summary[FG_PATH_MAX + 32];
 };
 
 static void replay_usage(FILE *f)
 {
 	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv [--out DIR] [--from T] [--to T]\n"
-		   "                        [--tz ZONE]\n\n"
+		   "                        [--tz ZONE] [--event T[=LABEL]]...\n\n"
 		   "Runs the monitor's engine over recorded data (a historian export, wide:\n"
 		   "a time column and one column per tag, or long: time,tag,value[,status];\n"
 		   "ISO 8601 or epoch seconds, ',' or ';') and writes DIR/results.csv,\n"
-		   "DIR/events.jsonl and DIR/report.html (default DIR: floodgauge-replay).\n"
+		   "DIR/events.jsonl, DIR/summary.json (alarm performance figures) and\n"
+		   "DIR/report.html (default DIR: floodgauge-replay).\n"
 		   "--from/--to limit the rows to a time window (seconds optional).\n"
+		   "--event marks a known moment (e.g. the flood seen by the operators) on\n"
+		   "every chart and gives each alarm's lead time before it; repeat it for\n"
+		   "more (at most %d). Its time is read like --from, in the --tz zone.\n"
 		   HISTREAD_USAGE
-		   "Exit status: 0 ok, 1 output could not be written, 2 bad config or data.\n");
+		   "Exit status: 0 ok, 1 output could not be written, 2 bad config or data.\n",
+		REPORT_MARKERS_MAX);
+}
+
+/* --event T[=LABEL]: the time is the text before the first '=' (ISO 8601
+ * has none), read like --from in the zone of the data. */
+static int parse_event(struct replay *rp, const char *s)
+{
+	assert(rp->marker_count < REPORT_MARKERS_MAX);
+	struct report_marker *m = &rp->markers[rp->marker_count];
+	const char *eq = strchr(s, '=');
+	char t[64], err[512];
+	size_t tlen = eq ? (size_t)(eq - s) : strlen(s);
+	if (tlen >= sizeof(t)) {
+		fprintf(stderr, "floodgauge replay: --event '%s': not a time\n", s);
+		return -EINVAL;
+	}
+	memcpy(t, s, tlen);
+	t[tlen] = '\0';
+	if (histread_time_arg(&rp->hist, "--event", t, &m->t_ms, err, sizeof(err)) != 0) {
+		fprintf(stderr, "floodgauge replay: %s (use --event T or --event T=LABEL)\n", err);
+		return -EINVAL;
+	}
+	const char *label = eq ? eq + 1 : "";
+	if (strlen(label) >= sizeof(m->label)) {
+		fprintf(stderr, "floodgauge replay: --event: label '%s' is longer than %zu "
+				"characters\n", label, sizeof(m->label) - 1);
+		return -EINVAL;
+	}
+	snprintf(m->label, sizeof(m->label), "%s", label);
+	rp->marker_count++;
+	return 0;
 }
 
 /* --from/--to, read once the zone is known (the config may name it). */
@@ -69,6 +111,9 @@ static int window_times(struct replay *rp)
 		fprintf(stderr, "floodgauge replay: %s\n", err);
 		return EXIT_USAGE;
 	}
+	for (unsigned i = 0; i < rp->event_text_count; i++)
+		if (parse_event(rp, rp->event_text[i]) != 0)
+			return EXIT_USAGE;
 	return 0;
 }
 
@@ -78,6 +123,7 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 					     {"out", required_argument, NULL, 'o'},
 					     {"from", required_argument, NULL, 'f'},
 					     {"to", required_argument, NULL, 't'},
+					     {"event", required_argument, NULL, 'e'},
 					     {"help", no_argument, NULL, 'h'},
 					     HISTREAD_LONG_OPTIONS,
 					     {0}};
@@ -89,6 +135,14 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 		case 'o': rp->out_dir = optarg; break;
 		case 'f': rp->from_text = optarg; break;
 		case 't': rp->to_text = optarg; break;
+		case 'e':
+			if (rp->event_text_count >= REPORT_MARKERS_MAX) {
+				fprintf(stderr, "floodgauge replay: --event: at most %d events\n",
+					REPORT_MARKERS_MAX);
+				return EXIT_USAGE;
+			}
+			rp->event_text[rp->event_text_count++] = optarg;
+			break;
 		case 'h': replay_usage(stdout); return -1;
 		default:
 			if (histread_opts_take(&rp->hopts, ch, optarg))
@@ -115,6 +169,7 @@ static int open_outputs(struct replay *rp)
 	snprintf(rp->path_results, sizeof(rp->path_results), "%s/results.csv", rp->out_dir);
 	snprintf(rp->path_events, sizeof(rp->path_events), "%s/events.jsonl", rp->out_dir);
 	snprintf(rp->path_report, sizeof(rp->path_report), "%s/report.html", rp->out_dir);
+	snprintf(rp->path_summary, sizeof(rp->path_summary), "%s/summary.json", rp->out_dir);
 	rp->results = fopen(rp->path_results, "w");
 	rp->events = fopen(rp->path_events, "w");
 	if (rp->results == NULL || rp->events == NULL) {
@@ -144,6 +199,13 @@ static int bind_columns(struct replay *rp)
 	return 0;
 }
 
+static int marker_cmp(const void *a, const void *b)
+{
+	int64_t x = ((const struct report_marker *)a)->t_ms;
+	int64_t y = ((const struct report_marker *)b)->t_ms;
+	return (x > y) - (x < y);
+}
+
 static int report_layout_from(struct replay *rp)
 {
 	static struct report_layout lay;
@@ -168,6 +230,10 @@ static int report_layout_from(struct replay *rp)
 		snprintf(ra->priority, REPORT_WORD_MAX, "%s", alarm_priority_name(a->priority));
 		ra->setpoint = a->kind == ALARM_KIND_DIAGNOSTIC ? NAN : a->setpoint;
 	}
+	qsort(rp->markers, rp->marker_count, sizeof(rp->markers[0]), marker_cmp);
+	lay.marker_count = rp->marker_count;
+	for (unsigned i = 0; i < rp->marker_count; i++)
+		lay.markers[i] = rp->markers[i];
 	if (report_init(&rp->rp, &lay) != 0) {
 		fprintf(stderr, "floodgauge replay: cannot set up the report\n");
 		return EXIT_RUNTIME;
@@ -206,6 +272,7 @@ static int write_events(struct replay *rp)
 		fprintf(rp->events, "%s\n", line);
 		report_add_event(&rp->rp, ev->t_ms, (int)ev->alarm_index, alarm_state_name(ev->state),
 				 ev->value);
+		alarmperf_on_change(&rp->perf, ev->alarm_index, ev->t_ms, ev->prev, ev->state);
 		if (ev->state == ALARM_STATE_UNACK && ev->prev != ALARM_STATE_ACKED) {
 			rp->sum.raised[a->priority]++;
 			int64_t *first = &rp->sum.first_alarm_t_ms[a->section_index];
@@ -325,6 +392,87 @@ static void warn_skipped(const struct replay *rp)
 			(unsigned long long)all);
 }
 
+static int perf_init(struct replay *rp)
+{
+	static enum alarm_priority prio[FG_ALARMS_MAX];
+	int64_t ev[REPORT_MARKERS_MAX];
+	for (unsigned i = 0; i < rp->cfg->alarm_count; i++)
+		prio[i] = rp->cfg->alarms[i].priority;
+	for (unsigned i = 0; i < rp->marker_count; i++)
+		ev[i] = rp->markers[i].t_ms;
+	return alarmperf_init(&rp->perf, rp->cfg->alarm_count, prio, ev, rp->marker_count);
+}
+
+static int write_summary_json(struct replay *rp)
+{
+	static const char *names[FG_ALARMS_MAX];
+	for (unsigned i = 0; i < rp->cfg->alarm_count; i++)
+		names[i] = rp->cfg->alarms[i].name;
+	FILE *f = fopen(rp->path_summary, "w");
+	int rc = f == NULL ? -errno : alarmperf_write_summary(&rp->perf, names, f);
+	if (f != NULL && fclose(f) != 0 && rc == 0)
+		rc = -EIO;
+	if (rc != 0)
+		fprintf(stderr, "floodgauge replay: cannot write %s: %s\n", rp->path_summary,
+			strerror(-rc));
+	return rc;
+}
+
+/* The alarm performance figures, with the definition each one follows. */
+static void print_perf(const struct replay *rp)
+{
+	const struct alarmperf *ap = &rp->perf;
+	printf("  alarm performance (activations, chattering: 3+ in 60 s, ISA-18.2; fleeting: "
+	       "under 10 s, EEMUA 191):\n");
+	printf("    %-24s %6s %6s %6s %9s %9s  %-20s", "alarm", "activ", "chatt", "fleet",
+	       "in alarm", "longest", "first activation");
+	if (ap->event_count > 0)
+		printf(" %9s", "lead");
+	putchar('\n');
+	for (unsigned i = 0; i < ap->alarm_count; i++) {
+		const struct alarmperf_alarm *a = &ap->a[i];
+		char tin[NUMFMT_DURATION_SIZE], lng[NUMFMT_DURATION_SIZE], lead[NUMFMT_DURATION_SIZE];
+		char first[TIMEFMT_BUF_SIZE] = "-";
+		numfmt_duration(a->time_in_alarm_s, tin, sizeof(tin));
+		numfmt_duration(a->longest_active_s, lng, sizeof(lng));
+		if (a->first_activation_t_ms != ALARMPERF_T_NONE)
+			timefmt_format(a->first_activation_t_ms, first, sizeof(first));
+		printf("    %-24s %6llu %6llu %6llu %9s %9s  %-20s", rp->cfg->alarms[i].name,
+		       (unsigned long long)a->activations,
+		       (unsigned long long)a->chattering_episodes, (unsigned long long)a->fleeting,
+		       tin, lng, first);
+		if (ap->event_count > 0) {
+			numfmt_duration(alarmperf_lead_s(ap, i, 0), lead, sizeof(lead));
+			printf(" %9s", lead);
+		}
+		putchar('\n');
+	}
+	struct alarmperf_overall o;
+	alarmperf_overall(ap, &o);
+	printf("    alarm rate per 10 min (clock-aligned periods, EEMUA 191 / ISA-18.2): "
+	       "average %.2f, max %.0f; periods with more than 10: %.1f %%\n",
+	       o.rate_per_10min_avg, o.rate_per_10min_max, o.pct_10min_over_10);
+	printf("    standing alarms at the end (EEMUA 191): %u; priority share (EEMUA 191):",
+	       o.standing_alarms);
+	for (int p = ALARM_PRIORITY_COUNT - 1; p >= 0; p--) {
+		if (isfinite(o.priority_share[p]))
+			printf(" %s %.1f %%", alarm_priority_name((enum alarm_priority)p),
+			       100.0 * o.priority_share[p]);
+		else
+			printf(" %s -", alarm_priority_name((enum alarm_priority)p));
+	}
+	putchar('\n');
+	for (unsigned k = 0; k < rp->marker_count; k++) {
+		char t[TIMEFMT_BUF_SIZE];
+		timefmt_format(ap->event_t_ms[k], t, sizeof(t));
+		if (k == 0)
+			printf("    lead = event time - start of the last activation before it; "
+			       "lead_s in summary.json is for the first event\n");
+		printf("    event %u at %s%s%s\n", k + 1, t, rp->markers[k].label[0] ? ": " : "",
+		       rp->markers[k].label);
+	}
+}
+
 static void print_summary(const struct replay *rp)
 {
 	const struct fg_config *cfg = rp->cfg;
@@ -368,7 +516,9 @@ static void print_summary(const struct replay *rp)
 		numfmt_duration(s->above_setpoint_s[i], d, sizeof(d));
 		printf("    %-24s %10s\n", cfg->alarms[i].name, d);
 	}
-	printf("  wrote %s, %s, %s\n", rp->path_results, rp->path_events, rp->path_report);
+	print_perf(rp);
+	printf("  wrote %s, %s, %s, %s\n", rp->path_results, rp->path_events, rp->path_summary,
+	       rp->path_report);
 	fg_caution_print(stdout);
 }
 
@@ -383,6 +533,8 @@ static int replay_run(struct replay *rp)
 		return rc;
 	engine_init(rp->eng, rp->cfg);
 	report_summary_clear(&rp->sum);
+	if (perf_init(rp) != 0)
+		return EXIT_RUNTIME;
 	if (results_write_header(rp->results, rp->cfg) != 0)
 		return EXIT_RUNTIME;
 	rc = run_rows(rp);
@@ -403,6 +555,10 @@ static int replay_run(struct replay *rp)
 			rp->rows_outside ? " inside --from/--to" : "");
 		return EXIT_USAGE;
 	}
+	alarmperf_finish(&rp->perf, rp->sum.first_t_ms, rp->sum.last_t_ms);
+	rp->sum.perf = &rp->perf;
+	if (write_summary_json(rp) != 0)
+		return EXIT_RUNTIME;
 	if (report_write(&rp->rp, rp->path_report, &rp->sum) != 0) {
 		fprintf(stderr, "floodgauge replay: cannot write %s\n", rp->path_report);
 		return EXIT_RUNTIME;

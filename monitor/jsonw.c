@@ -102,6 +102,40 @@ void jsonw_bool(struct jsonw *w, const char *k, bool value)
 	put(w, "%s", value ? "true" : "false");
 }
 
+void jsonw_null(struct jsonw *w, const char *k)
+{
+	key(w, k);
+	put(w, "null");
+}
+
+void jsonw_open_key(struct jsonw *w, const char *k)
+{
+	key(w, k);
+	put(w, "{");
+	w->first = true;
+}
+
+void jsonw_open_array_key(struct jsonw *w, const char *k)
+{
+	key(w, k);
+	put(w, "[");
+	w->first = true;
+}
+
+void jsonw_close_array(struct jsonw *w)
+{
+	put(w, "]");
+	w->first = false;
+}
+
+void jsonw_open_element(struct jsonw *w)
+{
+	if (!w->first)
+		put(w, ",");
+	put(w, "{");
+	w->first = true;
+}
+
 int jsonw_finish(const struct jsonw *w)
 {
 	return w->overflow ? -ENOSPC : (int)w->len;

@@ -3,8 +3,8 @@
  *
  * For the few objects floodgauge emits (results, events, replies) a tree
  * library would allocate per message; this writes straight into the buffer
- * and records truncation instead. Numbers use %.6g (enough for any plant
- * signal, and stable), non-finite numbers are written as null.
+ * and records truncation instead. Numbers are written in full (numfmt_full:
+ * the shortest form that reads back exactly), non-finite numbers as null.
  */
 #ifndef JSONW_H
 #define JSONW_H
@@ -28,6 +28,13 @@ void jsonw_close(struct jsonw *w);  /* } */
 void jsonw_str(struct jsonw *w, const char *key, const char *value);
 void jsonw_num(struct jsonw *w, const char *key, double value);
 void jsonw_bool(struct jsonw *w, const char *key, bool value);
+void jsonw_null(struct jsonw *w, const char *key);
+/* "key":{ and "key":[ , closed by jsonw_close and jsonw_close_array. */
+void jsonw_open_key(struct jsonw *w, const char *key);
+void jsonw_open_array_key(struct jsonw *w, const char *key);
+void jsonw_close_array(struct jsonw *w);
+/* An unnamed { as the next element of an open array. */
+void jsonw_open_element(struct jsonw *w);
 /* Returns the length, or -ENOSPC when something did not fit. */
 int jsonw_finish(const struct jsonw *w);
 

@@ -88,6 +88,8 @@ static int layout_check(const struct report_layout *l)
 	assert(l != NULL);
 	if (l->section_count == 0 || l->section_count > FG_SECTIONS_MAX)
 		return -EINVAL;
+	if (l->marker_count > REPORT_MARKERS_MAX)
+		return -EINVAL;
 	if (l->alarm_count > FG_ALARMS_MAX)
 		return -EINVAL;
 	if (!string_fits(l->plant, sizeof l->plant) ||

@@ -28,6 +28,7 @@
 #include <stddef.h>
 #include <stdint.h>
 
+#include "alarmperf.h"
 #include "fg_limits.h"
 #include "fg_result.h"
 
@@ -81,6 +82,13 @@ struct report_alarm {
 	double setpoint;               /* in the field's SI unit; NAN for diagnostic */
 };
 
+/* A labelled moment (replay --event T=LABEL), marked on every chart. */
+struct report_marker {
+	int64_t t_ms;
+	char label[FG_NAME_MAX];       /* may be empty */
+};
+#define REPORT_MARKERS_MAX ALARMPERF_EVENTS_MAX
+
 struct report_layout {
 	char plant[FG_TEXT_MAX];       /* plant / monitor name for the header */
 	char data_file[FG_PATH_MAX];   /* the replayed data file, as given */
@@ -88,6 +96,8 @@ struct report_layout {
 	struct report_section sections[FG_SECTIONS_MAX];
 	unsigned alarm_count;          /* 0..FG_ALARMS_MAX */
 	struct report_alarm alarms[FG_ALARMS_MAX];
+	unsigned marker_count;         /* 0..REPORT_MARKERS_MAX, ascending time */
+	struct report_marker markers[REPORT_MARKERS_MAX];
 };
 
 /* Filled by the caller (the replay command) before report_write(). */
@@ -101,6 +111,7 @@ struct report_summary {
 	uint64_t raised[REPORT_PRIORITY_COUNT];        /* alarms raised (to unacknowledged) per priority */
 	int64_t first_alarm_t_ms[FG_SECTIONS_MAX];     /* per section, or REPORT_T_NONE */
 	double above_setpoint_s[FG_ALARMS_MAX];        /* per alarm, s; NAN = not applicable */
+	const struct alarmperf *perf;  /* finished alarm performance figures, or NULL */
 };
 
 /* Charted series per section, in drawing order. */

@@ -118,7 +118,14 @@ void report_html_put_fixed(FILE *f, double v, int decimals)
 	fputs(b, f);
 }
 
-static void put_time(FILE *f, int64_t t_ms)
+void report_html_put_duration_s(FILE *f, double s)
+{
+	char b[NUMFMT_DURATION_SIZE];
+	numfmt_duration(s, b, sizeof b);
+	fputs(b, f);
+}
+
+void report_html_put_time(FILE *f, int64_t t_ms)
 {
 	char b[TIMEFMT_BUF_SIZE];
 	if (t_ms == REPORT_T_NONE)
@@ -193,6 +200,8 @@ static const char page_css[] =
 	".st{font-weight:600}\n"
 	".st-unacknowledged{color:#a3231b}.st-acknowledged{color:#a35f00}"
 	".st-returned_unacknowledged{color:#2d5f9a}.st-normal{color:#2f6b35}\n"
+	"svg .ev{stroke:#1d2327;stroke-width:1.4;stroke-dasharray:6 3}\n"
+	"svg .evl{font-size:11.5px;font-weight:600;fill:#1d2327}\n"
 	"footer{margin-top:24px;font-size:11px;color:#6b7378}\n"
 	/* SVG classes: lines, shading, strip, axes. */
 	"svg text{font-family:inherit;font-size:11px;fill:#3b4246}\n"
@@ -231,9 +240,9 @@ static void write_head(FILE *f, const struct report *rp, const struct report_sum
 	fputs("</h1>\n<div class=\"meta\">Data file <b>", f);
 	report_html_put_escaped(f, rp->layout.data_file);
 	fputs("</b> &middot; from <b>", f);
-	put_time(f, sum->first_t_ms);
+	report_html_put_time(f, sum->first_t_ms);
 	fputs("</b> to <b>", f);
-	put_time(f, sum->last_t_ms);
+	report_html_put_time(f, sum->last_t_ms);
 	fputs("</b>", f);
 	if (sum->first_t_ms != REPORT_T_NONE && sum->last_t_ms != REPORT_T_NONE) {
 		fputs(" (", f);
@@ -255,9 +264,9 @@ static void write_summary_data(FILE *f, const struct report *rp, const struct re
 	fprintf(f, "<tr><td>Skipped, duplicate time</td><td class=\"n\">%" PRIu64 "</td></tr>\n",
 		sum->rows_duplicate);
 	fputs("<tr><td>First row</td><td class=\"n\">", f);
-	put_time(f, sum->first_t_ms);
+	report_html_put_time(f, sum->first_t_ms);
 	fputs("</td></tr>\n<tr><td>Last row</td><td class=\"n\">", f);
-	put_time(f, sum->last_t_ms);
+	report_html_put_time(f, sum->last_t_ms);
 	fputs("</td></tr>\n<tr><td>Typical sample period</td><td class=\"n\">", f);
 	put_duration(f, report_typical_period_ms(rp));
 	fputs("</td></tr>\n<tr><td>Chart resolution</td><td class=\"n\">", f);
@@ -287,7 +296,7 @@ static void write_summary_sections(FILE *f, const struct report *rp,
 		fputs("</td><td>", f);
 		report_html_put_escaped(f, rp->layout.sections[k].type);
 		fputs("</td><td class=\"n\">", f);
-		put_time(f, sum->first_alarm_t_ms[k]);
+		report_html_put_time(f, sum->first_alarm_t_ms[k]);
 		fprintf(f, "</td><td class=\"n\">%" PRIu64 "</td><td class=\"n\">%" PRIu64
 			   "</td><td class=\"n\">%" PRIu64 "</td></tr>\n",
 			rp->sec_rows_bad[k], rp->sec_rows_uncertain[k], rp->sec_rows_extrap[k]);
@@ -377,7 +386,7 @@ static void write_section(FILE *f, const struct report *rp, const struct report_
 	if (sum->first_alarm_t_ms[k] == REPORT_T_NONE)
 		fputs("none", f);
 	else
-		put_time(f, sum->first_alarm_t_ms[k]);
+		report_html_put_time(f, sum->first_alarm_t_ms[k]);
 	fprintf(f, " &middot; rows with bad quality: %" PRIu64 ", uncertain: %" PRIu64
 		   ", extrapolated: %" PRIu64 "</div>\n",
 		rp->sec_rows_bad[k], rp->sec_rows_uncertain[k], rp->sec_rows_extrap[k]);
@@ -405,7 +414,7 @@ static void write_events(FILE *f, const struct report *rp)
 		const struct report_event *e = &rp->events[i];
 		const struct report_alarm *a = &rp->layout.alarms[e->alarm_index];
 		fputs("<tr><td class=\"n\">", f);
-		put_time(f, e->t_ms);
+		report_html_put_time(f, e->t_ms);
 		fputs("</td><td>", f);
 		report_html_put_escaped(f, a->name);
 		fputs("</td><td>", f);
@@ -433,6 +442,7 @@ static void write_page(FILE *f, const struct report *rp, const struct report_sum
 	write_summary_sections(f, rp, sum);
 	fputs("</div>\n<h2>Alarms</h2>\n", f);
 	write_summary_alarms(f, rp, sum);
+	report_perf_write(f, rp, sum);
 	fputs("<h2>Trends by section</h2>\n", f);
 	write_legend(f);
 	if (rp->row_count == 0) {

@@ -83,6 +83,18 @@ struct report_svg_frame {
 /* Writes the charts of section k. The caller sets fr's time span and gap
  * threshold once per page; each chart overwrites the plot box and value
  * range. */
+/* The --event markers: a dashed vertical line and its number and label. */
+void report_svg_write_markers(FILE *f, const struct report *rp,
+			      const struct report_svg_frame *fr);
+
+/* Times and durations as the page writes them (report_html.c). */
+void report_html_put_time(FILE *f, int64_t t_ms);
+void report_html_put_duration_s(FILE *f, double s);
+
+/* The alarm performance section (report_perf.c); nothing when sum->perf is
+ * NULL. */
+void report_perf_write(FILE *f, const struct report *rp, const struct report_summary *sum);
+
 void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg_frame *fr,
 			     unsigned k);
 

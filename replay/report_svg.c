@@ -483,6 +483,45 @@ static bool chart_has_setpoints(const struct report *rp, unsigned k, const struc
 	return false;
 }
 
+/* A labelled vertical line at every --event inside the span; the label at
+ * the top of the plot, right of the line (left of it near the right edge),
+ * and staggered down a line when it would run into the previous label. */
+void report_svg_write_markers(FILE *f, const struct report *rp,
+			      const struct report_svg_frame *fr)
+{
+	double prev_end = -1e9;
+	int row = 0;
+	for (unsigned i = 0; i < rp->layout.marker_count; i++) {
+		const struct report_marker *m = &rp->layout.markers[i];
+		if (m->t_ms < fr->t0_ms || m->t_ms > fr->t1_ms)
+			continue;
+		const double x = frame_x(fr, m->t_ms);
+		fputs("<line class=\"ev\" x1=\"", f);
+		report_html_put_fixed(f, x, 1);
+		fputs("\" x2=\"", f);
+		report_html_put_fixed(f, x, 1);
+		fputs("\" y1=\"", f);
+		report_html_put_fixed(f, fr->y_top, 1);
+		fputs("\" y2=\"", f);
+		report_html_put_fixed(f, fr->y_bot, 1);
+		fputs("\"/>\n", f);
+		char text[FG_NAME_MAX + 16];
+		snprintf(text, sizeof text, "%u%s%s", i + 1, m->label[0] ? " " : "", m->label);
+		const double w = CHAR_W * (double)strlen(text);
+		const bool left = x + 4.0 + w > PLOT_X1;
+		const double x0 = left ? x - 4.0 - w : x + 4.0;
+		row = x0 < prev_end + 4.0 ? (row + 1) % 3 : 0;
+		prev_end = x0 + w;
+		fprintf(f, "<text class=\"evl\" text-anchor=\"%s\" x=\"", left ? "end" : "start");
+		report_html_put_fixed(f, left ? x - 4.0 : x + 4.0, 1);
+		fputs("\" y=\"", f);
+		report_html_put_fixed(f, fr->y_top + 12.0 + 12.0 * row, 1);
+		fputs("\">", f);
+		report_html_put_escaped(f, text);
+		fputs("</text>\n", f);
+	}
+}
+
 static void write_chart(FILE *f, const struct report *rp, struct report_svg_frame *fr, unsigned k,
 			const struct chart *c)
 {
@@ -505,6 +544,7 @@ static void write_chart(FILE *f, const struct report *rp, struct report_svg_fram
 	 * lies on top where the two overlap. */
 	for (unsigned i = c->series_count; i-- > 0;)
 		write_series(f, rp, fr, k, c->series[i]);
+	report_svg_write_markers(f, rp, fr);
 	if (!any)
 		fprintf(f, "<text class=\"nodata\" text-anchor=\"middle\" x=\"%d\" y=\"%d\">"
 			   "no values for this section</text>\n",

@@ -88,7 +88,7 @@ if m and ramp:
     # the same run twice: byte-identical outputs
     out2 = os.path.join(tmp, "flood2")
     replay(csv, out2)
-    for name in ("results.csv", "events.jsonl", "report.html"):
+    for name in ("results.csv", "events.jsonl", "summary.json", "report.html"):
         a = open(os.path.join(out, name), "rb").read()
         b = open(os.path.join(out2, name), "rb").read()
         ok(a == b, f"{name} is byte-identical on a second run")
@@ -98,6 +98,57 @@ if m and ramp:
     rc, so, se, ev = replay(csv, out3, "--from", "2026-03-02T06:00:00Z",
                             "--to", "2026-03-02T07:59:58Z")
     ok(rc == 0 and "rows used 3600" in so and ev == [], "--from/--to limit the rows", so + se)
+
+    # --event and summary.json: the figures recounted here from events.jsonl
+    out4 = os.path.join(tmp, "event")
+    rc, so, se, ev = replay(csv, out4, "--event", flood_point + "=flood point (model)",
+                            "--event", ramp_start)
+    ok(rc == 0 and "flood point (model)" in so and "lead" in so,
+       "--event is accepted and named in the summary", so + se)
+    sj = json.load(open(os.path.join(out4, "summary.json")))
+    ok(sorted(sj) == ["alarms", "overall"], "summary.json has alarms and overall", sj)
+    ok(sorted(sj["overall"]) == sorted(["alarm_rate_per_10min_avg", "alarm_rate_per_10min_max",
+                                        "pct_10min_over_10", "standing_alarms",
+                                        "priority_share"]), "overall keys", sj["overall"])
+    akeys = sorted(["activations", "chattering_episodes", "fleeting", "time_in_alarm_s",
+                    "longest_active_s", "first_activation", "lead_s"])
+    ok(all(sorted(v) == akeys for v in sj["alarms"].values()) and len(sj["alarms"]) == 10,
+       "every configured alarm with the per-alarm keys", sj["alarms"])
+    active = ("unacknowledged", "acknowledged")
+
+    def secs(t):
+        import datetime
+        return datetime.datetime.strptime(t, "%Y-%m-%dT%H:%M:%SZ").replace(
+            tzinfo=datetime.timezone.utc).timestamp()
+
+    # the earlier of the two events is the ramp start (no alarm before it):
+    # lead_s is null for every alarm
+    ok(all(v["lead_s"] is None for v in sj["alarms"].values()),
+       "no lead before the first event (the ramp start)", sj["alarms"])
+    for name, fig in sj["alarms"].items():
+        starts, state = [], "normal"
+        for e in ev:
+            if e["alarm"] != name:
+                continue
+            if e["state"] in active and state not in active:
+                starts.append(e["t"])
+            state = e["state"]
+        ok(fig["activations"] == len(starts) and
+           fig["first_activation"] == (starts[0] if starts else None),
+           f"{name}: activations and first activation as counted from events.jsonl",
+           (fig, starts))
+    # lead before the flood point alone
+    out5 = os.path.join(tmp, "event2")
+    rc, so, se, ev = replay(csv, out5, "--event", flood_point)
+    sj = json.load(open(os.path.join(out5, "summary.json")))
+    starts = [e["t"] for e in ev if e["alarm"] == "C401_FLOOD_H" and e["state"] in active
+              and e["t"] < flood_point]
+    ok(starts and abs(sj["alarms"]["C401_FLOOD_H"]["lead_s"] -
+                      (secs(flood_point) - secs(starts[-1]))) < 1e-6,
+       "C401_FLOOD_H lead_s = flood point - start of its last activation before it",
+       (sj["alarms"]["C401_FLOOD_H"], starts))
+    rc, so, se, ev = replay(csv, os.path.join(tmp, "event3"), "--event", "yesterday=x")
+    ok(rc == 2 and "--event" in se and "yesterday" in se, "a bad --event time exits 2", se)
 
 # --- steady: nothing at all
 csv = os.path.join(tmp, "steady.csv")

@@ -832,6 +832,51 @@ static void test_bad_quality_and_extrapolation_show_in_strip(void **state)
 	free(page);
 }
 
+/* --event markers on every chart, and the alarm performance section with the
+ * lead before each event: an activation at +600 s, events at +1500 s
+ * (lead 900 s = 0:15:00) and +2400 s (the same activation: 0:30:00). */
+static void test_event_markers_and_alarm_performance(void **state)
+{
+	(void)state;
+	struct report_layout l;
+	small_layout(&l, "K7");
+	l.marker_count = 2;
+	l.markers[0].t_ms = T0_MS + 1500000;
+	snprintf(l.markers[0].label, sizeof l.markers[0].label, "flood <seen>");
+	l.markers[1].t_ms = T0_MS + 2400000;
+	struct report rp;
+	assert_int_equal(report_init(&rp, &l), 0);
+	struct alarmperf ap;
+	enum alarm_priority pr[1] = {ALARM_PRIORITY_HIGH};
+	int64_t ev[2] = {l.markers[0].t_ms, l.markers[1].t_ms};
+	assert_int_equal(alarmperf_init(&ap, 1, pr, ev, 2), 0);
+	struct section_result r;
+	for (int i = 0; i <= 3000; i += 10) {
+		fill_result(&r, i >= 600 ? 90.0 : 60.0);
+		assert_int_equal(report_add_row(&rp, T0_MS + i * 1000, &r), 0);
+	}
+	assert_int_equal(report_add_event(&rp, T0_MS + 600000, 0, "unacknowledged", 90.0), 0);
+	alarmperf_on_change(&ap, 0, T0_MS + 600000, ALARM_STATE_NORM, ALARM_STATE_UNACK);
+	alarmperf_finish(&ap, T0_MS, T0_MS + 3000000);
+	struct report_summary sum;
+	report_summary_clear(&sum);
+	sum.perf = &ap;
+	char path[128];
+	tmp_path(path, sizeof path, "markers.html");
+	assert_int_equal(report_write(&rp, path, &sum), 0);
+	report_fini(&rp);
+	char *page = slurp(path, NULL);
+	/* two markers on each of the three charts */
+	assert_int_equal(count_of(page, "<line class=\"ev\""), 6);
+	assert_int_equal(count_of(page, ">1 flood &lt;seen&gt;</text>"), 3);
+	assert_non_null(strstr(page, "<h2>Alarm performance</h2>"));
+	assert_non_null(strstr(page, "Lead before event 2"));
+	assert_non_null(strstr(page, "<td class=\"n\">0:15:00</td><td class=\"n\">0:30:00</td>"));
+	/* the standing activation: 2400 s in alarm at the end of the data */
+	assert_non_null(strstr(page, "<td class=\"n\">0:40:00</td>"));
+	free(page);
+}
+
 /* With FG_REPORT_OUT set, the demo page also goes there, for the render
  * test (tests/integration/report_render.sh) to look at. */
 static void test_demo_page_for_render_check(void **state)
@@ -892,6 +937,7 @@ int main(void)
 		cmocka_unit_test(test_chattering_alarm_keeps_bounded_periods),
 		cmocka_unit_test(test_events_beyond_limit_are_counted),
 		cmocka_unit_test(test_bad_quality_and_extrapolation_show_in_strip),
+		cmocka_unit_test(test_event_markers_and_alarm_performance),
 		cmocka_unit_test(test_demo_page_for_render_check),
 	};
 	return cmocka_run_group_tests_name("report", tests, group_setup, group_teardown);
