@@ -90,6 +90,8 @@ int cmd_check(int argc, char **argv)
 	       cfg->exp.enabled ? ", modbus export" : "");
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		note_packing(&cfg->sections[i]);
+	for (unsigned i = 0; i < cfg->warning_count; i++)
+		fprintf(stderr, "%s\n", cfg->warnings[i]);
 	free(cfg);
 	return 0;
 }

@@ -206,6 +206,8 @@ static void tag_defaults(struct tag_cfg *t)
 	t->max = NAN;
 	t->stale_periods = 3.0;
 	t->frozen_s = NAN; /* resolved: VALIDATE_FROZEN_DEFAULT_S for a polled tag */
+	t->span_m = NAN;
+	t->zero_m = 0.0;
 	t->median = 1;
 }
 

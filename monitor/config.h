@@ -57,6 +57,8 @@ struct tag_cfg {
 	                              * "" = the tag's name */
 	double hold_s;               /* recorded on change: the last value stays fresh this
 	                              * long (0 = by stale_periods only) */
+	double span_m, zero_m;       /* a level in % of span: metres at 100 % minus at 0 %
+	                              * (NAN: no span known), and metres at 0 % */
 	int source_index;            /* -1 for a fixed value */
 	double fixed_value;          /* value = N, in the tag's unit (NAN when polled) */
 	double nominal;              /* nominal = N: the design value `rate` uses when not set */
@@ -147,6 +149,10 @@ struct monitor_cfg {
 	unsigned events_keep;           /* rotated events files kept (PATH.1 .. PATH.N) */
 };
 
+/* Warnings kept for `check`: enough for a whole site's slips, each one line. */
+#define CONFIG_WARNINGS_MAX 32
+#define CONFIG_WARNING_SIZE 320
+
 /* [replay]: how historian files are read (replay, calibrate, tune, feed). */
 struct replay_cfg {
 	char time_column[TAG_COLUMN_MAX]; /* "" = time, timestamp or date */
@@ -169,7 +175,19 @@ struct fg_config {
 	struct mqtt_cfg mqtt;
 	struct export_cfg exp;
 	struct replay_cfg replay;
+	/* Things that load but probably are not what was meant ("FILE:LINE: what"),
+	 * printed by `check`. */
+	unsigned warning_count;
+	char warnings[CONFIG_WARNINGS_MAX][CONFIG_WARNING_SIZE];
 };
+
+/* False when section type `type` never has result field `field` (an alarm
+ * on it could never fire); true otherwise. */
+bool config_type_has_field(enum section_type type, int field);
+
+/* True when tag t gives a length in metres: a length unit, or % of span with
+ * span_m. A level in % without span_m is a fraction, not metres. */
+bool config_tag_is_length(const struct tag_cfg *t);
 
 /* The data-file column of tag t: its `column =`, else its name. */
 const char *config_tag_column(const struct tag_cfg *t);

@@ -68,6 +68,12 @@ struct config_ctx {
 void config_error(struct config_ctx *c, int line, const char *fmt, ...)
 	__attribute__((format(printf, 3, 4)));
 int config_resolve(struct config_ctx *c);
+/* Warnings (config_warn.c): kept in cfg->warnings for `check`. */
+void config_warn(struct config_ctx *c, int line, const char *fmt, ...)
+	__attribute__((format(printf, 3, 4)));
+void config_collect_warnings(struct config_ctx *c);
+/* The line of the [alarm.NAME] header, 0 when unknown. */
+int config_alarm_header_line(struct config_ctx *c, const char *name);
 /* Defaults of the daemon's robustness keys (events rotation, command age,
  * export timeouts), set before the file is read. */
 void config_runtime_defaults(struct fg_config *cfg);

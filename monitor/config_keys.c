@@ -278,7 +278,7 @@ static int key_index(const char *const *names, const char *key)
 static const char *const tag_key_names[] = {
 	"source", "table", "address", "type", "word_order", "scale", "offset", "unit", "min", "max",
 	"value", "stale_periods", "frozen_s", "frozen_tolerance", "spike_limit", "filter_tau_s",
-	"median", "nominal", "column", "hold_s", NULL};
+	"median", "nominal", "column", "hold_s", "span_m", "zero_m", NULL};
 static const char *const table_names[] = {"input", "holding", NULL};
 static const char *const type_names_tag[] = {"int16", "uint16", "int32", "uint32", "float32", NULL};
 static const char *const order_names[] = {"abcd", "badc", "cdab", "dcba", NULL};
@@ -341,6 +341,8 @@ int config_tag_key(struct config_ctx *c, unsigned ti, const char *key, const cha
 	case 17: return config_parse_double(c, key, v, -big, big, &t->nominal);
 	case 18: return config_copy_text(c, key, v, t->column, sizeof(t->column));
 	case 19: return config_parse_double(c, key, v, 0.0, 1e7, &t->hold_s);
+	case 20: return config_parse_double(c, key, v, 1e-3, 1000.0, &t->span_m);
+	case 21: return config_parse_double(c, key, v, -1000.0, 1000.0, &t->zero_m);
 	default: assert(0);
 	}
 	return -EINVAL;

@@ -101,7 +101,20 @@ double config_tag_to_si(const struct tag_cfg *t, double value)
 	assert(t != NULL);
 	if (t->unit == NULL)
 		return value;
-	return units_to_si(t->unit, value);
+	double si = units_to_si(t->unit, value);
+	/* A level in % of the transmitter's span, with the span known: metres. */
+	if (t->unit->kind == UNIT_KIND_FRACTION && isfinite(t->span_m))
+		return t->zero_m + si * t->span_m;
+	return si;
+}
+
+bool config_tag_is_length(const struct tag_cfg *t)
+{
+	assert(t != NULL);
+	if (t->unit == NULL)
+		return false;
+	return t->unit->kind == UNIT_KIND_LENGTH ||
+	       (t->unit->kind == UNIT_KIND_FRACTION && isfinite(t->span_m));
 }
 
 static bool unit_fits(enum section_signal s, const struct unit *u)
@@ -118,7 +131,8 @@ static bool unit_fits(enum section_signal s, const struct unit *u)
 		return units_usable_as_dp(u);
 	case SIGNAL_PRESSURE: return u->kind == UNIT_KIND_PRESSURE;
 	case SIGNAL_TEMPERATURE: return u->kind == UNIT_KIND_TEMPERATURE;
-	case SIGNAL_LEVEL: return u->kind == UNIT_KIND_LENGTH;
+	case SIGNAL_LEVEL: /* metres, or % of the transmitter's span (span_m, zero_m) */
+		return u->kind == UNIT_KIND_LENGTH || u->kind == UNIT_KIND_FRACTION;
 	case SIGNAL_GAS_DENSITY: return u->kind == UNIT_KIND_DENSITY;
 	case SIGNAL_COUNT: break;
 	}
@@ -201,6 +215,10 @@ static void resolve_tags(struct config_ctx *c)
 				config_error(c, t->line, "[tag.%s]: a 32-bit value at 65535 has no "
 							 "second register", t->name);
 		}
+		bool span_given = isfinite(t->span_m) || t->zero_m != 0.0;
+		if (span_given && (t->unit == NULL || t->unit->kind != UNIT_KIND_FRACTION))
+			config_error(c, t->line, "[tag.%s]: span_m and zero_m are for a level in %% "
+						 "of span (unit = %%)", t->name);
 		/* Frozen detection is on by default for what is read from the plant
 		 * or a historian; a 'value =' tag never changes by design. */
 		if (isnan(t->frozen_s))
@@ -394,7 +412,7 @@ static void resolve_sections(struct config_ctx *c)
 	}
 }
 
-static int alarm_header_line(struct config_ctx *c, const char *name)
+int config_alarm_header_line(struct config_ctx *c, const char *name)
 {
 	char hdr[FG_TEXT_MAX];
 	snprintf(hdr, sizeof(hdr), "alarm.%s", name);
@@ -408,7 +426,7 @@ static void resolve_alarm(struct config_ctx *c, unsigned ai)
 {
 	struct alarm_cfg *a = &c->cfg->alarms[ai];
 	struct alarm_pending *ap = &c->alm[ai];
-	int L = alarm_header_line(c, a->name);
+	int L = config_alarm_header_line(c, a->name);
 	if (ap->section.line == 0 || ap->kind.line == 0 || ap->signal.line == 0) {
 		config_error(c, L, "[alarm.%s] needs 'section', 'signal' and 'kind'", a->name);
 		return;
@@ -537,5 +555,7 @@ int config_resolve(struct config_ctx *c)
 	resolve_mqtt(c);
 	if (c->cfg->section_count == 0)
 		config_error(c, 0, "no [section.NAME] defined");
+	if (c->error_count == 0)
+		config_collect_warnings(c);
 	return c->error_count ? -EINVAL : 0;
 }

@@ -45,6 +45,9 @@ void point_from_si(const struct section_cfg *s, const struct fg_config *cfg,
 	p->pressure_pa = signal_si[SIGNAL_PRESSURE];
 	p->temperature_k = signal_si[SIGNAL_TEMPERATURE];
 	p->level_m = signal_si[SIGNAL_LEVEL];
+	int tv = s->signal[SIGNAL_LEVEL];
+	if (tv >= 0 && !config_tag_is_length(&cfg->tags[tv]))
+		p->level_m = NAN; /* % of span without span_m: no metres (check says so) */
 	p->gas_density_kgm3 = signal_si[SIGNAL_GAS_DENSITY];
 	double rho_g = p->gas_density_kgm3;
 	if (!(isfinite(rho_g) && rho_g > 0.0))

@@ -8,6 +8,7 @@
 #include <stdint.h>
 #include <cmocka.h>
 
+#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -379,11 +380,131 @@ static void test_frozen_detection_is_on_by_default_for_polled_tags(void **state)
 	loaded_free(l);
 }
 
+/* Loads base_ini with extra text appended; it must load. */
+static struct loaded *load_plus(const char *extra)
+{
+	static char buf[8192];
+	snprintf(buf, sizeof(buf), "%s%s", base_ini, extra);
+	struct loaded *l = load_text(buf);
+	if (l->rc != 0)
+		fail_msg("%s", l->err);
+	return l;
+}
+
+static bool has_warning(const struct loaded *l, int line, const char *what)
+{
+	char want[32];
+	snprintf(want, sizeof(want), ":%d: warning: ", line);
+	for (unsigned i = 0; i < l->cfg.warning_count; i++)
+		if (strstr(l->cfg.warnings[i], want) && strstr(l->cfg.warnings[i], what))
+			return true;
+	return false;
+}
+
+static void dump_warnings(const struct loaded *l)
+{
+	for (unsigned i = 0; i < l->cfg.warning_count; i++)
+		print_message("%s\n", l->cfg.warnings[i]);
+}
+
+/* A sump level in % of span is accepted on any section; with span_m and
+ * zero_m it reads in metres: 40 % of 2.5 m above 0.3 m = 1.3 m. Without a
+ * span, check names the soft sensor that stays off. */
+static void test_level_in_percent_of_span(void **state)
+{
+	(void)state;
+	struct loaded *l = load_edit("temperature = T\n", "temperature = T\nlevel = LI\n"
+							  "liquid_out_flow = FL\n");
+	assert_int_equal(l->rc, -EINVAL); /* LI is not defined yet: the edit needs the tag */
+	loaded_free(l);
+	static char buf[8192];
+	const char *at = strstr(base_ini, "temperature = T\n");
+	snprintf(buf, sizeof(buf), "%.*stemperature = T\nlevel = LI\nliquid_out_flow = FL\n%s"
+				   "[tag.LI]\nsource = plc\naddress = 4\ntype = float32\nunit = %%\n",
+		 (int)(at - base_ini), base_ini, at + strlen("temperature = T\n"));
+	l = load_text(buf);
+	if (l->rc != 0)
+		fail_msg("%s", l->err);
+	/* [tag.LI] is on line 49 (two lines added in the section above it). */
+	if (!has_warning(l, 49, "is in % of span without span_m (and zero_m): stays off: the "
+				"liquid inventory (inventory_m3)")) {
+		dump_warnings(l);
+		fail();
+	}
+	loaded_free(l);
+	static char with_span[8300];
+	snprintf(with_span, sizeof with_span, "%sspan_m = 2.5\nzero_m = 0.3\n", buf);
+	l = load_text(with_span);
+	assert_int_equal(l->rc, 0);
+	assert_int_equal(l->cfg.warning_count, 0);
+	int li = config_tag_index(&l->cfg, "LI");
+	assert_true(fabs(config_tag_to_si(&l->cfg.tags[li], 40.0) - 1.3) < 1e-12);
+	assert_true(config_tag_is_length(&l->cfg.tags[li]));
+	loaded_free(l);
+	/* span_m on a tag that is not in %: refused at the tag's line. */
+	l = load_edit("unit = t/h\n[tag.FL]", "unit = t/h\nspan_m = 2\n[tag.FL]");
+	assert_error(l, 7, "span_m and zero_m are for a level in % of span");
+	loaded_free(l);
+}
+
+static void test_alarm_on_a_field_the_type_never_has_is_warned(void **state)
+{
+	(void)state;
+	struct loaded *l = load_plus("[alarm.C1_LOAD]\nsection = C1\nsignal = loading_pct\n"
+				     "kind = high\nsetpoint = 80\n");
+	if (!has_warning(l, 49, "[alarm.C1_LOAD] watches loading_pct, which a tray section "
+				"never has")) {
+		dump_warnings(l);
+		fail();
+	}
+	assert_false(config_type_has_field(SECTION_PACKED, RF_WEEP_PCT));
+	assert_true(config_type_has_field(SECTION_TRAY, RF_WEEP_PCT));
+	assert_true(config_type_has_field(SECTION_SPRAY, RF_FLOOD_INDEX));
+	loaded_free(l);
+}
+
+static void test_high_high_not_above_high_is_warned(void **state)
+{
+	(void)state;
+	struct loaded *l = load_plus("[alarm.C1_HH]\nsection = C1\nsignal = flood_index\n"
+				     "kind = high-high\nsetpoint = 80\n");
+	if (!has_warning(l, 47, "high-high setpoint 80 is not above the high setpoint 85 of "
+				"[alarm.C1_H]")) {
+		dump_warnings(l);
+		fail();
+	}
+	loaded_free(l);
+	l = load_plus("[alarm.C1_HH]\nsection = C1\nsignal = flood_index\n"
+		      "kind = high-high\nsetpoint = 95\n");
+	assert_int_equal(l->cfg.warning_count, 0);
+	loaded_free(l);
+}
+
+static void test_two_tags_on_one_register_are_warned(void **state)
+{
+	(void)state;
+	/* FG is a float32 at input registers 0-1: a tag at 1 overlaps it. */
+	struct loaded *l = load_plus("[tag.FX]\nsource = plc\naddress = 1\ntype = int16\n"
+				     "unit = t/h\n");
+	if (!has_warning(l, 47, "[tag.FX] reads holding register 1, as [tag.FG] (line 7) does")) {
+		dump_warnings(l);
+		fail();
+	}
+	loaded_free(l);
+	l = load_plus("[tag.FX]\nsource = plc\naddress = 2\ntype = int16\nunit = t/h\n");
+	assert_int_equal(l->cfg.warning_count, 0);
+	loaded_free(l);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_valid_config_loads_with_its_values),
 		cmocka_unit_test(test_frozen_detection_is_on_by_default_for_polled_tags),
+		cmocka_unit_test(test_level_in_percent_of_span),
+		cmocka_unit_test(test_alarm_on_a_field_the_type_never_has_is_warned),
+		cmocka_unit_test(test_high_high_not_above_high_is_warned),
+		cmocka_unit_test(test_two_tags_on_one_register_are_warned),
 		cmocka_unit_test(test_unknown_key_is_refused_with_its_line),
 		cmocka_unit_test(test_missing_required_key_names_the_section_line),
 		cmocka_unit_test(test_bad_number_is_refused),
