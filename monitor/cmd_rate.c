@@ -117,7 +117,9 @@ static int apply_set(const struct fg_config *cfg, const char *arg, double *value
 	name[eq - arg] = '\0';
 	int ti = config_tag_index(cfg, name);
 	if (ti < 0) {
-		fprintf(stderr, "floodgauge rate: --set: tag '%s' is not in %s\n", name, cfg->path);
+		char dym[160];
+		fprintf(stderr, "floodgauge rate: --set: tag '%s' is not in %s%s\n", name, cfg->path,
+			config_suggest(cfg, CONFIG_NAME_TAG, name, dym, sizeof(dym)));
 		return -EINVAL;
 	}
 	char *end;
@@ -195,12 +197,30 @@ static int print_json(const struct section_cfg *s, const struct section_result *
 	return 0;
 }
 
+/* The sections of cfg, for a user who did not name one or mistyped it. */
+static void list_sections(const struct fg_config *cfg)
+{
+	fprintf(stderr, "sections in %s:", cfg->path);
+	for (unsigned i = 0; i < cfg->section_count; i++)
+		fprintf(stderr, " %s (%s)", cfg->sections[i].name,
+			config_section_type_name(cfg->sections[i].geom.type));
+	fputc('\n', stderr);
+}
+
 static int rate_eval(const struct fg_config *cfg, const char *section, char **sets,
 		     unsigned set_count, bool json)
 {
+	if (section == NULL) {
+		fprintf(stderr, "floodgauge rate: which section? give --section NAME\n");
+		list_sections(cfg);
+		return EXIT_USAGE;
+	}
 	int si = config_section_index(cfg, section);
 	if (si < 0) {
-		fprintf(stderr, "floodgauge rate: section '%s' is not in %s\n", section, cfg->path);
+		char dym[160];
+		fprintf(stderr, "floodgauge rate: section '%s' is not in %s%s\n", section, cfg->path,
+			config_suggest(cfg, CONFIG_NAME_SECTION, section, dym, sizeof(dym)));
+		list_sections(cfg);
 		return EXIT_USAGE;
 	}
 	static double values[FG_TAGS_MAX];
@@ -267,7 +287,7 @@ int cmd_rate(int argc, char **argv)
 		default: rate_usage(stderr); return EXIT_USAGE;
 		}
 	}
-	if (path == NULL || section == NULL || optind != argc) {
+	if (path == NULL || optind != argc) {
 		rate_usage(stderr);
 		return EXIT_USAGE;
 	}

@@ -21,6 +21,7 @@
 #include <string.h>
 
 #include <ini.h>
+#include "suggest.h"
 
 /* libinih's line buffer in Debian's build (ini_max_line default). */
 #define CONFIG_LINE_MAX 200
@@ -266,6 +267,27 @@ static void init_object(struct config_ctx *c, int kind, unsigned i, const char *
 	}
 }
 
+/* " (did you mean [tag.X]?)" for a mistyped header kind, or "". */
+static const char *header_suggestion(const char *hdr, char *buf, size_t size)
+{
+	static const char *const plain[] = {"monitor", "mqtt", "replay", "export.modbus", NULL};
+	static const char *const kinds[] = {"source", "tag", "section", "alarm", NULL};
+	const char *dot = strchr(hdr, '.');
+	char head[FG_TEXT_MAX];
+	snprintf(head, sizeof(head), "%.*s", dot != NULL ? (int)(dot - hdr) : (int)strlen(hdr), hdr);
+	const char *best = dot != NULL ? suggest_in_list(head, kinds) : NULL;
+	if (best != NULL) {
+		snprintf(buf, size, " (did you mean [%s%s]?)", best, dot);
+		return buf;
+	}
+	best = suggest_in_list(hdr, plain);
+	if (best != NULL)
+		snprintf(buf, size, " (did you mean [%s]?)", best);
+	else
+		buf[0] = '\0';
+	return buf;
+}
+
 /* Creates the object a header names. Returns 0, or -EINVAL (reported). */
 static int open_header(struct config_ctx *c, const char *hdr)
 {
@@ -321,8 +343,10 @@ static int open_header(struct config_ctx *c, const char *hdr)
 		init_object(c, kinds[k].kind, i, name);
 		return 0;
 	}
-	config_error(c, c->line, "unknown section [%s] (expected monitor, source.NAME, tag.NAME, "
-				 "section.NAME, alarm.NAME, mqtt, export.modbus or replay)", hdr);
+	char dym[FG_TEXT_MAX + 32];
+	config_error(c, c->line, "unknown section [%s]%s (expected monitor, source.NAME, tag.NAME, "
+				 "section.NAME, alarm.NAME, mqtt, export.modbus or replay)", hdr,
+		     header_suggestion(hdr, dym, sizeof(dym)));
 	return -EINVAL;
 }
 

@@ -206,6 +206,18 @@ const char *config_tag_column(const struct tag_cfg *t);
  * -EINVAL when it is not valid; *cfg is then unspecified. */
 int config_load(struct fg_config *cfg, const char *path, FILE *errf);
 
+/* " (did you mean 'NAME'?)" for a mistyped name of the given kind, or "",
+ * in buf; returns buf. */
+enum config_name_kind {
+	CONFIG_NAME_TAG,
+	CONFIG_NAME_SOURCE,
+	CONFIG_NAME_SECTION,
+	CONFIG_NAME_ALARM,
+	CONFIG_NAME_FIELD,
+};
+const char *config_suggest(const struct fg_config *cfg, enum config_name_kind kind,
+			   const char *word, char *buf, size_t buf_size);
+
 /* Index of a tag, section or alarm by name, or -1. */
 int config_tag_index(const struct fg_config *cfg, const char *name);
 int config_section_index(const struct fg_config *cfg, const char *name);

@@ -18,6 +18,7 @@
 #include "evlog.h"
 #include "mbserver.h"
 #include "mqttlink.h"
+#include "suggest.h"
 
 /* ---- keys of [section.NAME] -------------------------------------------- */
 
@@ -109,6 +110,34 @@ static const struct key_desc section_keys[] = {
 #define SECTION_KEY_COUNT (sizeof(section_keys) / sizeof(section_keys[0]))
 _Static_assert(SECTION_KEY_COUNT <= 64, "keys_set is a 64-bit mask");
 
+/* "unknown key 'K' in [HEADER]", with the nearest known key when one is close. */
+static void unknown_key_get(struct config_ctx *c, const char *key, suggest_get_fn get,
+			    const void *ctx, unsigned count)
+{
+	char dym[SUGGEST_NAME_MAX + 32];
+	config_error(c, c->line, "unknown key '%s' in [%s]%s", key, c->cur_section,
+		     suggest_text(suggest_best(key, get, ctx, count), dym, sizeof(dym)));
+}
+
+static const char *list_name(const void *ctx, unsigned i)
+{
+	return ((const char *const *)ctx)[i];
+}
+
+static void unknown_key(struct config_ctx *c, const char *key, const char *const *names)
+{
+	unsigned n = 0;
+	while (names[n] != NULL)
+		n++;
+	unknown_key_get(c, key, list_name, names, n);
+}
+
+static const char *section_key_name(const void *ctx, unsigned i)
+{
+	(void)ctx;
+	return section_keys[i].name;
+}
+
 static const char *const type_names[] = {"tray", "packed", "spray", "bubble", NULL};
 
 static struct pending_name *pending_slot(struct section_pending *sp, const char *key)
@@ -173,7 +202,8 @@ int config_section_key(struct config_ctx *c, struct section_cfg *s, struct secti
 			return 0;
 		}
 	}
-	config_error(c, c->line, "unknown key '%s' in [section.%s]", key, s->name);
+	(void)s;
+	unknown_key_get(c, key, section_key_name, NULL, SECTION_KEY_COUNT);
 	return -EINVAL;
 }
 
@@ -288,7 +318,7 @@ int config_tag_key(struct config_ctx *c, unsigned ti, const char *key, const cha
 	struct tag_cfg *t = &c->cfg->tags[ti];
 	int k = key_index(tag_key_names, key);
 	if (k < 0) {
-		config_error(c, c->line, "unknown key '%s' in [tag.%s]", key, t->name);
+		unknown_key(c, key, tag_key_names);
 		return -EINVAL;
 	}
 	if (!first_time(c, &c->tag_keys_set[ti], (unsigned)k, key))
@@ -359,7 +389,7 @@ int config_source_key(struct config_ctx *c, unsigned si, const char *key, const 
 	struct source_cfg *s = &c->cfg->sources[si];
 	int k = key_index(source_key_names, key);
 	if (k < 0) {
-		config_error(c, c->line, "unknown key '%s' in [source.%s]", key, s->name);
+		unknown_key(c, key, source_key_names);
 		return -EINVAL;
 	}
 	if (!first_time(c, &c->source_keys_set[si], (unsigned)k, key))
@@ -394,7 +424,7 @@ int config_monitor_key(struct config_ctx *c, const char *key, const char *v)
 	struct monitor_cfg *m = &c->cfg->monitor;
 	int k = key_index(monitor_key_names, key);
 	if (k < 0) {
-		config_error(c, c->line, "unknown key '%s' in [monitor]", key);
+		unknown_key(c, key, monitor_key_names);
 		return -EINVAL;
 	}
 	if (!first_time(c, &c->monitor_keys_set, (unsigned)k, key))
@@ -420,7 +450,7 @@ int config_mqtt_key(struct config_ctx *c, const char *key, const char *v)
 	struct mqtt_cfg *m = &c->cfg->mqtt;
 	int k = key_index(mqtt_key_names, key);
 	if (k < 0) {
-		config_error(c, c->line, "unknown key '%s' in [mqtt]", key);
+		unknown_key(c, key, mqtt_key_names);
 		return -EINVAL;
 	}
 	if (!first_time(c, &c->mqtt_keys_set, (unsigned)k, key))
@@ -467,7 +497,7 @@ int config_export_key(struct config_ctx *c, const char *key, const char *v)
 					    NULL};
 	int k = key_index(names, key);
 	if (k < 0) {
-		config_error(c, c->line, "unknown key '%s' in [export.modbus]", key);
+		unknown_key(c, key, names);
 		return -EINVAL;
 	}
 	if (!first_time(c, &c->export_keys_set, (unsigned)k, key))
@@ -505,7 +535,7 @@ int config_alarm_key(struct config_ctx *c, unsigned ai, const char *key, const c
 	struct alarm_pending *ap = &c->alm[ai];
 	int k = key_index(alarm_key_names, key);
 	if (k < 0) {
-		config_error(c, c->line, "unknown key '%s' in [alarm.%s]", key, a->name);
+		unknown_key(c, key, alarm_key_names);
 		return -EINVAL;
 	}
 	if (!first_time(c, &ap->keys_set, (unsigned)k, key))
@@ -538,7 +568,7 @@ int config_replay_key(struct config_ctx *c, const char *key, const char *v)
 	struct replay_cfg *r = &c->cfg->replay;
 	int k = key_index(replay_key_names, key);
 	if (k < 0) {
-		config_error(c, c->line, "unknown key '%s' in [replay]", key);
+		unknown_key(c, key, replay_key_names);
 		return -EINVAL;
 	}
 	if (!first_time(c, &c->replay_keys_set, (unsigned)k, key))

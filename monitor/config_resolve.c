@@ -15,8 +15,58 @@
 
 #include "mbclient.h"
 #include "packing.h"
+#include "suggest.h"
 #include "tzone.h"
 #include "validate.h"
+
+/* Name getters for "did you mean" (suggest.h). */
+static const char *tag_name_at(const void *ctx, unsigned i)
+{
+	return ((const struct fg_config *)ctx)->tags[i].name;
+}
+
+static const char *source_name_at(const void *ctx, unsigned i)
+{
+	return ((const struct fg_config *)ctx)->sources[i].name;
+}
+
+static const char *section_name_at(const void *ctx, unsigned i)
+{
+	return ((const struct fg_config *)ctx)->sections[i].name;
+}
+
+static const char *alarm_name_at(const void *ctx, unsigned i)
+{
+	return ((const struct fg_config *)ctx)->alarms[i].name;
+}
+
+static const char *field_name_at(const void *ctx, unsigned i)
+{
+	(void)ctx;
+	return result_fields[i].name;
+}
+
+const char *config_suggest(const struct fg_config *cfg, enum config_name_kind kind,
+			   const char *word, char *buf, size_t buf_size)
+{
+	assert(cfg != NULL);
+	assert(word != NULL);
+	const char *best = NULL;
+	switch (kind) {
+	case CONFIG_NAME_TAG: best = suggest_best(word, tag_name_at, cfg, cfg->tag_count); break;
+	case CONFIG_NAME_SOURCE:
+		best = suggest_best(word, source_name_at, cfg, cfg->source_count);
+		break;
+	case CONFIG_NAME_SECTION:
+		best = suggest_best(word, section_name_at, cfg, cfg->section_count);
+		break;
+	case CONFIG_NAME_ALARM:
+		best = suggest_best(word, alarm_name_at, cfg, cfg->alarm_count);
+		break;
+	case CONFIG_NAME_FIELD: best = suggest_best(word, field_name_at, NULL, RF_COUNT); break;
+	}
+	return suggest_text(best, buf, buf_size);
+}
 
 const char *config_tag_column(const struct tag_cfg *t)
 {
@@ -198,12 +248,15 @@ static void resolve_tags(struct config_ctx *c)
 			config_error(c, t->line, "[tag.%s] needs 'source' (polled) or 'value' (fixed)",
 				     t->name);
 		if (polled) {
+			char dym[SUGGEST_NAME_MAX + 32];
 			const struct pending_name *pn = &c->tag_source[i];
 			for (unsigned k = 0; k < c->cfg->source_count; k++)
 				if (!strcmp(c->cfg->sources[k].name, pn->name))
 					t->source_index = (int)k;
 			if (t->source_index < 0)
-				config_error(c, pn->line, "source '%s' is not defined", pn->name);
+				config_error(c, pn->line, "source '%s' is not defined%s", pn->name,
+					     config_suggest(c->cfg, CONFIG_NAME_SOURCE, pn->name, dym,
+							    sizeof(dym)));
 			if (!(set & (1u << 2)))
 				config_error(c, t->line, "[tag.%s] needs 'address'", t->name);
 			if (!(set & (1u << 3)))
@@ -258,8 +311,10 @@ static void resolve_signals(struct config_ctx *c, unsigned si)
 			continue;
 		int ti = config_tag_index(c->cfg, pn->name);
 		if (ti < 0) {
-			config_error(c, pn->line, "%s: tag '%s' is not defined", signal_names[k],
-				     pn->name);
+			char dym[SUGGEST_NAME_MAX + 32];
+			config_error(c, pn->line, "%s: tag '%s' is not defined%s", signal_names[k],
+				     pn->name, config_suggest(c->cfg, CONFIG_NAME_TAG, pn->name, dym,
+							      sizeof(dym)));
 			continue;
 		}
 		const struct tag_cfg *t = &c->cfg->tags[ti];
@@ -432,8 +487,11 @@ static void resolve_alarm(struct config_ctx *c, unsigned ai)
 		return;
 	}
 	int si = config_section_index(c->cfg, ap->section.name);
+	char dym[SUGGEST_NAME_MAX + 32];
 	if (si < 0) {
-		config_error(c, ap->section.line, "section '%s' is not defined", ap->section.name);
+		config_error(c, ap->section.line, "section '%s' is not defined%s", ap->section.name,
+			     config_suggest(c->cfg, CONFIG_NAME_SECTION, ap->section.name, dym,
+					    sizeof(dym)));
 		return;
 	}
 	a->section_index = (unsigned)si;
@@ -456,9 +514,11 @@ static void resolve_alarm(struct config_ctx *c, unsigned ai)
 	} else {
 		a->field = result_field_lookup(ap->signal.name);
 		if (a->field < 0) {
-			config_error(c, ap->signal.line, "signal: '%s' is not a result field (e.g. "
+			config_error(c, ap->signal.line, "signal: '%s' is not a result field%s (e.g. "
 							 "flood_index, flood_pct, weep_pct, dp_pa)",
-				     ap->signal.name);
+				     ap->signal.name, config_suggest(c->cfg, CONFIG_NAME_FIELD,
+								     ap->signal.name, dym,
+								     sizeof(dym)));
 			return;
 		}
 	}

@@ -153,8 +153,11 @@ static void commands(struct daemon *d, int64_t t_ms)
 			rc = apply_command(d, &c, ai, t_ms);
 			if (ai >= 0)
 				state = alarm_state_name(d->eng->alarms[ai].state);
+			char dym[160] = "";
+			if (ai < 0)
+				config_suggest(d->cfg, CONFIG_NAME_ALARM, c.alarm, dym, sizeof(dym));
 			if (rc != 0)
-				snprintf(err, sizeof(err), "%s", command_error_text(rc));
+				snprintf(err, sizeof(err), "%s%s", command_error_text(rc), dym);
 		}
 		/* Escaped: a payload must not forge log lines or steer a terminal. */
 		command_log_escape(payload, (size_t)n, shown, sizeof(shown));
