@@ -10,6 +10,9 @@
  * table in front of us while this file was written; such values should be
  * checked against the cited table before they are trusted, and a config may
  * override any of them.
+ * python3-fluids 1.0.22 (Debian's) ships no packing table, only the
+ * constants of Stichlmair's worked example in its docstrings, so it cannot
+ * confirm these rows beyond that one.
  * Constants we could not recall with confidence are NAN rather than guessed:
  * the evaluations then fall back (Robbins for the DP model, the other flood
  * method) or leave the field NAN with a note.

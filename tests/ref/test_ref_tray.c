@@ -11,7 +11,11 @@
  *  - the original equations evaluated by hand (with /usr/bin/python3, not
  *    with this code) at a stated point: guards our typing of the equations;
  *  - one comparison between the two flood methods against a published
- *    comparison of their spread.
+ *    comparison of their spread;
+ *  - the whole section through section_eval: Fair and Kister-Haas on the
+ *    base plate of the worked example (an aqueous, low gas density system)
+ *    and against the measured hole-area and hole-size trends Kister
+ *    (Distillation Design, 1992, sec. 6.2) draws from test data.
  */
 #include <stdarg.h>
 #include <stddef.h>
