@@ -125,21 +125,27 @@ static void push_event(struct engine *e, const struct alarm_event *ev)
 	e->events[e->event_count++] = *ev;
 }
 
+void engine_alarm_input(const struct engine *e, unsigned ai, struct alarm_input *in)
+{
+	assert(ai < e->cfg->alarm_count);
+	const struct alarm *a = &e->alarms[ai];
+	const struct engine_section *es = &e->sec[a->cfg.section_index];
+	bool diag = a->cfg.kind == ALARM_KIND_DIAGNOSTIC;
+	in->value = diag ? (es->diag_tag >= 0 ? e->tags[es->diag_tag].accepted : NAN)
+			 : es->r.v[a->cfg.field];
+	in->reference = a->cfg.reference_field >= 0 ? es->r.v[a->cfg.reference_field] : NAN;
+	in->quality = es->r.quality;
+	in->suppressed = !diag && !es->in_service;
+	in->diag_reason = es->diag_reason;
+}
+
 static void eval_alarms(struct engine *e, int64_t t_ms)
 {
 	for (unsigned i = 0; i < e->cfg->alarm_count; i++) {
 		struct alarm *a = &e->alarms[i];
 		const struct engine_section *es = &e->sec[a->cfg.section_index];
-		bool diag = a->cfg.kind == ALARM_KIND_DIAGNOSTIC;
-		struct alarm_input in = {
-			.value = diag ? (es->diag_tag >= 0 ? e->tags[es->diag_tag].accepted : NAN)
-				      : es->r.v[a->cfg.field],
-			.reference = a->cfg.reference_field >= 0 ? es->r.v[a->cfg.reference_field]
-								 : NAN,
-			.quality = es->r.quality,
-			.suppressed = !diag && !es->in_service,
-			.diag_reason = es->diag_reason,
-		};
+		struct alarm_input in;
+		engine_alarm_input(e, i, &in);
 		struct alarm_event ev;
 		if (alarm_step(a, &in, t_ms, &ev) != 1)
 			continue;

@@ -67,6 +67,13 @@ int engine_ack(struct engine *e, unsigned ai, int64_t t_ms);
 int engine_shelve(struct engine *e, unsigned ai, double duration_s, int64_t t_ms);
 int engine_unshelve(struct engine *e, unsigned ai, int64_t t_ms);
 
+/* What alarm ai was (or would be) given at the last engine_step: the value it
+ * watches, its reference, the section's quality and service state, the
+ * diagnostic reason. `floodgauge tune` stores these once and replays only the
+ * alarm's state machine over them, which equals a full replay by construction
+ * as long as the engine builds its own inputs here. */
+void engine_alarm_input(const struct engine *e, unsigned ai, struct alarm_input *in);
+
 /* Events since the last engine_step or engine_events_clear. */
 static inline unsigned engine_event_count(const struct engine *e) { return e->event_count; }
 static inline void engine_events_clear(struct engine *e) { e->event_count = 0; }

@@ -18,6 +18,7 @@ static const struct command commands[] = {
 	{"check", cmd_check, "validate a config file and say what is wrong"},
 	{"rate", cmd_rate, "evaluate one operating point of a section and print every result"},
 	{"replay", cmd_replay, "run the engine over recorded data; write results, events, report"},
+	{"tune", cmd_tune, "try alarm settings on recorded data: figures per candidate, pareto marked"},
 	{"simulate", cmd_simulate, "write synthetic plant data with an injected upset"},
 };
 
