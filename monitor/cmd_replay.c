@@ -46,6 +46,10 @@ struct replay {
 	struct report_marker markers[REPORT_MARKERS_MAX];
 	uint64_t rows_used, rows_outside;
 	int64_t prev_t_ms;
+	bool no_results;                  /* --no-results: no results.csv at all */
+	int64_t results_every_ms;         /* --results-every S in ms, 0: every row */
+	bool pending;                     /* a row waits for the end of its interval */
+	int64_t pending_t_ms, pending_slot;
 	char path_results[FG_PATH_MAX + 32], path_events[FG_PATH_MAX + 32],
 		path_report[FG_PATH_MAX + 32], path_summary[FG_PATH_MAX + 32];
 };
@@ -53,7 +57,8 @@ struct replay {
 static void replay_usage(FILE *f)
 {
 	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv [--out DIR] [--from T] [--to T]\n"
-		   "                        [--tz ZONE] [--event T[=LABEL]]...\n\n"
+		   "                        [--tz ZONE] [--event T[=LABEL]]...\n"
+		   "                        [--no-results | --results-every S]\n\n"
 		   "Runs the monitor's engine over recorded data (a historian export, wide:\n"
 		   "a time column and one column per tag, or long: time,tag,value[,status];\n"
 		   "ISO 8601 or epoch seconds, ',' or ';') and writes DIR/results.csv,\n"
@@ -63,6 +68,9 @@ static void replay_usage(FILE *f)
 		   "--event marks a known moment (e.g. the flood seen by the operators) on\n"
 		   "every chart and gives each alarm's lead time before it; repeat it for\n"
 		   "more (at most %d). Its time is read like --from, in the --tz zone.\n"
+		   "--no-results skips results.csv (events, summary and report are still\n"
+		   "written; an old results.csv in DIR is removed); --results-every S writes\n"
+		   "one results row per S seconds of data, the last sample of each interval.\n"
 		   HISTREAD_USAGE
 		   "Exit status: 0 ok, 1 output could not be written, 2 bad config or data.\n",
 		REPORT_MARKERS_MAX);
@@ -117,6 +125,21 @@ static int window_times(struct replay *rp)
 	return 0;
 }
 
+/* --results-every S: seconds (a decimal), at least 1 ms, at most a year. */
+static int parse_every(const char *text, int64_t *every_ms)
+{
+	char *end;
+	errno = 0;
+	double s = strtod(text, &end);
+	if (end == text || *end != '\0' || errno != 0 || !(s >= 0.001) || s > 3.2e7) {
+		fprintf(stderr, "floodgauge replay: --results-every '%s': give seconds, 0.001 to "
+				"32000000\n", text);
+		return -EINVAL;
+	}
+	*every_ms = llround(s * 1000.0);
+	return 0;
+}
+
 static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg_path)
 {
 	static const struct option opts[] = {{"config", required_argument, NULL, 'c'},
@@ -125,6 +148,8 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 					     {"to", required_argument, NULL, 't'},
 					     {"event", required_argument, NULL, 'e'},
 					     {"help", no_argument, NULL, 'h'},
+					     {"no-results", no_argument, NULL, 'R'},
+					     {"results-every", required_argument, NULL, 'E'},
 					     HISTREAD_LONG_OPTIONS,
 					     {0}};
 	int ch;
@@ -144,6 +169,11 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 			rp->event_text[rp->event_text_count++] = optarg;
 			break;
 		case 'h': replay_usage(stdout); return -1;
+		case 'R': rp->no_results = true; break;
+		case 'E':
+			if (parse_every(optarg, &rp->results_every_ms) != 0)
+				return EXIT_USAGE;
+			break;
 		default:
 			if (histread_opts_take(&rp->hopts, ch, optarg))
 				break;
@@ -153,6 +183,11 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 	}
 	if (*cfg_path == NULL || optind != argc - 1) {
 		replay_usage(stderr);
+		return EXIT_USAGE;
+	}
+	if (rp->no_results && rp->results_every_ms > 0) {
+		fprintf(stderr, "floodgauge replay: --no-results and --results-every exclude each "
+				"other\n");
 		return EXIT_USAGE;
 	}
 	rp->data_path = argv[optind];
@@ -170,15 +205,25 @@ static int open_outputs(struct replay *rp)
 	snprintf(rp->path_events, sizeof(rp->path_events), "%s/events.jsonl", rp->out_dir);
 	snprintf(rp->path_report, sizeof(rp->path_report), "%s/report.html", rp->out_dir);
 	snprintf(rp->path_summary, sizeof(rp->path_summary), "%s/summary.json", rp->out_dir);
-	rp->results = fopen(rp->path_results, "w");
+	if (rp->no_results) {
+		/* A results.csv of an earlier run would look like this run's. */
+		if (unlink(rp->path_results) != 0 && errno != ENOENT) {
+			fprintf(stderr, "floodgauge replay: cannot remove %s: %s\n",
+				rp->path_results, strerror(errno));
+			return EXIT_RUNTIME;
+		}
+	} else {
+		rp->results = fopen(rp->path_results, "w");
+	}
 	rp->events = fopen(rp->path_events, "w");
-	if (rp->results == NULL || rp->events == NULL) {
+	if ((rp->results == NULL && !rp->no_results) || rp->events == NULL) {
 		fprintf(stderr, "floodgauge replay: cannot write in %s: %s\n", rp->out_dir,
 			strerror(errno));
 		return EXIT_RUNTIME;
 	}
 	static char buf[1 << 16];
-	setvbuf(rp->results, buf, _IOFBF, sizeof(buf));
+	if (rp->results != NULL)
+		setvbuf(rp->results, buf, _IOFBF, sizeof(buf));
 	return 0;
 }
 
@@ -287,6 +332,48 @@ _Static_assert((int)REPORT_PRIORITY_URGENT == (int)ALARM_PRIORITY_URGENT &&
 		       (int)REPORT_PRIORITY_LOW == (int)ALARM_PRIORITY_LOW,
 	       "report and alarm priorities share their order");
 
+static int64_t floor_div_ms(int64_t t, int64_t d)
+{
+	int64_t q = t / d;
+	return (t % d != 0 && (t < 0) != (d < 0)) ? q - 1 : q;
+}
+
+/* The results of the row waiting for the end of its --results-every
+ * interval (copied: the engine moves on). */
+static struct section_result pending_res[FG_SECTIONS_MAX];
+
+static int flush_pending(struct replay *rp)
+{
+	if (!rp->pending)
+		return 0;
+	const struct section_result *res[FG_SECTIONS_MAX];
+	for (unsigned s = 0; s < rp->cfg->section_count; s++)
+		res[s] = &pending_res[s];
+	rp->pending = false;
+	return results_write_row(rp->results, rp->cfg, rp->pending_t_ms, res);
+}
+
+/* One row of results.csv: every row, none (--no-results), or the last row
+ * of each interval of --results-every (intervals aligned to the epoch, so
+ * the same data give the same rows whatever --from says). */
+static int write_results(struct replay *rp, int64_t t_ms,
+			 const struct section_result *const *res)
+{
+	if (rp->no_results)
+		return 0;
+	if (rp->results_every_ms == 0)
+		return results_write_row(rp->results, rp->cfg, t_ms, res);
+	int64_t slot = floor_div_ms(t_ms, rp->results_every_ms);
+	if (rp->pending && slot != rp->pending_slot && flush_pending(rp) != 0)
+		return -EIO;
+	for (unsigned s = 0; s < rp->cfg->section_count; s++)
+		pending_res[s] = *res[s];
+	rp->pending = true;
+	rp->pending_t_ms = t_ms;
+	rp->pending_slot = slot;
+	return 0;
+}
+
 static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 		    const enum tag_status *status)
 {
@@ -303,7 +390,7 @@ static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 		copy[s] = rp->eng->sec[s].r;
 		res[s] = &copy[s];
 	}
-	if (results_write_row(rp->results, rp->cfg, t_ms, res) != 0 || write_events(rp) != 0)
+	if (write_results(rp, t_ms, res) != 0 || write_events(rp) != 0)
 		return -EIO;
 	engine_events_clear(rp->eng);
 	report_add_row(&rp->rp, t_ms, copy);
@@ -517,8 +604,12 @@ static void print_summary(const struct replay *rp)
 		printf("    %-24s %10s\n", cfg->alarms[i].name, d);
 	}
 	print_perf(rp);
-	printf("  wrote %s, %s, %s, %s\n", rp->path_results, rp->path_events, rp->path_summary,
-	       rp->path_report);
+	if (rp->no_results)
+		printf("  wrote %s, %s, %s (no results.csv: --no-results)\n", rp->path_events,
+		       rp->path_summary, rp->path_report);
+	else
+		printf("  wrote %s, %s, %s, %s\n", rp->path_results, rp->path_events,
+		       rp->path_summary, rp->path_report);
 	fg_caution_print(stdout);
 }
 
@@ -535,7 +626,7 @@ static int replay_run(struct replay *rp)
 	report_summary_clear(&rp->sum);
 	if (perf_init(rp) != 0)
 		return EXIT_RUNTIME;
-	if (results_write_header(rp->results, rp->cfg) != 0)
+	if (rp->results != NULL && results_write_header(rp->results, rp->cfg) != 0)
 		return EXIT_RUNTIME;
 	rc = run_rows(rp);
 	if (rc != 0)
@@ -546,7 +637,8 @@ static int replay_run(struct replay *rp)
 	rp->sum.rows_malformed = st->rows_malformed;
 	rp->sum.rows_unsorted = st->rows_unsorted;
 	rp->sum.rows_duplicate = st->rows_duplicate;
-	if (fflush(rp->results) != 0 || fflush(rp->events) != 0) {
+	if ((rp->results != NULL && (flush_pending(rp) != 0 || fflush(rp->results) != 0)) ||
+	    fflush(rp->events) != 0) {
 		fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir, strerror(errno));
 		return EXIT_RUNTIME;
 	}

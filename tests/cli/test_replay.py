@@ -150,6 +150,36 @@ if m and ramp:
     rc, so, se, ev = replay(csv, os.path.join(tmp, "event3"), "--event", "yesterday=x")
     ok(rc == 2 and "--event" in se and "yesterday" in se, "a bad --event time exits 2", se)
 
+    # --no-results: events and report as before, no results.csv (an old one removed)
+    out4n = os.path.join(tmp, "nores")
+    os.makedirs(out4n, exist_ok=True)
+    open(os.path.join(out4n, "results.csv"), "w").write("stale\n")
+    rc, so, se, ev = replay(csv, out4n, "--no-results")
+    ok(rc == 0 and not os.path.exists(os.path.join(out4n, "results.csv")),
+       "--no-results writes no results.csv and removes an old one", so + se)
+    ok(open(os.path.join(out4n, "events.jsonl"), "rb").read()
+       == open(os.path.join(out, "events.jsonl"), "rb").read(),
+       "--no-results gives the same events.jsonl")
+    ok(os.path.getsize(os.path.join(out4n, "report.html")) > 0, "--no-results writes the report")
+
+    # --results-every 60: the last row of each minute, byte for byte as in the full file
+    out5e = os.path.join(tmp, "every")
+    rc, so, se, ev = replay(csv, out5e, "--results-every", "60")
+    full = open(os.path.join(out, "results.csv")).read().splitlines()
+    every = open(os.path.join(out5e, "results.csv")).read().splitlines()
+    by_minute = {}
+    for line in full[1:]:
+        by_minute[line[:16]] = line  # "YYYY-MM-DDTHH:MM": the last row of the minute wins
+    ok(rc == 0 and every[0] == full[0], "--results-every keeps the header", se)
+    ok(every[1:] == sorted(by_minute.values()),
+       "--results-every 60 writes the last sample of each minute, unchanged",
+       (len(every), len(by_minute)))
+    rc, so, se = fg("replay", "-c", DEMO, csv, "--out", out5e, "--no-results",
+                    "--results-every", "60")
+    ok(rc == 2 and "exclude" in se, "--no-results with --results-every is a usage error", se)
+    rc, so, se = fg("replay", "-c", DEMO, csv, "--out", out5e, "--results-every", "0")
+    ok(rc == 2 and "--results-every" in se, "--results-every 0 is a usage error", se)
+
 # --- steady: nothing at all
 csv = os.path.join(tmp, "steady.csv")
 simulate("steady", csv)
