@@ -96,9 +96,18 @@ run: deps
 	@$(MAKE) --no-print-directory bin
 	@FG_BIN=$(BIN) sh tools/demo.sh
 
+# The bench's own programs: the data generator and the stage timer.
+BENCH_TOOLS := $(BUILD)/tools/benchgen $(BUILD)/tools/benchtool
+$(BUILD)/tools/benchgen: tools/benchgen.c
+	@mkdir -p $(@D)
+	$(CC) $(CPPFLAGS) $(CFLAGS) -o $@ $< -lm
+$(BUILD)/tools/benchtool: tools/benchtool.c $(BUILD)/libfg.a
+	@mkdir -p $(@D)
+	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) $(CFLAGS) -o $@ $< $(BUILD)/libfg.a $(LDLIBS)
+
 bench: deps
-	@$(MAKE) --no-print-directory bin
-	@FG_BIN=$(BIN) sh tools/bench.sh
+	@$(MAKE) --no-print-directory bin $(BENCH_TOOLS)
+	@FG_BIN=$(BIN) FG_TOOLS=$(BUILD)/tools sh tools/bench.sh
 
 install: all
 	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/man/man1 \
@@ -113,4 +122,4 @@ install: all
 clean:
 	rm -rf build
 
--include $(LIB_OBJ:.o=.d) $(MAIN_OBJ:.o=.d) $(TSUP_OBJ:.o=.d) $(TEST_BIN:=.d)
+-include $(LIB_OBJ:.o=.d) $(MAIN_OBJ:.o=.d) $(TSUP_OBJ:.o=.d) $(TEST_BIN:=.d) $(BENCH_TOOLS:=.d)

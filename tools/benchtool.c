@@ -1,0 +1,194 @@
+/*
+ * benchtool.c - the timed stages of `make bench` that the floodgauge
+ * command line cannot isolate (built against build/libfg.a).
+ *
+ *   benchtool read CONFIG DATA.csv   the reading stage alone: every row's
+ *                                    time and numbers parsed (histread), no
+ *                                    engine; prints rows and seconds
+ *   benchtool engine CONFIG...       the engine from a tight loop over
+ *                                    pre-parsed samples: per section type,
+ *                                    the section evaluation with warm starts
+ *                                    (section_eval_warm), and engine_step per
+ *                                    row and per section-sample
+ *
+ * Samples for `engine` swing each tag between 0.6 and 1.05 of its nominal
+ * value over an hour with 1 % noise, from a fixed seed: the steady load a
+ * monitor mostly sees, with the excursions that move the solvers.
+ */
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+
+#include "config.h"
+#include "engine.h"
+#include "histread.h"
+#include "point.h"
+
+#define SAMPLES 20000
+
+static double now_s(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (double)ts.tv_sec + (double)ts.tv_nsec * 1e-9;
+}
+
+static struct fg_config *load(const char *path)
+{
+	struct fg_config *cfg = malloc(sizeof *cfg);
+	if (cfg == NULL || config_load(cfg, path, stderr) != 0) {
+		fprintf(stderr, "benchtool: cannot load %s\n", path);
+		exit(2);
+	}
+	return cfg;
+}
+
+static int cmd_read(const char *cfg_path, const char *data)
+{
+	struct fg_config *cfg = load(cfg_path);
+	static struct histread h;
+	static double values[FG_TAGS_MAX];
+	static enum tag_status status[FG_TAGS_MAX];
+	struct histread_opts o = {0};
+	char err[512];
+	double t0 = now_s();
+	if (histread_init(&h, cfg, &o, err, sizeof err) != 0 ||
+	    histread_open(&h, data, stderr, err, sizeof err) != 0) {
+		fprintf(stderr, "benchtool: %s\n", err);
+		return 2;
+	}
+	int64_t t_ms;
+	unsigned long long rows = 0;
+	double check = 0.0;
+	int rc;
+	while ((rc = histread_next(&h, &t_ms, values, status)) == 1) {
+		rows++;
+		check += values[0];
+	}
+	double dt = now_s() - t0;
+	histread_fini(&h);
+	printf("%llu %.6f %.3f\n", rows, dt, check);
+	free(cfg);
+	return rc < 0;
+}
+
+static unsigned long long rng = 0x9e3779b97f4a7c15ull;
+
+static double uniform(void)
+{
+	rng ^= rng >> 12;
+	rng ^= rng << 25;
+	rng ^= rng >> 27;
+	return (double)((rng * 2685821657736338717ull) >> 11) * 0x1p-53;
+}
+
+static const char *label(const struct section_cfg *s)
+{
+	static char buf[64];
+	const char *t = config_section_type_name(s->geom.type);
+	if (s->geom.type == SECTION_PACKED)
+		snprintf(buf, sizeof buf, "%s (%s)", t,
+			 s->geom.packed.flood_method == PACKED_FLOOD_STICHLMAIR ? "stichlmair"
+										: "billet-schultes");
+	else if (s->geom.type == SECTION_TRAY)
+		snprintf(buf, sizeof buf, "%s (%s)", t,
+			 s->geom.tray.flood_method == TRAY_FLOOD_FAIR ? "fair" : "kister-haas");
+	else
+		snprintf(buf, sizeof buf, "%s", t);
+	return buf;
+}
+
+static void fill_samples(const struct fg_config *cfg, double *vals)
+{
+	for (unsigned i = 0; i < SAMPLES; i++) {
+		double load = 0.825 + 0.225 * sin(2.0 * 3.141592653589793 * i / 3600.0);
+		for (unsigned t = 0; t < cfg->tag_count; t++) {
+			const struct tag_cfg *tc = &cfg->tags[t];
+			double nom = isfinite(tc->nominal) ? tc->nominal : 1.0;
+			vals[(size_t)i * cfg->tag_count + t] =
+				tc->source_index < 0 ? tc->fixed_value
+						     : nom * load * (1.0 + 0.01 * (uniform() - 0.5));
+		}
+	}
+}
+
+static double bench_sections(const struct fg_config *cfg, const double *vals, double *sum_ns)
+{
+	static struct section_point pts[SAMPLES];
+	double types = 0.0;
+	for (unsigned si = 0; si < cfg->section_count; si++) {
+		const struct section_cfg *s = &cfg->sections[si];
+		for (unsigned i = 0; i < SAMPLES; i++)
+			point_from_tags(cfg, si, vals + (size_t)i * cfg->tag_count, &pts[i]);
+		struct solve_warm w;
+		solve_warm_clear(&w);
+		struct section_result r;
+		double sink = 0.0, best = INFINITY;
+		for (int rep = 0; rep < 5; rep++) {
+			double t0 = now_s();
+			for (unsigned i = 0; i < SAMPLES; i++) {
+				section_eval_warm(&s->geom, &s->props, &pts[i], &r, &w);
+				sink += r.v[RF_FLOOD_PCT];
+			}
+			best = fmin(best, now_s() - t0);
+		}
+		double ns = best / SAMPLES * 1e9;
+		printf("  section %-10s %-28s %8.0f ns per evaluation (flood %% mean %.1f)\n",
+		       s->name, label(s), ns, sink / (5.0 * SAMPLES));
+		*sum_ns += ns;
+		types += 1.0;
+	}
+	return types;
+}
+
+static int cmd_engine(int argc, char **argv)
+{
+	double sum_ns = 0.0, n = 0.0;
+	for (int a = 0; a < argc; a++) {
+		struct fg_config *cfg = load(argv[a]);
+		struct engine *e = malloc(sizeof *e);
+		double *vals = malloc(sizeof(double) * SAMPLES * cfg->tag_count);
+		static enum tag_status status[FG_TAGS_MAX];
+		if (e == NULL || vals == NULL)
+			return 1;
+		for (unsigned t = 0; t < cfg->tag_count; t++)
+			status[t] = TAG_STATUS_FRESH;
+		fill_samples(cfg, vals);
+		printf("%s (%u sections, %u alarms, %d pre-parsed samples):\n", argv[a],
+		       cfg->section_count, cfg->alarm_count, SAMPLES);
+		n += bench_sections(cfg, vals, &sum_ns);
+		engine_init(e, cfg);
+		double best = INFINITY;
+		int64_t t_ms = 1767225600000;
+		for (int rep = 0; rep < 5; rep++) {
+			double t0 = now_s();
+			for (unsigned i = 0; i < SAMPLES; i++) {
+				engine_step(e, t_ms, vals + (size_t)i * cfg->tag_count, status);
+				engine_events_clear(e);
+				t_ms += 1000;
+			}
+			best = fmin(best, now_s() - t0);
+		}
+		double row_ns = best / SAMPLES * 1e9;
+		printf("  engine_step (validate, models, soft sensors, alarms): %.0f ns per row, "
+		       "%.0f ns per section-sample\n", row_ns, row_ns / cfg->section_count);
+		free(vals);
+		free(e);
+		free(cfg);
+	}
+	printf("average over the %.0f sections above: %.0f ns per section evaluation\n", n,
+	       sum_ns / n);
+	return 0;
+}
+
+int main(int argc, char **argv)
+{
+	if (argc == 4 && strcmp(argv[1], "read") == 0)
+		return cmd_read(argv[2], argv[3]);
+	if (argc >= 3 && strcmp(argv[1], "engine") == 0)
+		return cmd_engine(argc - 2, argv + 2);
+	fprintf(stderr, "usage: benchtool read CONFIG DATA.csv | benchtool engine CONFIG...\n");
+	return 2;
+}
