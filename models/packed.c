@@ -21,7 +21,7 @@
  *
  * The *_warm variants solve the same equations from the last sample's
  * answers (struct solve_warm, see solve.h): a bracket found near the guess
- * and closed by Brent's method, on ln t, ln y and ln u to 1e-13 relative,
+ * and closed by Brent's method, on ln t, ln y and ln u to 1e-12 relative,
  * and the cold bisections above whenever the guess brackets nothing. They
  * agree with the cold functions to 1e-9 relative (tests/unit/test_warm.c).
  */

@@ -100,22 +100,33 @@ bool solve_near(solve_fn f, const void *ctx, double lo, double hi, bool rising, 
 	if (isnan(f0))
 		return false;
 	/* The root is above the guess when f is still below zero there (rising). */
-	bool up = rising ? f0 < 0.0 : f0 > 0.0;
+	double dir = (rising ? f0 < 0.0 : f0 > 0.0) ? 1.0 : -1.0;
+	double xp = NAN, fp = NAN;
 	for (int k = 0; k < SOLVE_WARM_STEPS; k++) {
-		if ((up && x0 >= hi) || (!up && x0 <= lo))
+		if ((dir > 0.0 && x0 >= hi) || (dir < 0.0 && x0 <= lo))
 			return false;
-		double x1 = up ? fmin(x0 + step, hi) : fmax(x0 - step, lo);
+		/* First a probe of one step; then the secant through the last two
+		 * points, overshooting by a tenth so that the root is bracketed
+		 * tightly; the plain doubling step when the secant points back. */
+		double d = step * ldexp(1.0, k);
+		if (k > 0 && isfinite(fp) && isfinite(f0) && f0 != fp) {
+			double ds = -f0 * (x0 - xp) / (f0 - fp);
+			if (isfinite(ds) && ds * dir > 0.0)
+				d = fmin(fabs(ds) * 1.1 + 4.0 * tol, d * 16.0);
+		}
+		double x1 = dir > 0.0 ? fmin(x0 + d, hi) : fmax(x0 - d, lo);
 		double f1 = eval(f, ctx, x1, evals);
 		if (isnan(f1))
 			return false;
 		if (!same_sign(f0, f1)) {
-			*root = up ? solve_brent(f, ctx, x0, f0, x1, f1, tol, evals)
-				   : solve_brent(f, ctx, x1, f1, x0, f0, tol, evals);
+			*root = dir > 0.0 ? solve_brent(f, ctx, x0, f0, x1, f1, tol, evals)
+					  : solve_brent(f, ctx, x1, f1, x0, f0, tol, evals);
 			return true;
 		}
+		xp = x0;
+		fp = f0;
 		x0 = x1;
 		f0 = f1;
-		step *= 2.0;
 	}
 	return false;
 }

@@ -8,8 +8,10 @@
  * operating point, so the last answer is an excellent first guess. Each
  * solve here:
  *   1. brackets the root near the guess: it evaluates f at the guess, then
- *      steps away from it towards the sign change, doubling the step, at
- *      most SOLVE_WARM_STEPS times (never beyond the caller's [lo, hi]);
+ *      steps towards the sign change: a first probe of the caller's step,
+ *      then the secant through the last two points with a 10 % overshoot
+ *      (or a doubled step when the secant points back), at most
+ *      SOLVE_WARM_STEPS times, never beyond the caller's [lo, hi];
  *   2. closes the bracket with Brent's method (R. P. Brent, "Algorithms for
  *      Minimization without Derivatives", 1973, ch. 4: inverse quadratic
  *      interpolation and secant steps, bisection whenever those would not
@@ -21,7 +23,7 @@
  * SOLVE_WARM_STEPS + 2 + SOLVE_BRENT_MAX evaluations of f.
  *
  * Tolerance: callers solve on a logarithm (ln u, ln t, ln Re) with
- * SOLVE_TOL_LN = 1e-13, i.e. 1e-13 relative in the quantity; the cold
+ * SOLVE_TOL_LN = 1e-12, i.e. 1e-12 relative in the quantity; the cold
  * bisections they replace stop at 1e-15..1e-10 relative, so warm and cold
  * answers agree to about 1e-10 relative at worst, inside the 1e-9 the
  * replay promises (tests/unit/test_solve.c, test_warm.c).
@@ -41,8 +43,8 @@
  * halves a 100-wide log interval to 1e-13 in 50 steps). */
 #define SOLVE_BRENT_MAX 120
 
-/* Absolute tolerance on a logarithm: 1e-13 relative in the quantity. */
-#define SOLVE_TOL_LN 1e-13
+/* Absolute tolerance on a logarithm: 1e-12 relative in the quantity. */
+#define SOLVE_TOL_LN 1e-12
 
 /* f(x, ctx). May return +-INFINITY where the model has no value (beyond a
  * limit); it must be monotone over the bracket. */

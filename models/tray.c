@@ -530,7 +530,7 @@ static double jet_resid_ln(double ln_gas, const void *ctx)
 }
 
 /* flood_gas_kgs from the guess *ln_gas (updated), warm-started by solve.h's
- * bracketed Brent solve on ln G to 1e-13 relative; the cold doubling and
+ * bracketed Brent solve on ln G to 1e-12 relative; the cold doubling and
  * bisection when ln_gas is NULL or the guess brackets nothing. */
 static double flood_gas_kgs_w(const struct section_geom *g, const struct fluid_state *f,
 			      const struct areas *a, double liq_kgs, double *ln_gas)
