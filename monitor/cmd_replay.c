@@ -27,8 +27,17 @@
 #include "results.h"
 #include "timefmt.h"
 
+/* Files of one series (`replay -c FILE a.csv b.csv ...`): a year as twelve
+ * monthly exports. */
+#define REPLAY_FILES_MAX 4096
+
 struct replay {
-	const char *data_path;
+	const char *data_path;            /* the file being read */
+	const char *data_paths[REPLAY_FILES_MAX]; /* in time order once sorted */
+	unsigned data_count;
+	uint64_t bytes_before, bytes_all; /* progress over every file */
+	uint64_t rows_overlap;            /* rows not after the previous file's last */
+	struct csvread_stats all;         /* counters summed over the files */
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
 	const char *from_text, *to_text;  /* --from/--to as given (read in the zone) */
@@ -56,7 +65,7 @@ struct replay {
 
 static void replay_usage(FILE *f)
 {
-	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv [--out DIR] [--from T] [--to T]\n"
+	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv... [--out DIR] [--from T] [--to T]\n"
 		   "                        [--tz ZONE] [--event T[=LABEL]]...\n"
 		   "                        [--no-results | --results-every S]\n\n"
 		   "Runs the monitor's engine over recorded data (a historian export, wide:\n"
@@ -68,6 +77,8 @@ static void replay_usage(FILE *f)
 		   "--event marks a known moment (e.g. the flood seen by the operators) on\n"
 		   "every chart and gives each alarm's lead time before it; repeat it for\n"
 		   "more (at most %d). Its time is read like --from, in the --tz zone.\n"
+		   "Several files are one series, taken in the time order of their first\n"
+		   "rows (rows where they overlap are skipped and counted).\n"
 		   "--no-results skips results.csv (events, summary and report are still\n"
 		   "written; an old results.csv in DIR is removed); --results-every S writes\n"
 		   "one results row per S seconds of data, the last sample of each interval.\n"
@@ -181,8 +192,12 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 			return EXIT_USAGE;
 		}
 	}
-	if (*cfg_path == NULL || optind != argc - 1) {
+	if (*cfg_path == NULL || optind >= argc) {
 		replay_usage(stderr);
+		return EXIT_USAGE;
+	}
+	if (argc - optind > REPLAY_FILES_MAX) {
+		fprintf(stderr, "floodgauge replay: at most %d data files\n", REPLAY_FILES_MAX);
 		return EXIT_USAGE;
 	}
 	if (rp->no_results && rp->results_every_ms > 0) {
@@ -190,7 +205,9 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 				"other\n");
 		return EXIT_USAGE;
 	}
-	rp->data_path = argv[optind];
+	for (int i = optind; i < argc; i++)
+		rp->data_paths[rp->data_count++] = argv[i];
+	rp->data_path = rp->data_paths[0];
 	return 0;
 }
 
@@ -227,6 +244,39 @@ static int open_outputs(struct replay *rp)
 	return 0;
 }
 
+/* Sorts the files by the time of their first row (files without rows go
+ * last) and adds up their sizes for the progress line. */
+static int order_files(struct replay *rp)
+{
+	static int64_t first_t[REPLAY_FILES_MAX];
+	static double values[FG_TAGS_MAX];
+	static enum tag_status status[FG_TAGS_MAX];
+	char err[512];
+	for (unsigned i = 0; i < rp->data_count; i++) {
+		if (histread_open(&rp->hist, rp->data_paths[i], NULL, err, sizeof(err)) != 0) {
+			fprintf(stderr, "floodgauge replay: %s\n", err);
+			csvread_close(&rp->hist.csv);
+			return -EINVAL;
+		}
+		uint64_t done, total;
+		histread_progress(&rp->hist, &done, &total);
+		rp->bytes_all += total;
+		int64_t t;
+		first_t[i] = histread_next(&rp->hist, &t, values, status) == 1 ? t : INT64_MAX;
+		csvread_close(&rp->hist.csv);
+	}
+	for (unsigned i = 1; i < rp->data_count; i++) /* insertion sort, stable */
+		for (unsigned j = i; j > 0 && first_t[j - 1] > first_t[j]; j--) {
+			int64_t t = first_t[j];
+			first_t[j] = first_t[j - 1];
+			first_t[j - 1] = t;
+			const char *p = rp->data_paths[j];
+			rp->data_paths[j] = rp->data_paths[j - 1];
+			rp->data_paths[j - 1] = p;
+		}
+	return 0;
+}
+
 static int bind_columns(struct replay *rp)
 {
 	char err[512];
@@ -237,6 +287,9 @@ static int bind_columns(struct replay *rp)
 	int rc = window_times(rp);
 	if (rc != 0)
 		return rc;
+	if (rp->data_count > 1 && order_files(rp) != 0)
+		return EXIT_USAGE;
+	rp->data_path = rp->data_paths[0];
 	if (histread_open(&rp->hist, rp->data_path, stderr, err, sizeof(err)) != 0) {
 		fprintf(stderr, "floodgauge replay: %s\n", err);
 		return EXIT_USAGE;
@@ -257,7 +310,11 @@ static int report_layout_from(struct replay *rp)
 	const struct fg_config *cfg = rp->cfg;
 	memset(&lay, 0, sizeof(lay));
 	snprintf(lay.plant, sizeof(lay.plant), "%s", cfg->monitor.name);
-	snprintf(lay.data_file, sizeof(lay.data_file), "%s", rp->data_path);
+	if (rp->data_count > 1)
+		snprintf(lay.data_file, sizeof(lay.data_file), "%s and %u more files", rp->data_path,
+			 rp->data_count - 1);
+	else
+		snprintf(lay.data_file, sizeof(lay.data_file), "%s", rp->data_path);
 	lay.section_count = cfg->section_count;
 	for (unsigned i = 0; i < cfg->section_count; i++) {
 		snprintf(lay.sections[i].name, FG_NAME_MAX, "%s", cfg->sections[i].name);
@@ -422,6 +479,10 @@ static void progress(const struct replay *rp, double t0, double *next, bool fina
 	*next = now + 0.5;
 	uint64_t done = 0, total = 0;
 	histread_progress(&rp->hist, &done, &total);
+	if (rp->data_count > 1) {
+		done += rp->bytes_before;
+		total = rp->bytes_all;
+	}
 	double rate = (double)rp->rows_used / fmax(now - t0, 1e-3);
 	if (total > 0 && done > 0) {
 		double left = (now - t0) * (double)(total - done) / (double)done;
@@ -435,36 +496,6 @@ static void progress(const struct replay *rp, double t0, double *next, bool fina
 		fputc('\n', stderr);
 }
 
-static int run_rows(struct replay *rp)
-{
-	static double values[FG_TAGS_MAX];
-	static enum tag_status status[FG_TAGS_MAX];
-	bool tty = isatty(STDERR_FILENO);
-	double t0 = wall_s(), next = t0 + 0.5;
-	int64_t t_ms;
-	int rc;
-	while ((rc = histread_next(&rp->hist, &t_ms, values, status)) == 1) {
-		if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms) {
-			rp->rows_outside++;
-			continue;
-		}
-		if (step_row(rp, t_ms, values, status) != 0) {
-			fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir,
-				strerror(errno));
-			return EXIT_RUNTIME;
-		}
-		if (tty)
-			progress(rp, t0, &next, false);
-	}
-	if (tty)
-		progress(rp, t0, &next, true);
-	if (rc < 0) {
-		fprintf(stderr, "floodgauge replay: reading %s: %s\n", rp->data_path, strerror(-rc));
-		return EXIT_RUNTIME;
-	}
-	return 0;
-}
-
 static void warn_skipped(const struct replay *rp)
 {
 	const struct csvread_stats *st = histread_stats(&rp->hist);
@@ -475,8 +506,8 @@ static void warn_skipped(const struct replay *rp)
 			csvread_problem_kind_name(st->problems[i].kind), st->problems[i].reason);
 	uint64_t all = st->rows_malformed + st->rows_unsorted + st->rows_duplicate;
 	if (all > st->problem_count)
-		fprintf(stderr, "floodgauge replay: ... %llu skipped rows in all\n",
-			(unsigned long long)all);
+		fprintf(stderr, "floodgauge replay: %s: ... %llu skipped rows in all\n",
+			rp->data_path, (unsigned long long)all);
 }
 
 static int perf_init(struct replay *rp)
@@ -560,6 +591,78 @@ static void print_perf(const struct replay *rp)
 	}
 }
 
+/* Ends the current file: its warnings, its counters into rp->all. */
+static void end_file(struct replay *rp)
+{
+	const struct csvread_stats *st = histread_stats(&rp->hist);
+	warn_skipped(rp);
+	rp->all.rows_read += st->rows_read;
+	rp->all.rows_malformed += st->rows_malformed;
+	rp->all.rows_unsorted += st->rows_unsorted;
+	rp->all.rows_duplicate += st->rows_duplicate;
+	uint64_t done, total;
+	histread_progress(&rp->hist, &done, &total);
+	rp->bytes_before += done;
+}
+
+/* Opens file fi of the series (the reader keeps its zone and bindings). */
+static int next_file(struct replay *rp, unsigned fi)
+{
+	char err[512];
+	csvread_close(&rp->hist.csv);
+	rp->data_path = rp->data_paths[fi];
+	if (histread_open(&rp->hist, rp->data_path, stderr, err, sizeof(err)) != 0) {
+		fprintf(stderr, "floodgauge replay: %s\n", err);
+		return EXIT_USAGE;
+	}
+	return 0;
+}
+
+static int run_rows(struct replay *rp)
+{
+	static double values[FG_TAGS_MAX];
+	static enum tag_status status[FG_TAGS_MAX];
+	bool tty = isatty(STDERR_FILENO);
+	double t0 = wall_s(), next = t0 + 0.5;
+	int64_t t_ms;
+	int rc = 0;
+	for (unsigned fi = 0; fi < rp->data_count; fi++) {
+		if (fi > 0 && (rc = next_file(rp, fi)) != 0)
+			return rc;
+		while ((rc = histread_next(&rp->hist, &t_ms, values, status)) == 1) {
+			if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms) {
+				rp->rows_outside++;
+				continue;
+			}
+			/* Files of one series may overlap: a row not after the
+			 * last one used is out of time order, as within a file. */
+			if (rp->rows_used > 0 && t_ms <= rp->prev_t_ms) {
+				rp->rows_overlap++;
+				continue;
+			}
+			if (step_row(rp, t_ms, values, status) != 0) {
+				fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir,
+					strerror(errno));
+				return EXIT_RUNTIME;
+			}
+			if (tty)
+				progress(rp, t0, &next, false);
+		}
+		if (rc < 0) {
+			fprintf(stderr, "floodgauge replay: reading %s: %s\n", rp->data_path,
+				strerror(-rc));
+			return EXIT_RUNTIME;
+		}
+		end_file(rp);
+	}
+	if (tty)
+		progress(rp, t0, &next, true);
+	if (rp->rows_overlap > 0)
+		fprintf(stderr, "floodgauge replay: %llu rows skipped where the files overlap in "
+				"time\n", (unsigned long long)rp->rows_overlap);
+	return 0;
+}
+
 static void print_summary(const struct replay *rp)
 {
 	const struct fg_config *cfg = rp->cfg;
@@ -572,7 +675,11 @@ static void print_summary(const struct replay *rp)
 	char span[NUMFMT_DURATION_SIZE];
 	numfmt_duration(rp->rows_used ? (double)(s->last_t_ms - s->first_t_ms) / 1000.0 : 0.0, span,
 			sizeof(span));
-	printf("replay of %s on %s\n", rp->data_path, cfg->monitor.name);
+	if (rp->data_count > 1)
+		printf("replay of %u files (%s ... %s) on %s\n", rp->data_count, rp->data_paths[0],
+		       rp->data_paths[rp->data_count - 1], cfg->monitor.name);
+	else
+		printf("replay of %s on %s\n", rp->data_path, cfg->monitor.name);
 	printf("  rows used %llu, from %s to %s (%s)\n", (unsigned long long)rp->rows_used, a, b,
 	       span);
 	printf("  rows skipped: %llu malformed, %llu out of time order, %llu duplicate time, "
@@ -631,12 +738,10 @@ static int replay_run(struct replay *rp)
 	rc = run_rows(rp);
 	if (rc != 0)
 		return rc;
-	warn_skipped(rp);
-	const struct csvread_stats *st = histread_stats(&rp->hist);
-	rp->sum.rows_read = st->rows_read;
-	rp->sum.rows_malformed = st->rows_malformed;
-	rp->sum.rows_unsorted = st->rows_unsorted;
-	rp->sum.rows_duplicate = st->rows_duplicate;
+	rp->sum.rows_read = rp->all.rows_read;
+	rp->sum.rows_malformed = rp->all.rows_malformed;
+	rp->sum.rows_unsorted = rp->all.rows_unsorted + rp->rows_overlap;
+	rp->sum.rows_duplicate = rp->all.rows_duplicate;
 	if ((rp->results != NULL && (flush_pending(rp) != 0 || fflush(rp->results) != 0)) ||
 	    fflush(rp->events) != 0) {
 		fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir, strerror(errno));
