@@ -153,7 +153,7 @@ static void commands(struct daemon *d, int64_t t_ms)
 			rc = apply_command(d, &c, ai, t_ms);
 			if (ai >= 0)
 				state = alarm_state_name(d->eng->alarms[ai].state);
-			char dym[160] = "";
+			char dym[FG_NAME_MAX + 24] = ""; /* " (did you mean 'NAME'?)" */
 			if (ai < 0)
 				config_suggest(d->cfg, CONFIG_NAME_ALARM, c.alarm, dym, sizeof(dym));
 			if (rc != 0)
