@@ -139,7 +139,7 @@ static void report_dropped_commands(struct daemon *d)
 
 static void commands(struct daemon *d, int64_t t_ms)
 {
-	char payload[1024], err[160], reply[1024], shown[256];
+	char payload[1024], err[256], reply[1024], shown[256];
 	int n;
 	while ((n = publish_take_command(&d->pub, payload, sizeof(payload))) > 0) {
 		struct command c;
