@@ -86,6 +86,14 @@ static const struct unit unit_table[] = {
 	{"kg/m3", UNIT_KIND_DENSITY, 1.0, 0.0},
 	{"g/cm3", UNIT_KIND_DENSITY, 1.0e3, 0.0},
 	{"lb/ft3", UNIT_KIND_DENSITY, LB_KG / (FT_M * FT_M * FT_M), 0.0},
+	/* rotational speed: revolutions per second (an agitator's speed) */
+	{"1/s", UNIT_KIND_ROTATION, 1.0, 0.0},
+	{"rps", UNIT_KIND_ROTATION, 1.0, 0.0},
+	{"rpm", UNIT_KIND_ROTATION, 1.0 / 60.0, 0.0},
+	/* power */
+	{"W", UNIT_KIND_POWER, 1.0, 0.0},
+	{"kW", UNIT_KIND_POWER, 1.0e3, 0.0},
+	{"MW", UNIT_KIND_POWER, 1.0e6, 0.0},
 };
 
 #define UNIT_COUNT (sizeof(unit_table) / sizeof(unit_table[0]))
@@ -95,7 +103,7 @@ static const struct unit unit_table[] = {
 static const char known_list[] =
 	"Pa, kPa, kPaa, MPa, bar, bara, mbar, psi, psia, mmHg, barg, mbarg, kPag, psig, "
 	"mmH2O, inH2O, K, degC, degF, kg/s, kg/h, t/h, lb/h, m3/s, m3/h, L/s, L/min, gpm, "
-	"Nm3/s, Nm3/h, m, cm, mm, in, ft, %, -, kg/m3, g/cm3, lb/ft3";
+	"Nm3/s, Nm3/h, m, cm, mm, in, ft, %, -, kg/m3, g/cm3, lb/ft3, 1/s, rps, rpm, W, kW, MW";
 
 static const char *const kind_names[UNIT_KIND_COUNT] = {
 	[UNIT_KIND_NONE] = "dimensionless",
@@ -108,6 +116,8 @@ static const char *const kind_names[UNIT_KIND_COUNT] = {
 	[UNIT_KIND_NORMAL_VOLUME_FLOW] = "normal volume flow",
 	[UNIT_KIND_LENGTH] = "length",
 	[UNIT_KIND_DENSITY] = "density",
+	[UNIT_KIND_ROTATION] = "rotational speed",
+	[UNIT_KIND_POWER] = "power",
 };
 
 const struct unit *units_lookup(const char *name)

@@ -25,6 +25,8 @@ enum unit_kind {
 	UNIT_KIND_NORMAL_VOLUME_FLOW, /* at 0 degC, 101325 Pa; SI Nm3/s */
 	UNIT_KIND_LENGTH,             /* SI m */
 	UNIT_KIND_DENSITY,            /* SI kg/m3 */
+	UNIT_KIND_ROTATION,           /* rotational speed, SI rev/s */
+	UNIT_KIND_POWER,              /* SI W */
 	UNIT_KIND_COUNT
 };
 

@@ -82,11 +82,20 @@ int cmd_check(int argc, char **argv)
 	unsigned by_type[SECTION_TYPE_COUNT] = {0};
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		by_type[cfg->sections[i].geom.type]++;
+	/* The high-holdup types are listed only when present (the line stays as
+	 * it was for configs without them). */
+	char more[96] = "";
+	for (int t = SECTION_PACKED_BUBBLE; t < SECTION_TYPE_COUNT; t++) {
+		size_t n = strlen(more);
+		if (by_type[t] > 0)
+			snprintf(more + n, sizeof(more) - n, ", %u %s", by_type[t],
+				 config_section_type_name((enum section_type)t));
+	}
 	printf("%s: ok: %s, %u source(s), %u tag(s), %u section(s) (%u tray, %u packed, %u spray, "
-	       "%u bubble), %u alarm(s)%s%s\n",
+	       "%u bubble%s), %u alarm(s)%s%s\n",
 	       path, cfg->monitor.name, cfg->source_count, cfg->tag_count, cfg->section_count,
 	       by_type[SECTION_TRAY], by_type[SECTION_PACKED], by_type[SECTION_SPRAY],
-	       by_type[SECTION_BUBBLE], cfg->alarm_count, cfg->mqtt.enabled ? ", mqtt" : "",
+	       by_type[SECTION_BUBBLE], more, cfg->alarm_count, cfg->mqtt.enabled ? ", mqtt" : "",
 	       cfg->exp.enabled ? ", modbus export" : "");
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		note_packing(&cfg->sections[i]);

@@ -29,7 +29,8 @@ static void simulate_usage(FILE *f)
 		"own models at each section's design point (the tags' nominal values) plus noise,\n"
 		"with an injected upset. Replay it with `floodgauge replay`.\n\n"
 		"  -c, --config FILE   the plant config\n"
-		"  -s, --scenario NAME steady | flood | weep | frozen | gap (below)\n"
+		"  -s, --scenario NAME steady | flood | weep | frozen | gap |\n"
+		"                      impeller-flood | loop-stall (below)\n"
 		"  -o, --out FILE      output file (default: standard output)\n"
 		"      --seed N        random seed, a whole number (default 1); the same seed\n"
 		"                      gives the same bytes\n"
@@ -123,7 +124,7 @@ static int parse_args(int argc, char **argv, struct simulate_args *a)
 	int k = scenario_lookup(a->scenario);
 	if (k < 0) {
 		fprintf(stderr, "floodgauge simulate: unknown scenario '%s' (steady, flood, weep, "
-				"frozen, gap)\n", a->scenario);
+				"frozen, gap, impeller-flood, loop-stall)\n", a->scenario);
 		return -EINVAL;
 	}
 	a->opt.kind = (enum scenario_kind)k;

@@ -232,6 +232,15 @@ static void section_defaults(struct section_cfg *s)
 	s->geom.bubble.tap_spacing_m = NAN;
 	s->geom.bubble.clear_liquid_height_m = NAN;
 	s->geom.bubble.holdup_method = BUBBLE_HOLDUP_AKITA_YOSHIDA;
+	s->geom.pbub.bed_height_m = NAN;
+	s->geom.pbub.impulse_density_kgm3 = NAN;
+	s->geom.stirred.power_number = NAN;
+	s->geom.stirred.drive_loss_w = 0.0;
+	s->geom.stirred.drive_efficiency = 1.0;
+	s->geom.stirred.clear_liquid_height_m = NAN;
+	s->geom.loop.tap_spacing_m = NAN;
+	s->geom.loop.top_loss = 0.0;   /* an internal loop with a roomy gas separator (Chisti) */
+	s->geom.loop.circulation_normal_ms = NAN;
 }
 
 static void alarm_defaults(struct alarm_cfg *a)

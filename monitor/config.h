@@ -90,6 +90,10 @@ enum section_signal {
 	SIGNAL_TEMPERATURE,
 	SIGNAL_LEVEL,
 	SIGNAL_GAS_DENSITY,
+	SIGNAL_AGITATOR_SPEED,       /* stirred */
+	SIGNAL_MOTOR_POWER,          /* stirred, optional */
+	SIGNAL_DP_RISER,             /* loop */
+	SIGNAL_DP_DOWNCOMER,         /* loop */
 	SIGNAL_COUNT
 };
 

@@ -15,6 +15,9 @@
 /* Every object has one header, plus [monitor], [mqtt], [export.modbus]. */
 #define CONFIG_HEADERS_MAX (FG_SOURCES_MAX + FG_TAGS_MAX + FG_SECTIONS_MAX + FG_ALARMS_MAX + 3)
 
+/* Entries of the [section.NAME] key table (config_keys.c), with room to grow. */
+#define CONFIG_SECTION_KEYS_MAX 96
+
 struct pending_name {
 	char name[FG_TEXT_MAX];
 	int line;                   /* 0 = not given */
@@ -26,9 +29,9 @@ struct section_pending {
 	struct pending_name tray_kind;
 	struct pending_name holdup_method;
 	struct pending_name packing;
+	struct pending_name impeller_type;
 	bool type_given;
-	uint64_t keys_set;          /* bit i: section key table entry i was given */
-	int key_line[64];
+	int key_line[CONFIG_SECTION_KEYS_MAX]; /* line of section key i, 0 = not given */
 };
 
 struct alarm_pending {

@@ -28,7 +28,11 @@ enum key_kind { KK_DOUBLE, KK_UINT, KK_BOOL, KK_PROP, KK_SIGNAL, KK_PENDING, KK_
 #define T_PACKED (1u << SECTION_PACKED)
 #define T_SPRAY (1u << SECTION_SPRAY)
 #define T_BUBBLE (1u << SECTION_BUBBLE)
-#define T_ALL (T_TRAY | T_PACKED | T_SPRAY | T_BUBBLE)
+#define T_PBUB (1u << SECTION_PACKED_BUBBLE)
+#define T_STIR (1u << SECTION_STIRRED)
+#define T_LOOP (1u << SECTION_LOOP)
+#define T_ALL (T_TRAY | T_PACKED | T_SPRAY | T_BUBBLE | T_PBUB | T_STIR | T_LOOP)
+#define T_BATCH (T_BUBBLE | T_PBUB | T_STIR | T_LOOP) /* liquid may be batch */
 
 struct key_desc {
 	const char *name;
@@ -50,11 +54,15 @@ static const struct key_desc section_keys[] = {
 	{"gas_flow", KK_SIGNAL, T_ALL, SIGNAL_GAS_FLOW, 0, 0, T_ALL},
 	{"liquid_flow", KK_SIGNAL, T_ALL, SIGNAL_LIQUID_FLOW, 0, 0, T_TRAY | T_PACKED | T_SPRAY},
 	{"liquid_out_flow", KK_SIGNAL, T_ALL, SIGNAL_LIQUID_OUT_FLOW, 0, 0, 0},
-	{"dp", KK_SIGNAL, T_ALL, SIGNAL_DP, 0, 0, 0},
+	{"dp", KK_SIGNAL, T_ALL & ~T_LOOP, SIGNAL_DP, 0, 0, 0},
 	{"pressure", KK_SIGNAL, T_ALL, SIGNAL_PRESSURE, 0, 0, 0},
 	{"temperature", KK_SIGNAL, T_ALL, SIGNAL_TEMPERATURE, 0, 0, 0},
 	{"level", KK_SIGNAL, T_ALL, SIGNAL_LEVEL, 0, 0, 0},
 	{"gas_density", KK_SIGNAL, T_ALL, SIGNAL_GAS_DENSITY, 0, 0, 0},
+	{"agitator_speed", KK_SIGNAL, T_STIR, SIGNAL_AGITATOR_SPEED, 0, 0, T_STIR},
+	{"motor_power", KK_SIGNAL, T_STIR, SIGNAL_MOTOR_POWER, 0, 0, 0},
+	{"dp_riser", KK_SIGNAL, T_LOOP, SIGNAL_DP_RISER, 0, 0, T_LOOP},
+	{"dp_downcomer", KK_SIGNAL, T_LOOP, SIGNAL_DP_DOWNCOMER, 0, 0, T_LOOP},
 	{"gas_molar_mass_kgkmol", KK_DOUBLE, T_ALL, SC(props.gas_molar_mass_kgkmol), 1.0, 500.0, 0},
 	{"gas_compressibility", KK_DOUBLE, T_ALL, SC(props.gas_compressibility), 0.05, 2.0, 0},
 	{"gas_viscosity_pas", KK_PROP, T_ALL, SC(props.gas_viscosity_pas), 0, 0, T_ALL},
@@ -80,11 +88,11 @@ static const struct key_desc section_keys[] = {
 	{"downcomer_clearance_m", KK_DOUBLE, T_TRAY, GEO(tray.downcomer_clearance_m), 0.005, 0.3,
 	 T_TRAY},
 	/* packed */
-	{"packed_height_m", KK_DOUBLE, T_PACKED, GEO(packed.height_m), 0.1, 100.0, T_PACKED},
-	{"packing", KK_PENDING, T_PACKED, 0, 0, 0, 0},
+	{"packed_height_m", KK_DOUBLE, T_PACKED | T_PBUB, GEO(packed.height_m), 0.1, 100.0, T_PACKED},
+	{"packing", KK_PENDING, T_PACKED | T_PBUB, 0, 0, 0, 0},
 	{"packing_structured", KK_BOOL, T_PACKED, GEO(packed.structured), 0, 0, 0},
 	{"packing_area_m2m3", KK_DOUBLE, T_PACKED, GEO(packed.c.area_m2m3), 10.0, 2000.0, 0},
-	{"packing_void_frac", KK_DOUBLE, T_PACKED, GEO(packed.c.void_frac), 0.3, 0.995, 0},
+	{"packing_void_frac", KK_DOUBLE, T_PACKED | T_PBUB, GEO(packed.c.void_frac), 0.3, 0.995, 0},
 	{"packing_factor_1pm", KK_DOUBLE, T_PACKED, GEO(packed.c.packing_factor_1pm), 1.0, 5000.0, 0},
 	{"packing_dry_factor_1pm", KK_DOUBLE, T_PACKED, GEO(packed.c.dry_factor_1pm), 1.0, 5000.0, 0},
 	{"stichlmair_c1", KK_DOUBLE, T_PACKED, GEO(packed.c.stichlmair_c1), 0.0, 1000.0, 0},
@@ -99,16 +107,38 @@ static const struct key_desc section_keys[] = {
 	{"design_droplet_m", KK_DOUBLE, T_SPRAY, GEO(spray.design_droplet_m), 1e-6, 0.01, T_SPRAY},
 	{"droplet_spread", KK_DOUBLE, T_SPRAY, GEO(spray.droplet_spread), 0.5, 10.0, 0},
 	/* bubble */
-	{"tap_spacing_m", KK_DOUBLE, T_BUBBLE, GEO(bubble.tap_spacing_m), 0.05, 50.0, 0},
-	{"clear_liquid_height_m", KK_DOUBLE, T_BUBBLE, GEO(bubble.clear_liquid_height_m), 0.05, 100.0,
+	{"tap_spacing_m", KK_DOUBLE, T_BUBBLE | T_PBUB, GEO(bubble.tap_spacing_m), 0.05, 50.0, 0},
+	{"clear_liquid_height_m", KK_DOUBLE, T_BUBBLE | T_PBUB | T_STIR,
+	 GEO(bubble.clear_liquid_height_m), 0.05, 100.0, 0},
+	{"overflow_height_m", KK_DOUBLE, T_BUBBLE | T_PBUB, GEO(bubble.overflow_height_m), 0.05,
+	 100.0, T_BUBBLE | T_PBUB},
+	{"electrolyte", KK_BOOL, T_BUBBLE | T_PBUB, GEO(bubble.electrolyte), 0, 0, 0},
+	{"holdup_method", KK_PENDING, T_BUBBLE | T_PBUB, 0, 0, 0, 0},
+	/* packed-bubble */
+	{"impulse_line_density_kgm3", KK_DOUBLE, T_PBUB, GEO(pbub.impulse_density_kgm3), 0.1,
+	 3000.0, 0},
+	/* stirred */
+	{"impeller_diameter_m", KK_DOUBLE, T_STIR, GEO(stirred.impeller_diameter_m), 0.02, 10.0,
+	 T_STIR},
+	{"impeller_type", KK_PENDING, T_STIR, 0, 0, 0, 0},
+	{"power_number", KK_DOUBLE, T_STIR, GEO(stirred.power_number), 0.05, 20.0, 0},
+	{"impeller_clearance_m", KK_DOUBLE, T_STIR, GEO(stirred.impeller_clearance_m), 0.0, 20.0,
+	 T_STIR},
+	{"drive_loss_w", KK_DOUBLE, T_STIR, GEO(stirred.drive_loss_w), 0.0, 1e7, 0},
+	{"drive_efficiency", KK_DOUBLE, T_STIR, GEO(stirred.drive_efficiency), 0.3, 1.0, 0},
+	/* loop */
+	{"riser_area_m2", KK_DOUBLE, T_LOOP, GEO(loop.riser_area_m2), 1e-4, 500.0, T_LOOP},
+	{"loop_downcomer_area_m2", KK_DOUBLE, T_LOOP, GEO(loop.downcomer_area_m2), 1e-4, 500.0,
+	 T_LOOP},
+	{"loop_height_m", KK_DOUBLE, T_LOOP, GEO(loop.height_m), 0.5, 300.0, T_LOOP},
+	{"bottom_clearance_m", KK_DOUBLE, T_LOOP, GEO(loop.bottom_clearance_m), 0.01, 20.0, T_LOOP},
+	{"loop_tap_spacing_m", KK_DOUBLE, T_LOOP, GEO(loop.tap_spacing_m), 0.1, 300.0, 0},
+	{"loop_top_loss", KK_DOUBLE, T_LOOP, GEO(loop.top_loss), 0.0, 100.0, 0},
+	{"circulation_normal_ms", KK_DOUBLE, T_LOOP, GEO(loop.circulation_normal_ms), 0.001, 10.0,
 	 0},
-	{"overflow_height_m", KK_DOUBLE, T_BUBBLE, GEO(bubble.overflow_height_m), 0.05, 100.0,
-	 T_BUBBLE},
-	{"electrolyte", KK_BOOL, T_BUBBLE, GEO(bubble.electrolyte), 0, 0, 0},
-	{"holdup_method", KK_PENDING, T_BUBBLE, 0, 0, 0, 0},
 };
 #define SECTION_KEY_COUNT (sizeof(section_keys) / sizeof(section_keys[0]))
-_Static_assert(SECTION_KEY_COUNT <= 64, "keys_set is a 64-bit mask");
+_Static_assert(SECTION_KEY_COUNT <= CONFIG_SECTION_KEYS_MAX, "key_line[] holds every key");
 
 /* "unknown key 'K' in [HEADER]", with the nearest known key when one is close. */
 static void unknown_key_get(struct config_ctx *c, const char *key, suggest_get_fn get,
@@ -138,7 +168,10 @@ static const char *section_key_name(const void *ctx, unsigned i)
 	return section_keys[i].name;
 }
 
-static const char *const type_names[] = {"tray", "packed", "spray", "bubble", NULL};
+static const char *const type_names[] = {"tray",	  "packed",  "spray", "bubble",
+					  "packed-bubble", "stirred", "loop",  NULL};
+_Static_assert(sizeof(type_names) / sizeof(type_names[0]) == SECTION_TYPE_COUNT + 1,
+	       "a name for every section type");
 
 static struct pending_name *pending_slot(struct section_pending *sp, const char *key)
 {
@@ -150,6 +183,8 @@ static struct pending_name *pending_slot(struct section_pending *sp, const char 
 		return &sp->holdup_method;
 	if (!strcmp(key, "packing"))
 		return &sp->packing;
+	if (!strcmp(key, "impeller_type"))
+		return &sp->impeller_type;
 	return NULL;
 }
 
@@ -160,13 +195,12 @@ int config_section_key(struct config_ctx *c, struct section_cfg *s, struct secti
 		const struct key_desc *k = &section_keys[i];
 		if (strcmp(k->name, key) != 0)
 			continue;
-		if (sp->keys_set & (1ull << i)) {
+		if (sp->key_line[i] != 0) {
 			config_error(c, c->line, "duplicate key '%s' (first at line %d)", key,
 				     sp->key_line[i]);
 			return -EINVAL;
 		}
-		sp->keys_set |= 1ull << i;
-		sp->key_line[i] = c->line;
+		sp->key_line[i] = c->line > 0 ? c->line : 1;
 		char *base = (char *)s;
 		int choice;
 		struct pending_name *pn;
@@ -252,7 +286,8 @@ int config_section_keys_check(struct config_ctx *c, unsigned si)
 	struct section_cfg *s = &c->cfg->sections[si];
 	struct section_pending *sp = &c->sec[si];
 	if (!sp->type_given) {
-		config_error(c, s->line, "[section.%s] has no 'type' (tray, packed, spray or bubble)",
+		config_error(c, s->line, "[section.%s] has no 'type' (tray, packed, spray, bubble, "
+			     "packed-bubble, stirred or loop)",
 			     s->name);
 		return -EINVAL;
 	}
@@ -260,7 +295,7 @@ int config_section_keys_check(struct config_ctx *c, unsigned si)
 	int rc = 0;
 	for (unsigned i = 0; i < SECTION_KEY_COUNT; i++) {
 		const struct key_desc *k = &section_keys[i];
-		bool given = (sp->keys_set & (1ull << i)) != 0;
+		bool given = sp->key_line[i] != 0;
 		if (given && !(k->types & tbit)) {
 			config_error(c, sp->key_line[i], "key '%s' does not apply to a %s section",
 				     k->name, type_names[s->geom.type]);

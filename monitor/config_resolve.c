@@ -138,6 +138,8 @@ static const char *const signal_names[SIGNAL_COUNT] = {
 	[SIGNAL_LIQUID_OUT_FLOW] = "liquid_out_flow", [SIGNAL_DP] = "dp",
 	[SIGNAL_PRESSURE] = "pressure",       [SIGNAL_TEMPERATURE] = "temperature",
 	[SIGNAL_LEVEL] = "level",             [SIGNAL_GAS_DENSITY] = "gas_density",
+	[SIGNAL_AGITATOR_SPEED] = "agitator_speed", [SIGNAL_MOTOR_POWER] = "motor_power",
+	[SIGNAL_DP_RISER] = "dp_riser",       [SIGNAL_DP_DOWNCOMER] = "dp_downcomer",
 };
 
 const char *config_signal_name(enum section_signal s)
@@ -177,6 +179,8 @@ static bool unit_fits(enum section_signal s, const struct unit *u)
 	case SIGNAL_LIQUID_OUT_FLOW:
 		return u->kind == UNIT_KIND_MASS_FLOW || u->kind == UNIT_KIND_VOLUME_FLOW;
 	case SIGNAL_DP:
+	case SIGNAL_DP_RISER:
+	case SIGNAL_DP_DOWNCOMER:
 		/* A difference: absolute-pressure units are fine, gauge offsets are not. */
 		return units_usable_as_dp(u);
 	case SIGNAL_PRESSURE: return u->kind == UNIT_KIND_PRESSURE;
@@ -184,6 +188,8 @@ static bool unit_fits(enum section_signal s, const struct unit *u)
 	case SIGNAL_LEVEL: /* metres, or % of the transmitter's span (span_m, zero_m) */
 		return u->kind == UNIT_KIND_LENGTH || u->kind == UNIT_KIND_FRACTION;
 	case SIGNAL_GAS_DENSITY: return u->kind == UNIT_KIND_DENSITY;
+	case SIGNAL_AGITATOR_SPEED: return u->kind == UNIT_KIND_ROTATION;
+	case SIGNAL_MOTOR_POWER: return u->kind == UNIT_KIND_POWER;
 	case SIGNAL_COUNT: break;
 	}
 	return false;
@@ -340,6 +346,8 @@ static void resolve_signals(struct config_ctx *c, unsigned si)
 	if (s->signal[SIGNAL_LIQUID_OUT_FLOW] >= 0 && s->signal[SIGNAL_LEVEL] < 0)
 		config_error(c, s->line, "[section.%s]: liquid_out_flow is for the liquid inventory "
 					 "and needs a level tag too", s->name);
+	if (s->signal[SIGNAL_MOTOR_POWER] >= 0 && s->signal[SIGNAL_AGITATOR_SPEED] < 0)
+		config_error(c, s->line, "[section.%s]: motor_power needs agitator_speed too", s->name);
 	if (s->geom.type == SECTION_BUBBLE && s->signal[SIGNAL_LEVEL] < 0 &&
 	    !isfinite(s->geom.bubble.clear_liquid_height_m))
 		config_error(c, s->line, "[section.%s]: a bubble section needs a level tag or "
@@ -424,12 +432,74 @@ static void resolve_packed(struct config_ctx *c, struct section_cfg *s, struct s
 			     s->name);
 }
 
+static void resolve_packed_bubble(struct config_ctx *c, struct section_cfg *s,
+				  struct section_pending *sp)
+{
+	struct section_geom *g = &s->geom;
+	if (sp->packing.line > 0) {
+		bool structured = false;
+		const struct packing_constants *row = packing_lookup(sp->packing.name, &structured);
+		if (row == NULL)
+			config_error(c, sp->packing.line, "packing '%s' is not in the table; known: %s",
+				     sp->packing.name, packing_names());
+		else if (isnan(g->packed.c.void_frac))
+			g->packed.c.void_frac = row->void_frac;
+		snprintf(g->packed.packing, sizeof(g->packed.packing), "%s", sp->packing.name);
+	}
+	g->pbub.void_frac = g->packed.c.void_frac;
+	g->pbub.bed_height_m = g->packed.height_m > 0.0 ? g->packed.height_m : NAN;
+	if (!isfinite(g->pbub.void_frac))
+		config_error(c, s->line, "[section.%s]: a packed-bubble section needs "
+					 "packing_void_frac or a 'packing' from the table", s->name);
+	if (s->signal[SIGNAL_LEVEL] < 0 && !isfinite(g->bubble.clear_liquid_height_m))
+		config_error(c, s->line, "[section.%s]: a packed-bubble section needs a level tag "
+					 "or clear_liquid_height_m", s->name);
+	if (s->signal[SIGNAL_DP] >= 0 && !isfinite(g->bubble.tap_spacing_m))
+		config_error(c, s->line, "[section.%s]: the dp tag of a packed-bubble section needs "
+					 "tap_spacing_m", s->name);
+	if (isfinite(g->bubble.clear_liquid_height_m) &&
+	    g->bubble.clear_liquid_height_m >= g->bubble.overflow_height_m)
+		config_error(c, s->line, "[section.%s]: clear_liquid_height_m must be below "
+					 "overflow_height_m", s->name);
+}
+
+static void resolve_stirred(struct config_ctx *c, struct section_cfg *s)
+{
+	struct section_geom *g = &s->geom;
+	g->stirred.clear_liquid_height_m = g->bubble.clear_liquid_height_m;
+	if (g->stirred.impeller_diameter_m >= g->diameter_m)
+		config_error(c, s->line, "[section.%s]: impeller_diameter_m %.3g m is not smaller "
+					 "than the vessel diameter %.3g m", s->name,
+			     g->stirred.impeller_diameter_m, g->diameter_m);
+	double h = g->stirred.clear_liquid_height_m;
+	if (isfinite(h) && g->stirred.impeller_clearance_m >= h)
+		config_error(c, s->line, "[section.%s]: impeller_clearance_m must be below the "
+					 "liquid height (clear_liquid_height_m)", s->name);
+}
+
+static void resolve_loop(struct config_ctx *c, struct section_cfg *s)
+{
+	const struct loop_geom *l = &s->geom.loop;
+	double tower = section_area_m2(&s->geom);
+	if (l->riser_area_m2 + l->downcomer_area_m2 > tower * 1.0001)
+		config_error(c, s->line, "[section.%s]: riser_area_m2 + loop_downcomer_area_m2 = %.3g "
+					 "m2 exceeds the vessel cross-section %.3g m2 (diameter_m)",
+			     s->name, l->riser_area_m2 + l->downcomer_area_m2, tower);
+	if (l->bottom_clearance_m >= l->height_m)
+		config_error(c, s->line, "[section.%s]: bottom_clearance_m must be below "
+					 "loop_height_m", s->name);
+	if (isfinite(l->tap_spacing_m) && l->tap_spacing_m > l->height_m)
+		config_error(c, s->line, "[section.%s]: loop_tap_spacing_m exceeds loop_height_m",
+			     s->name);
+}
+
 static void resolve_sections(struct config_ctx *c)
 {
 	static const char *const tray_flood[] = {"fair", "kister-haas", NULL};
 	static const char *const packed_flood[] = {"stichlmair", "billet-schultes", NULL};
 	static const char *const kinds[] = {"sieve", "valve", "bubble-cap", NULL};
 	static const char *const holdup[] = {"akita-yoshida", "hughmark", NULL};
+	static const char *const impellers[] = {"disc-turbine", "hollow-blade", NULL};
 	for (unsigned i = 0; i < c->cfg->section_count; i++) {
 		struct section_cfg *s = &c->cfg->sections[i];
 		struct section_pending *sp = &c->sec[i];
@@ -460,8 +530,16 @@ static void resolve_sections(struct config_ctx *c)
 							 "below overflow_height_m", s->name);
 			break;
 		case SECTION_PACKED_BUBBLE:
+			s->geom.bubble.holdup_method = (enum bubble_holdup_method)resolve_choice(
+				c, &sp->holdup_method, "holdup_method", holdup, 0);
+			resolve_packed_bubble(c, s, sp);
+			break;
 		case SECTION_STIRRED:
-		case SECTION_LOOP: break;
+			s->geom.stirred.impeller = (enum impeller_type)resolve_choice(
+				c, &sp->impeller_type, "impeller_type", impellers, 0);
+			resolve_stirred(c, s);
+			break;
+		case SECTION_LOOP: resolve_loop(c, s); break;
 		case SECTION_TYPE_COUNT: assert(0);
 		}
 	}

@@ -29,6 +29,8 @@ int engine_init(struct engine *e, const struct fg_config *cfg)
 		e->sec[i].diag_tag = -1;
 		e->sec[i].in_service = true;
 		solve_warm_clear(&e->sec[i].warm);
+		e->sec[i].circ_normal_ms = NAN;
+		e->sec[i].circ_learned_s = 0.0;
 	}
 	for (unsigned i = 0; i < cfg->alarm_count; i++)
 		alarm_init(&e->alarms[i], &cfg->alarms[i], i);
@@ -103,6 +105,35 @@ static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
 	section_fuse(r, NAN);
 }
 
+/* A loop without a configured normal circulation learns one (engine.h). */
+static void learn_circulation(struct engine *e, unsigned si, int64_t t_ms)
+{
+	const struct section_cfg *s = &e->cfg->sections[si];
+	struct engine_section *es = &e->sec[si];
+	struct section_result *r = &es->r;
+	if (s->geom.type != SECTION_LOOP || isfinite(s->geom.loop.circulation_normal_ms))
+		return;
+	double u = r->v[RF_CIRCULATION_VELOCITY];
+	double dt_s = e->t_ms == ALARM_T_NONE ? 0.0 : (double)(t_ms - e->t_ms) / 1000.0;
+	bool warm = es->circ_learned_s >= ENGINE_CIRC_WARMUP_S;
+	bool normal = r->quality == FG_QUALITY_GOOD && es->in_service && isfinite(u) && u > 0.0 &&
+		      r->v[RF_FLOOD_PCT] < ENGINE_CIRC_NORMAL_FLOOD_PCT && dt_s >= 0.0;
+	if (normal && isfinite(es->circ_normal_ms) && warm &&
+	    fabs(u / es->circ_normal_ms - 1.0) > ENGINE_CIRC_BAND)
+		normal = false;
+	if (normal && !isfinite(es->circ_normal_ms)) {
+		es->circ_normal_ms = u;
+	} else if (normal) {
+		/* Faster at first, so the warm-up average is a plain mean. */
+		double tau = fmin(ENGINE_CIRC_TAU_S, es->circ_learned_s + dt_s);
+		double a = tau > 0.0 ? dt_s / tau : 1.0;
+		es->circ_normal_ms += (a < 1.0 ? a : 1.0) * (u - es->circ_normal_ms);
+		es->circ_learned_s += dt_s;
+	}
+	if (es->circ_learned_s >= ENGINE_CIRC_WARMUP_S && isfinite(u))
+		r->v[RF_CIRCULATION_PCT] = 100.0 * u / es->circ_normal_ms;
+}
+
 static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 {
 	const struct section_cfg *s = &e->cfg->sections[si];
@@ -117,6 +148,7 @@ static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 	if (isfinite(es->point.gas_kgs))
 		es->in_service = es->point.gas_kgs >= s->in_service_gas_kgs;
 	soft_sensors(e, si, t_ms);
+	learn_circulation(e, si, t_ms);
 }
 
 static void push_event(struct engine *e, const struct alarm_event *ev)

@@ -33,7 +33,22 @@ struct engine_section {
 	const char *diag_reason;     /* first bad/frozen input reason, NULL when healthy */
 	int diag_tag;                /* the tag behind diag_reason, -1 when none */
 	struct solve_warm warm;      /* last answers of the section's solves (warm starts) */
+	/* loop sections without circulation_normal_ms: the learned normal */
+	double circ_normal_ms;       /* learned normal circulation velocity, m/s (NAN: none yet) */
+	double circ_learned_s;       /* time spent learning it, s */
 };
+
+/* Learning the normal circulation of a loop (engine.c): a slow exponential
+ * average of circulation_velocity_ms over ENGINE_CIRC_TAU_S in good, in-service
+ * operation with the downcomer holding under half the riser's gas, and only
+ * while the velocity stays within ENGINE_CIRC_BAND of the normal learned so
+ * far (a loop slowing down must not teach itself that slow is normal).
+ * circulation_pct is reported once ENGINE_CIRC_WARMUP_S of learning are in.
+ * The learned value lives in memory only: a restart learns again. */
+#define ENGINE_CIRC_TAU_S 7200.0
+#define ENGINE_CIRC_BAND 0.1
+#define ENGINE_CIRC_WARMUP_S 900.0
+#define ENGINE_CIRC_NORMAL_FLOOD_PCT 50.0
 
 struct engine {
 	const struct fg_config *cfg;

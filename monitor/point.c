@@ -14,7 +14,10 @@ bool point_signal_required(const struct section_cfg *s, enum section_signal k,
 	assert(s != NULL);
 	switch (k) {
 	case SIGNAL_GAS_FLOW: return true;
-	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
+	case SIGNAL_LIQUID_FLOW: return !section_liquid_batch(s->geom.type);
+	case SIGNAL_AGITATOR_SPEED: return s->geom.type == SECTION_STIRRED;
+	case SIGNAL_DP_RISER:
+	case SIGNAL_DP_DOWNCOMER: return s->geom.type == SECTION_LOOP;
 	case SIGNAL_PRESSURE:
 	case SIGNAL_TEMPERATURE: return !have_density;
 	default: return false;
@@ -49,6 +52,10 @@ void point_from_si(const struct section_cfg *s, const struct fg_config *cfg,
 	if (tv >= 0 && !config_tag_is_length(&cfg->tags[tv]))
 		p->level_m = NAN; /* % of span without span_m: no metres (check says so) */
 	p->gas_density_kgm3 = signal_si[SIGNAL_GAS_DENSITY];
+	p->agitator_speed_rps = signal_si[SIGNAL_AGITATOR_SPEED];
+	p->motor_power_w = signal_si[SIGNAL_MOTOR_POWER];
+	p->dp_riser_pa = signal_si[SIGNAL_DP_RISER];
+	p->dp_downcomer_pa = signal_si[SIGNAL_DP_DOWNCOMER];
 	double rho_g = p->gas_density_kgm3;
 	if (!(isfinite(rho_g) && rho_g > 0.0))
 		rho_g = gas_density_kgm3(p->pressure_pa, p->temperature_k,

@@ -22,7 +22,9 @@ void point_from_si(const struct section_cfg *s, const struct fg_config *cfg,
 		   const double *signal_si /* [SIGNAL_COUNT] */, struct section_point *p);
 
 /* Is signal k needed to evaluate section s at all? Gas flow always; liquid
- * flow except in a bubble column; pressure and temperature unless a gas
+ * flow except where the liquid may be batch (bubble, packed-bubble, stirred,
+ * loop); the agitator speed of a stirred vessel; the riser and downcomer DPs
+ * of a loop; pressure and temperature unless a gas
  * density is available. Used by the engine (bad input -> bad result) and by
  * `rate` (a missing value is a usage error). */
 bool point_signal_required(const struct section_cfg *s, enum section_signal k,

@@ -47,7 +47,32 @@ const int report_series_field[REPORT_SERIES_COUNT] = {
 	[REPORT_SERIES_DP] = RF_DP_PA,
 	[REPORT_SERIES_DP_MODEL] = RF_DP_MODEL_PA,
 	[REPORT_SERIES_HOLDUP] = RF_LIQUID_HOLDUP_FRAC,
+	[REPORT_SERIES_TYPE_A] = -1,
+	[REPORT_SERIES_TYPE_B] = -1,
+	[REPORT_SERIES_TYPE_C] = -1,
 };
+
+/* The type series of the high-holdup types: what their own charts draw. */
+static const struct {
+	const char *type;
+	int field[3];
+} type_series[] = {
+	{"packed-bubble", {RF_GAS_HOLDUP_DP_FRAC, RF_GAS_HOLDUP_FRAC, RF_EXPANDED_LEVEL_M}},
+	{"stirred", {RF_POWER_RATIO_MEASURED, RF_POWER_RATIO_MODEL, RF_FLOW_NUMBER}},
+	{"loop", {RF_RISER_HOLDUP_FRAC, RF_DOWNCOMER_HOLDUP_FRAC, RF_CIRCULATION_VELOCITY}},
+};
+
+int report_type_series_field(const char *type, unsigned s)
+{
+	assert(type != NULL);
+	assert(s < REPORT_SERIES_COUNT);
+	if (s < REPORT_SERIES_TYPE_A)
+		return report_series_field[s];
+	for (size_t i = 0; i < sizeof type_series / sizeof type_series[0]; i++)
+		if (strcmp(type_series[i].type, type) == 0)
+			return type_series[i].field[s - REPORT_SERIES_TYPE_A];
+	return -1;
+}
 
 /* ---------------------------------------------------------------- helpers */
 
@@ -124,6 +149,9 @@ int report_init(struct report *rp, const struct report_layout *layout)
 		return rc;
 	rp->layout = *layout;
 	const size_t nsec = layout->section_count;
+	for (size_t k = 0; k < nsec; k++)
+		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++)
+			rp->series_field[k][s] = report_type_series_field(layout->sections[k].type, s);
 	rp->slots = calloc(REPORT_BUCKETS_MAX, sizeof *rp->slots);
 	rp->cells = calloc(nsec * REPORT_SERIES_COUNT * REPORT_BUCKETS_MAX, sizeof *rp->cells);
 	rp->marks = calloc(nsec * REPORT_BUCKETS_MAX, sizeof *rp->marks);
@@ -363,8 +391,10 @@ int report_add_row(struct report *rp, int64_t t_ms, const struct section_result 
 	slot_add(rp, b, t_ms);
 	for (unsigned k = 0; k < rp->layout.section_count; k++) {
 		const struct section_result *r = &results[k];
-		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++)
-			cell_add(&rp->cells[cell_at(k, s, b)], r->v[report_series_field[s]]);
+		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++) {
+			const int fld = rp->series_field[k][s];
+			cell_add(&rp->cells[cell_at(k, s, b)], fld >= 0 ? r->v[fld] : NAN);
+		}
 		struct report_mark *m = &rp->marks[mark_at(k, b)];
 		if ((uint8_t)r->quality > m->quality)
 			m->quality = (uint8_t)r->quality;

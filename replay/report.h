@@ -70,7 +70,8 @@ enum report_priority {
 
 struct report_section {
 	char name[FG_NAME_MAX];        /* section name from the config */
-	char type[REPORT_WORD_MAX];    /* "tray", "packed", "spray" or "bubble" */
+	char type[REPORT_WORD_MAX];    /* "tray", "packed", "spray", "bubble", "packed-bubble",
+					  "stirred" or "loop" */
 };
 
 struct report_alarm {
@@ -121,6 +122,11 @@ enum report_series {
 	REPORT_SERIES_DP,
 	REPORT_SERIES_DP_MODEL,
 	REPORT_SERIES_HOLDUP,
+	/* Three series whose field depends on the section's type (packed-bubble,
+	 * stirred, loop): report_type_series_field(). */
+	REPORT_SERIES_TYPE_A,
+	REPORT_SERIES_TYPE_B,
+	REPORT_SERIES_TYPE_C,
 	REPORT_SERIES_COUNT
 };
 
@@ -166,6 +172,7 @@ struct report_event {
 /* Private: use the functions below. Defined here so it can live on the
  * caller's stack or inside another struct (in-place init). */
 struct report {
+	int series_field[FG_SECTIONS_MAX][REPORT_SERIES_COUNT]; /* enum result_field, -1: none */
 	struct report_layout layout;
 	int64_t origin_ms;             /* start of bucket 0 */
 	int64_t width_ms;              /* bucket width, a power of two >= 1 */

@@ -208,10 +208,11 @@ static const char page_css[] =
 	"svg .ttl{font-size:12.5px;font-weight:600;fill:#1d2327}\n"
 	"svg .grid{stroke:#e3e0d9;stroke-width:1}\n"
 	"svg .axis{stroke:#8d948f;stroke-width:1;fill:none}\n"
-	"svg .s0,svg .s1,svg .s2,svg .s3,svg .s4{fill:none;stroke-width:1.6;"
-	"stroke-linejoin:round;stroke-linecap:round}\n"
+	"svg .s0,svg .s1,svg .s2,svg .s3,svg .s4,svg .s5,svg .s6,svg .s7{fill:none;"
+	"stroke-width:1.6;stroke-linejoin:round;stroke-linecap:round}\n"
 	"svg .s0{stroke:#1b4f9c}svg .s1{stroke:#e0761b}svg .s2{stroke:#0d8a80}"
 	"svg .s3{stroke:#8e3fb0}svg .s4{stroke:#3c8d2f}\n"
+	"svg .s5{stroke:#0d8a80}svg .s6{stroke:#e0761b}svg .s7{stroke:#1b4f9c}\n"
 	"svg .sp{stroke:#c0392b;stroke-width:1.2;stroke-dasharray:7 4;fill:none}\n"
 	"svg .spl{fill:#a5281c;font-size:10.5px;paint-order:stroke;stroke:#fff;stroke-width:3px}\n"
 	"svg .q0{fill:#cfe6cf}svg .q1{fill:#f2c14e}svg .q2{fill:#4a4a4a}"
@@ -341,7 +342,7 @@ static void write_summary_alarms(FILE *f, const struct report *rp,
 
 static void write_legend(FILE *f)
 {
-	static const char *const lines[REPORT_SERIES_COUNT][2] = {
+	static const char *const lines[REPORT_SERIES_TYPE_A][2] = {
 		{"#1b4f9c", "flood_index (fused indicator)"},
 		{"#e0761b", "flood_pct (model)"},
 		{"#0d8a80", "dp_pa (measured)"},
@@ -349,7 +350,9 @@ static void write_legend(FILE *f)
 		{"#3c8d2f", "liquid_holdup_frac"},
 	};
 	fputs("<div class=\"legend\">", f);
-	for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++)
+	/* The type charts (packed-bubble, stirred, loop) name their series above
+	 * each chart. */
+	for (unsigned s = 0; s < REPORT_SERIES_TYPE_A; s++)
 		fprintf(f, "<span class=\"i\"><span class=\"ln\" style=\"border-color:%s\"></span>"
 			   "%s</span>", lines[s][0], lines[s][1]);
 	fputs("<span class=\"i\"><span class=\"ln\" style=\"border-top:2px dashed #c0392b\">"

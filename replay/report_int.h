@@ -28,6 +28,10 @@ extern const char *const report_priority_names[REPORT_PRIORITY_COUNT];
 /* The enum result_field each charted series takes from a section result. */
 extern const int report_series_field[REPORT_SERIES_COUNT];
 
+/* The field series s draws for a section of the named type (the fixed ones,
+ * or the type's own for REPORT_SERIES_TYPE_A..C), -1 when none. */
+int report_type_series_field(const char *type, unsigned s);
+
 /* Index into rp->cells of one bucket of one series of one section. */
 static inline size_t cell_at(unsigned section, unsigned series, size_t bucket)
 {

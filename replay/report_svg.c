@@ -37,11 +37,13 @@ static bool kind_is_level(const char *kind)
 }
 
 /* True when alarm al draws a setpoint line on series s of section k. */
-static bool alarm_on_series(const struct report_alarm *al, unsigned k, unsigned s)
+static bool alarm_on_series(const struct report *rp, const struct report_alarm *al, unsigned k,
+			    unsigned s)
 {
 	assert(al != NULL);
 	assert(s < REPORT_SERIES_COUNT);
-	return (unsigned)al->section_index == k && al->field == report_series_field[s] &&
+	const int fld = rp->series_field[k][s];
+	return (unsigned)al->section_index == k && fld >= 0 && al->field == fld &&
 	       isfinite(al->setpoint) && kind_is_level(al->kind);
 }
 
@@ -89,10 +91,41 @@ static const struct chart charts[] = {
 };
 #define CHART_COUNT (sizeof charts / sizeof charts[0])
 
+/* The own charts of the high-holdup types, drawn between the DP chart and
+ * the holdup chart (which carries the time axis). Their series take the
+ * fields report.c's type table gives them. */
+static const struct {
+	const char *type;
+	struct chart chart[2];
+} type_charts[] = {
+	{"packed-bubble",
+	 {{"Gas holdup per free volume: taps against correlation", "holdup, -",
+	   {REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 0.0, 110.0, false},
+	  {"Expanded level", "level, m", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0, false}}},
+	{"stirred",
+	 {{"Gassed power ratio: measured against model", "Pg/P0, -",
+	   {REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 1.0, 110.0, false},
+	  {"Gas flow number", "Fl_G, -", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0, false}}},
+	{"loop",
+	 {{"Riser and downcomer gas holdup", "holdup, -",
+	   {REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 0.0, 110.0, false},
+	  {"Liquid circulation velocity", "velocity, m/s", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0,
+	   false}}},
+};
+
 static const char *const series_label[REPORT_SERIES_COUNT] = {
 	"flood_index", "flood_pct", "dp_pa (measured)", "dp_model_pa (model)",
-	"liquid_holdup_frac",
+	"liquid_holdup_frac", "", "", "",
 };
+
+/* The legend name of series s in section k: a type series is its field. */
+static const char *label_of(const struct report *rp, unsigned k, unsigned s)
+{
+	const int fld = rp->series_field[k][s];
+	if (s >= REPORT_SERIES_TYPE_A)
+		return fld >= 0 ? result_fields[fld].name : "";
+	return series_label[s];
+}
 
 static double frame_x(const struct report_svg_frame *fr, int64_t t_ms)
 {
@@ -149,7 +182,7 @@ static bool chart_range(const struct report *rp, unsigned k, const struct chart 
 		}
 		for (unsigned a = 0; a < rp->layout.alarm_count; a++) {
 			const struct report_alarm *al = &rp->layout.alarms[a];
-			if (!alarm_on_series(al, k, s))
+			if (!alarm_on_series(rp, al, k, s))
 				continue;
 			lo = al->setpoint < lo ? al->setpoint : lo;
 			hi = al->setpoint > hi ? al->setpoint : hi;
@@ -409,7 +442,7 @@ static unsigned write_setpoints(FILE *f, const struct report *rp, const struct r
 		const struct report_alarm *al = &rp->layout.alarms[a];
 		bool mine = false;
 		for (unsigned i = 0; i < c->series_count; i++)
-			mine = mine || alarm_on_series(al, k, c->series[i]);
+			mine = mine || alarm_on_series(rp, al, k, c->series[i]);
 		if (!mine)
 			continue;
 		const double y = frame_y(fr, al->setpoint);
@@ -460,8 +493,9 @@ static void write_chart_head(FILE *f, const struct report *rp, unsigned k, const
 		fputs("h20\"/>\n<text x=\"", f);
 		report_html_put_fixed(f, x + 25.0, 1);
 		const bool has = series_has_values(rp, k, s);
-		fprintf(f, "\" y=\"16\">%s%s</text>\n", series_label[s], has ? "" : ": no values");
-		x += 25.0 + CHAR_W * (double)(strlen(series_label[s]) + (has ? 0 : 11)) + 18.0;
+		const char *label = label_of(rp, k, s);
+		fprintf(f, "\" y=\"16\">%s%s</text>\n", label, has ? "" : ": no values");
+		x += 25.0 + CHAR_W * (double)(strlen(label) + (has ? 0 : 11)) + 18.0;
 	}
 	if (setpoints) {
 		fputs("<path class=\"sp\" d=\"M", f);
@@ -477,7 +511,7 @@ static bool chart_has_setpoints(const struct report *rp, unsigned k, const struc
 	for (unsigned a = 0; a < rp->layout.alarm_count; a++) {
 		const struct report_alarm *al = &rp->layout.alarms[a];
 		for (unsigned i = 0; i < c->series_count; i++)
-			if (alarm_on_series(al, k, c->series[i]))
+			if (alarm_on_series(rp, al, k, c->series[i]))
 				return true;
 	}
 	return false;
@@ -583,6 +617,12 @@ void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg
 {
 	assert(fr != NULL);
 	assert(k < rp->layout.section_count);
-	for (size_t c = 0; c < CHART_COUNT; c++)
+	for (size_t c = 0; c < CHART_COUNT; c++) {
+		if (c == CHART_COUNT - 1) /* the type's own charts before the bottom one */
+			for (size_t t = 0; t < sizeof type_charts / sizeof type_charts[0]; t++)
+				if (strcmp(type_charts[t].type, rp->layout.sections[k].type) == 0)
+					for (size_t i = 0; i < 2; i++)
+						write_chart(f, rp, fr, k, &type_charts[t].chart[i]);
 		write_chart(f, rp, fr, k, &charts[c]);
+	}
 }

@@ -25,7 +25,22 @@
  *
  * A bubble column's tap DP is the hydrostatic head of the aerated liquid,
  * dp = (1 - eps) rho_l g dz, with eps the model's correlation holdup: the
- * inverse of the holdup-from-DP formula the engine uses.
+ * inverse of the holdup-from-DP formula the engine uses. A packed bubble
+ * column's is the same with the holdup per free volume, less the head of
+ * its wet impulse lines when it has them.
+ *
+ * A stirred vessel's motor power is the drive loss plus the ungassed power
+ * times the model's gassed power ratio (Cui et al.), over the drive
+ * efficiency. A loop's DPs come from a small invented plant: the riser
+ * holdup by drift flux, eps_r = u_gr / (1.1 (u_gr + U) + 0.25) (Zuber &
+ * Findlay's form; C0 1.1 and 0.25 m/s are typical air-water values, from
+ * memory), U from Chisti's balance, iterated; the downcomer holds a quarter
+ * of the riser's holdup in steady operation, but never less than 0.5 % of
+ * fine bubbles the downflow keeps, and follows with a first-order lag of two
+ * hours (bubbles held in the downcomer leave slowly). So when the gas is cut,
+ * the downcomer keeps its gas while the riser loses it, the driving density
+ * difference vanishes and the loop stalls. Demo choices, not a published
+ * plant model.
  */
 #include "scenario.h"
 
@@ -36,7 +51,9 @@
 #include <string.h>
 
 #include "gas.h"
+#include "loop.h"
 #include "point.h"
+#include "stirred.h"
 #include "timefmt.h"
 #include "units.h"
 
@@ -66,6 +83,29 @@
 #define GAP_ONE_AT 0.625
 #define GAP_ONE_S 120.0
 
+/* Impeller flooding: the gas of every stirred section rises at a fixed speed. */
+#define IMP_RAMP_START_S (1.5 * 3600.0)
+#define IMP_RAMP_PER_S (1.5 / 3600.0)      /* +150 % of design gas per hour */
+#define IMP_LOAD_MAX 5.0
+#define IMP_BACK_PER_S (3.0 / 3600.0)
+
+/* Packed bubble columns in the flood scenario: level swell needs more gas. */
+#define PBUB_RAMP_PER_S (1.5 / 3600.0)
+#define PBUB_LOAD_MAX 4.0
+#define PBUB_BACK_PER_S (2.0 / 3600.0)
+
+/* Loop stall: the gas of every loop section is cut. */
+#define STALL_CUT_START_S (2.0 * 3600.0)
+#define STALL_CUT_PER_S (0.5 / 3600.0)     /* -50 % of design gas per hour */
+#define STALL_LOAD_MIN 0.05
+#define STALL_RESTORE_PER_S (1.0 / 3600.0)
+#define STALL_CIRC_FRAC 0.25               /* stall point: circulation below 1/4 of design */
+#define LOOP_CARRY_UNDER 0.25              /* downcomer / riser holdup, steady */
+#define LOOP_FINE_HOLDUP 0.005             /* fine bubbles the downcomer keeps */
+#define LOOP_LAG_S 7200.0                  /* downcomer holdup lag */
+#define LOOP_C0 1.1                        /* drift flux distribution parameter */
+#define LOOP_DRIFT_MS 0.25                 /* drift velocity, m/s */
+
 #define ROWS_MAX 100000000ULL              /* a run is bounded: 3 years of 1 s rows */
 
 enum { PHASE_STEADY, PHASE_RAMP, PHASE_HOLD, PHASE_BACK, PHASE_DONE };
@@ -88,7 +128,22 @@ static const struct signal_noise noise_of[SIGNAL_COUNT] = {
 	[SIGNAL_TEMPERATURE] = {0.3, 3600.0, 0.1, true},
 	[SIGNAL_LEVEL] = {0.002, 900.0, 0.002, false},
 	[SIGNAL_GAS_DENSITY] = {0.003, 3600.0, 0.003, false},
+	[SIGNAL_AGITATOR_SPEED] = {0.001, 1800.0, 0.001, false},
+	[SIGNAL_MOTOR_POWER] = {0.0, 1800.0, 0.01, false},
+	[SIGNAL_DP_RISER] = {0.0, 1800.0, 0.0005, false},
+	[SIGNAL_DP_DOWNCOMER] = {0.0, 1800.0, 0.0005, false},
 };
+
+/* Signals of the first four section types: the random draws of their rows
+ * stay as they were before the other types came (same seed, same bytes). */
+#define SIGNALS_CLASSIC SIGNAL_AGITATOR_SPEED
+
+static int drawn_signals(enum section_type t)
+{
+	return t == SECTION_STIRRED || t == SECTION_LOOP || t == SECTION_PACKED_BUBBLE
+		       ? SIGNAL_COUNT
+		       : SIGNALS_CLASSIC;
+}
 
 /* --------------------------------------------------------------- random */
 
@@ -127,11 +182,13 @@ static double rng_gauss(struct scenario *sc)
 static const char *const kind_names[SCENARIO_KIND_COUNT] = {
 	[SCENARIO_STEADY] = "steady", [SCENARIO_FLOOD] = "flood", [SCENARIO_WEEP] = "weep",
 	[SCENARIO_FROZEN] = "frozen", [SCENARIO_GAP] = "gap",
+	[SCENARIO_IMPELLER_FLOOD] = "impeller-flood", [SCENARIO_LOOP_STALL] = "loop-stall",
 };
 
 static const double kind_hours[SCENARIO_KIND_COUNT] = {
 	[SCENARIO_STEADY] = 4.0, [SCENARIO_FLOOD] = 6.0, [SCENARIO_WEEP] = 6.0,
 	[SCENARIO_FROZEN] = 4.0, [SCENARIO_GAP] = 4.0,
+	[SCENARIO_IMPELLER_FLOOD] = 6.0, [SCENARIO_LOOP_STALL] = 6.0,
 };
 
 int scenario_lookup(const char *name)
@@ -180,6 +237,20 @@ const char *scenario_help(void)
 	"  gap     4 h. Steady, with every field empty for 10 min from 25 % of the\n"
 	"          span (1:00) and the first section's gas flow empty for 2 min from\n"
 	"          62.5 % of the span (2:30).\n"
+	"  impeller-flood  6 h. Steady 1.5 h; then the gas of every stirred section\n"
+	"          rises +150 % of design per hour at a fixed agitator speed until the\n"
+	"          model flood_pct (impeller flooding) reaches 110 % (or 5 x design, or\n"
+	"          the flow tag's range); held 20 min; back to design at -300 %/h.\n"
+	"          The motor power follows the model's gassed power ratio.\n"
+	"  loop-stall  6 h. Steady 2 h; then the gas of every loop section is cut\n"
+	"          -50 % of design per hour until the loop stalls (the model\n"
+	"          circulation velocity below 25 % of design) or the gas is down to\n"
+	"          5 %; held 20 min; restored at +100 %/h. The downcomer keeps its fine\n"
+	"          bubbles (lag 2 h, at least 0.5 % holdup), so the driving density\n"
+	"          difference vanishes.\n"
+	"Packed bubble columns take part in 'flood': gas +150 % of design per hour\n"
+	"from 2 h, up to 4 x, held 20 min, back at -200 %/h (level swell is slow to\n"
+	"reach the overflow).\n"
 	"R404-like bubble columns and spray sections follow their design point with\n"
 	"noise in every scenario; a bubble column's tap DP is (1 - eps) rho_l g dz with\n"
 	"eps from the model's holdup correlation. Values saturate at each tag's\n"
@@ -248,7 +319,8 @@ static bool signal_needed(const struct section_cfg *s, int k)
 	bool dens = s->signal[SIGNAL_GAS_DENSITY] >= 0;
 	switch (k) {
 	case SIGNAL_GAS_FLOW: return true;
-	case SIGNAL_LIQUID_FLOW: return s->geom.type != SECTION_BUBBLE;
+	case SIGNAL_LIQUID_FLOW: return !section_liquid_batch(s->geom.type);
+	case SIGNAL_AGITATOR_SPEED: return s->geom.type == SECTION_STIRRED;
 	case SIGNAL_PRESSURE:
 	case SIGNAL_TEMPERATURE: return !dens;
 	case SIGNAL_GAS_DENSITY: return dens;
@@ -292,9 +364,14 @@ static int design_point(struct scenario *sc, unsigned si, FILE *errf)
 	n[SIGNAL_PRESSURE] = p.pressure_pa;
 	n[SIGNAL_TEMPERATURE] = p.temperature_k;
 	n[SIGNAL_LEVEL] = p.level_m;
-	if (!isfinite(p.level_m) && s->geom.type == SECTION_BUBBLE)
+	if (!isfinite(p.level_m) &&
+	    (s->geom.type == SECTION_BUBBLE || s->geom.type == SECTION_PACKED_BUBBLE))
 		n[SIGNAL_LEVEL] = s->geom.bubble.clear_liquid_height_m;
 	n[SIGNAL_GAS_DENSITY] = p.gas_density_kgm3;
+	n[SIGNAL_AGITATOR_SPEED] = p.agitator_speed_rps;
+	n[SIGNAL_MOTOR_POWER] = NAN;  /* the plant's: from the model power ratio */
+	n[SIGNAL_DP_RISER] = NAN;     /* the plant's: from the loop's holdups */
+	n[SIGNAL_DP_DOWNCOMER] = NAN;
 	sec->simulated = true;
 	return 0;
 }
@@ -312,6 +389,10 @@ static void true_point(const struct scenario_section *sec, struct section_point 
 	p->temperature_k = n[SIGNAL_TEMPERATURE] + d[SIGNAL_TEMPERATURE];
 	p->level_m = n[SIGNAL_LEVEL] * (1.0 + d[SIGNAL_LEVEL]);
 	p->gas_density_kgm3 = n[SIGNAL_GAS_DENSITY] * (1.0 + d[SIGNAL_GAS_DENSITY]);
+	p->agitator_speed_rps = n[SIGNAL_AGITATOR_SPEED] * (1.0 + d[SIGNAL_AGITATOR_SPEED]);
+	p->motor_power_w = NAN;
+	p->dp_riser_pa = sec->dp_riser_true_pa;
+	p->dp_downcomer_pa = sec->dp_downcomer_true_pa;
 }
 
 /* The plant DP of section si at point p (model already in sec->res), and its
@@ -328,6 +409,13 @@ static double plant_dp(const struct scenario *sc, unsigned si, const struct sect
 		return (1.0 - eps) * liquid_density(s, p) * SCENARIO_G_MS2 *
 		       s->geom.bubble.tap_spacing_m;
 	}
+	if (s->geom.type == SECTION_PACKED_BUBBLE) {
+		double eps = v[RF_GAS_HOLDUP_FRAC]; /* per free volume */
+		double dz = s->geom.bubble.tap_spacing_m;
+		double dp = (1.0 - eps) * liquid_density(s, p) * SCENARIO_G_MS2 * dz;
+		double fill = s->geom.pbub.impulse_density_kgm3;
+		return isfinite(fill) ? dp - fill * SCENARIO_G_MS2 * dz : dp;
+	}
 	double base;
 	if (isfinite(v[RF_DP_MODEL_PA]) && s->geom.type != SECTION_SPRAY) {
 		base = sec->dp_factor * v[RF_DP_MODEL_PA];
@@ -341,11 +429,11 @@ static double plant_dp(const struct scenario *sc, unsigned si, const struct sect
 	return base * (1.0 + DP_EXC_K * ex * ex);
 }
 
-static double gas_load_cap(const struct scenario *sc, unsigned si)
+static double gas_load_cap(const struct scenario *sc, unsigned si, double load_max)
 {
 	const struct section_cfg *s = &sc->cfg->sections[si];
 	const struct tag_cfg *t = &sc->cfg->tags[s->signal[SIGNAL_GAS_FLOW]];
-	double cap = FLOOD_LOAD_MAX;
+	double cap = load_max;
 	double nom = tag_design_value(t);
 	if (isfinite(t->max) && nom > 0.0 && 0.97 * t->max / nom < cap)
 		cap = 0.97 * t->max / nom; /* stay inside the flow transmitter's span */
@@ -357,25 +445,41 @@ static int64_t t_ms_at(const struct scenario *sc, double t_s)
 	return sc->opt.start_t_ms + (int64_t)llround(t_s * 1000.0);
 }
 
-/* Flood scenario: the gas-load phase machine of one tray or packed section. */
-static void flood_load(struct scenario *sc, unsigned si, double t_s, double dt_s)
+/* A gas ramp: up from start_s at up_per_s (load per second) until the model
+ * flood_pct reaches FLOOD_STOP_PCT or the load reaches load_max, held, then
+ * back to design at back_per_s. */
+struct ramp {
+	double start_s, up_per_s, load_max, back_per_s;
+};
+
+static const struct ramp flood_ramp = {FLOOD_RAMP_START_S, FLOOD_RAMP_PER_S, FLOOD_LOAD_MAX,
+				       FLOOD_BACK_PER_S};
+static const struct ramp pbub_ramp = {FLOOD_RAMP_START_S, PBUB_RAMP_PER_S, PBUB_LOAD_MAX,
+				      PBUB_BACK_PER_S};
+static const struct ramp impeller_ramp = {IMP_RAMP_START_S, IMP_RAMP_PER_S, IMP_LOAD_MAX,
+					  IMP_BACK_PER_S};
+
+/* Flood scenarios: the gas-load phase machine of one section. */
+static void flood_load(struct scenario *sc, unsigned si, double t_s, double dt_s,
+		       const struct ramp *rp)
 {
 	struct scenario_section *sec = &sc->sec[si];
 	double fp = sec->res.v[RF_FLOOD_PCT];
 	switch (sec->phase) {
 	case PHASE_STEADY:
-		if (t_s >= FLOOD_RAMP_START_S) {
+		if (t_s >= rp->start_s) {
 			sec->phase = PHASE_RAMP;
-			sec->load = 1.0 + FLOOD_RAMP_PER_S * (t_s - FLOOD_RAMP_START_S);
+			sec->load = 1.0 + rp->up_per_s * (t_s - rp->start_s);
 		}
 		break;
 	case PHASE_RAMP:
-		if ((isfinite(fp) && fp >= FLOOD_STOP_PCT) || sec->load >= gas_load_cap(sc, si)) {
+		if ((isfinite(fp) && fp >= FLOOD_STOP_PCT) ||
+		    sec->load >= gas_load_cap(sc, si, rp->load_max)) {
 			sec->phase = PHASE_HOLD;
 			sec->phase_start_s = t_s;
 			sec->peak_t_ms = t_ms_at(sc, t_s);
 		} else {
-			sec->load += FLOOD_RAMP_PER_S * dt_s;
+			sec->load += rp->up_per_s * dt_s;
 		}
 		break;
 	case PHASE_HOLD:
@@ -383,7 +487,7 @@ static void flood_load(struct scenario *sc, unsigned si, double t_s, double dt_s
 			sec->phase = PHASE_BACK;
 		break;
 	case PHASE_BACK:
-		sec->load -= FLOOD_BACK_PER_S * dt_s;
+		sec->load -= rp->back_per_s * dt_s;
 		if (sec->load <= 1.0) {
 			sec->load = 1.0;
 			sec->phase = PHASE_DONE;
@@ -408,12 +512,55 @@ static double weep_load(double t_s)
 				       (WEEP_RISE_TO_S - WEEP_RISE_FROM_S);
 }
 
+/* Loop stall: the gas cut of one loop section, the flood ramp upside down:
+ * down until the loop stalls (the model circulation velocity below
+ * STALL_CIRC_FRAC of its design value; note_events) or the load reaches
+ * STALL_LOAD_MIN, held, then restored. */
+static void stall_load(struct scenario *sc, unsigned si, double t_s, double dt_s)
+{
+	struct scenario_section *sec = &sc->sec[si];
+	switch (sec->phase) {
+	case PHASE_STEADY:
+		if (t_s >= STALL_CUT_START_S)
+			sec->phase = PHASE_RAMP;
+		break;
+	case PHASE_RAMP:
+		if (sec->flood_t_ms != SCENARIO_T_NONE || sec->load <= STALL_LOAD_MIN) {
+			sec->phase = PHASE_HOLD;
+			sec->phase_start_s = t_s;
+			sec->peak_t_ms = t_ms_at(sc, t_s);
+		} else {
+			sec->load = fmax(STALL_LOAD_MIN, sec->load - STALL_CUT_PER_S * dt_s);
+		}
+		break;
+	case PHASE_HOLD:
+		if (t_s - sec->phase_start_s >= FLOOD_HOLD_S)
+			sec->phase = PHASE_BACK;
+		break;
+	case PHASE_BACK:
+		sec->load += STALL_RESTORE_PER_S * dt_s;
+		if (sec->load >= 1.0) {
+			sec->load = 1.0;
+			sec->phase = PHASE_DONE;
+			sec->recovered_t_ms = t_ms_at(sc, t_s);
+		}
+		break;
+	default: break;
+	}
+}
+
 static void set_load(struct scenario *sc, unsigned si, double t_s, double dt_s)
 {
 	struct scenario_section *sec = &sc->sec[si];
 	enum section_type type = sc->cfg->sections[si].geom.type;
 	if (sc->opt.kind == SCENARIO_FLOOD && (type == SECTION_TRAY || type == SECTION_PACKED)) {
-		flood_load(sc, si, t_s, dt_s);
+		flood_load(sc, si, t_s, dt_s, &flood_ramp);
+	} else if (sc->opt.kind == SCENARIO_FLOOD && type == SECTION_PACKED_BUBBLE) {
+		flood_load(sc, si, t_s, dt_s, &pbub_ramp);
+	} else if (sc->opt.kind == SCENARIO_IMPELLER_FLOOD && type == SECTION_STIRRED) {
+		flood_load(sc, si, t_s, dt_s, &impeller_ramp);
+	} else if (sc->opt.kind == SCENARIO_LOOP_STALL && type == SECTION_LOOP) {
+		stall_load(sc, si, t_s, dt_s);
 	} else if (sc->opt.kind == SCENARIO_WEEP && type == SECTION_TRAY) {
 		sec->load = weep_load(t_s);
 		if (t_s >= WEEP_RISE_TO_S && sec->recovered_t_ms == SCENARIO_T_NONE)
@@ -421,6 +568,8 @@ static void set_load(struct scenario *sc, unsigned si, double t_s, double dt_s)
 	}
 	if (sec->load > sec->peak_load)
 		sec->peak_load = sec->load;
+	if (sec->load < sec->load_min)
+		sec->load_min = sec->load;
 }
 
 static void note_events(struct scenario *sc, unsigned si, double t_s)
@@ -428,6 +577,20 @@ static void note_events(struct scenario *sc, unsigned si, double t_s)
 	struct scenario_section *sec = &sc->sec[si];
 	double fp = sec->res.v[RF_FLOOD_PCT];
 	double wp = sec->res.v[RF_WEEP_PCT];
+	if (sc->cfg->sections[si].geom.type == SECTION_LOOP) {
+		/* A loop's event is its stall, not its flood_pct reaching 100. */
+		double u = sec->res.v[RF_CIRCULATION_VELOCITY];
+		if (!isfinite(sec->circ_design_ms))
+			sec->circ_design_ms = u;
+		if (isfinite(fp) && fp > sec->peak_flood_pct)
+			sec->peak_flood_pct = fp;
+		if (isfinite(u) && u < STALL_CIRC_FRAC * sec->circ_design_ms &&
+		    sec->flood_t_ms == SCENARIO_T_NONE) {
+			sec->flood_t_ms = t_ms_at(sc, t_s);
+			sec->flood_basis = sec->res.basis;
+		}
+		return;
+	}
 	if (isfinite(fp) && fp > sec->peak_flood_pct)
 		sec->peak_flood_pct = fp;
 	if (isfinite(fp) && fp >= 100.0 && sec->flood_t_ms == SCENARIO_T_NONE) {
@@ -444,13 +607,67 @@ static void note_events(struct scenario *sc, unsigned si, double t_s)
 		sec->weep_last_below_t_ms = t_ms_at(sc, t_s);
 }
 
+/* The motor power of a stirred section at point p with the model's gassed
+ * power ratio (1 where the impeller type has no correlation). */
+static double stirred_motor_w(const struct section_cfg *s, const struct section_point *p,
+			      double ratio)
+{
+	const struct stirred_geom *st = &s->geom.stirred;
+	double po = isfinite(st->power_number) ? st->power_number
+					       : stirred_power_number_default(st->impeller);
+	double p0 = stirred_ungassed_power_w(po, liquid_density(s, p), p->agitator_speed_rps,
+					     st->impeller_diameter_m);
+	double eff = st->drive_efficiency > 0.0 ? st->drive_efficiency : 1.0;
+	return st->drive_loss_w + p0 * (isfinite(ratio) ? ratio : 1.0) / eff;
+}
+
+/* The loop plant of section si this row (see the head of this file): riser
+ * and downcomer holdups, circulation, and the DPs they give. */
+static void loop_plant(struct scenario *sc, unsigned si, double dt_s)
+{
+	struct scenario_section *sec = &sc->sec[si];
+	const struct section_cfg *s = &sc->cfg->sections[si];
+	const struct loop_geom *l = &s->geom.loop;
+	struct section_point p;
+	sec->dp_riser_true_pa = sec->dp_downcomer_true_pa = NAN;
+	true_point(sec, &p);
+	double rho_g = point_gas_density(s, &p), rho_l = liquid_density(s, &p);
+	if (!(rho_g > 0.0) || !(rho_l > rho_g) || !isfinite(p.gas_kgs))
+		return;
+	double ugr = p.gas_kgs / rho_g / l->riser_area_m2;
+	double ab = loop_bottom_area_m2(l->riser_area_m2, l->bottom_clearance_m);
+	double kb = loop_bottom_loss(l->downcomer_area_m2 / ab, NULL);
+	double kt = isfinite(l->top_loss) ? l->top_loss : 0.0;
+	double u = sec->loop_u_ms, er = 0.0;
+	double ed = sec->loop_eps_d;
+	/* Damped fixed point: U and eps_r pull against each other. */
+	for (int i = 0; i < 20; i++) {
+		er = ugr / (LOOP_C0 * (ugr + u) + LOOP_DRIFT_MS);
+		double ed_now = isfinite(ed) ? ed : fmax(LOOP_CARRY_UNDER * er, LOOP_FINE_HOLDUP);
+		double u_new = loop_circulation_ms(l->height_m, er, ed_now, l->riser_area_m2,
+						   l->downcomer_area_m2, kt, kb, NULL);
+		if (!isfinite(u_new))
+			return;
+		u = 0.5 * (u + u_new);
+	}
+	double target = fmax(LOOP_CARRY_UNDER * er, LOOP_FINE_HOLDUP);
+	ed = isfinite(ed) ? ed + (target - ed) * (1.0 - exp(-dt_s / LOOP_LAG_S)) : target;
+	sec->loop_eps_d = ed;
+	sec->loop_u_ms = u;
+	double dz = isfinite(l->tap_spacing_m) ? l->tap_spacing_m : l->height_m;
+	double g_dz = SCENARIO_G_MS2 * dz;
+	sec->dp_riser_true_pa = (rho_l * (1.0 - er) + rho_g * er) * g_dz;
+	sec->dp_downcomer_true_pa = (rho_l * (1.0 - ed) + rho_g * ed) * g_dz;
+}
+
 /* Advances section si by one row: load, drifts, model, plant DP. */
 static void step_section(struct scenario *sc, unsigned si, double t_s, double dt_s,
 			 struct section_point *p)
 {
 	struct scenario_section *sec = &sc->sec[si];
 	const struct section_cfg *s = &sc->cfg->sections[si];
-	for (int k = 0; k < SIGNAL_COUNT; k++) {
+	int drawn = drawn_signals(s->geom.type);
+	for (int k = 0; k < drawn; k++) {
 		const struct signal_noise *nz = &noise_of[k];
 		double a = exp(-dt_s / nz->drift_tau_s);
 		double g = rng_gauss(sc);
@@ -459,9 +676,13 @@ static void step_section(struct scenario *sc, unsigned si, double t_s, double dt
 	if (!sec->simulated)
 		return;
 	set_load(sc, si, t_s, dt_s);
+	if (s->geom.type == SECTION_LOOP)
+		loop_plant(sc, si, dt_s);
 	true_point(sec, p);
 	section_eval(&s->geom, &s->props, p, &sec->res);
 	sec->dp_true_pa = plant_dp(sc, si, p, &sec->dp_cv);
+	if (s->geom.type == SECTION_STIRRED)
+		sec->motor_true_w = stirred_motor_w(s, p, sec->res.v[RF_POWER_RATIO_MODEL]);
 	note_events(sc, si, t_s);
 }
 
@@ -477,6 +698,12 @@ static void init_section_state(struct scenario_section *sec)
 	sec->dp_factor = DP_PLANT_FACTOR;
 	sec->dp_true_pa = NAN;
 	sec->dp_cv = DP_CV;
+	sec->motor_true_w = NAN;
+	sec->dp_riser_true_pa = sec->dp_downcomer_true_pa = NAN;
+	sec->loop_u_ms = 0.3;
+	sec->loop_eps_d = NAN;
+	sec->circ_design_ms = NAN;
+	sec->load_min = 1.0;
 	result_clear(&sec->res);
 	sec->flood_t_ms = sec->peak_t_ms = sec->recovered_t_ms = SCENARIO_T_NONE;
 	sec->weep_below_t_ms = sec->weep_last_below_t_ms = SCENARIO_T_NONE;
@@ -495,6 +722,7 @@ static void design_dp(struct scenario *sc, unsigned si)
 	section_eval(&s->geom, &s->props, &p, &sec->res);
 	sec->f_factor_nominal_pa05 = sec->res.v[RF_F_FACTOR];
 	sec->dp_model_missing = s->geom.type != SECTION_BUBBLE &&
+				s->geom.type != SECTION_PACKED_BUBBLE &&
 				(s->geom.type == SECTION_SPRAY ||
 				 !isfinite(sec->res.v[RF_DP_MODEL_PA]));
 	double cv;
@@ -654,6 +882,10 @@ static double read_tag(struct scenario *sc, unsigned ti, const struct section_po
 		case SIGNAL_PRESSURE: x = p->pressure_pa; break;
 		case SIGNAL_TEMPERATURE: x = p->temperature_k; break;
 		case SIGNAL_LEVEL: x = p->level_m; break;
+		case SIGNAL_AGITATOR_SPEED: x = p->agitator_speed_rps; break;
+		case SIGNAL_MOTOR_POWER: x = sec->motor_true_w; break;
+		case SIGNAL_DP_RISER: x = sec->dp_riser_true_pa; break;
+		case SIGNAL_DP_DOWNCOMER: x = sec->dp_downcomer_true_pa; break;
 		default: x = point_gas_density(&cfg->sections[si], p); break;
 		}
 		double sd = k == SIGNAL_DP ? sec->dp_cv : noise_of[k].noise_sd;
@@ -786,7 +1018,7 @@ static void summary_flood(const struct scenario *sc, FILE *f)
 	for (unsigned si = 0; si < sc->cfg->section_count; si++) {
 		const struct scenario_section *sec = &sc->sec[si];
 		enum section_type type = sc->cfg->sections[si].geom.type;
-		if (type != SECTION_TRAY && type != SECTION_PACKED)
+		if (type != SECTION_TRAY && type != SECTION_PACKED && type != SECTION_PACKED_BUBBLE)
 			continue;
 		const char *basis = flood_basis_name(sec->flood_basis);
 		fprintf(f, "; %s flood point (model flood_pct 100 %%%s%s) at %s, ramp stopped at %s "
@@ -794,6 +1026,41 @@ static void summary_flood(const struct scenario *sc, FILE *f)
 			sc->cfg->sections[si].name, basis[0] ? ", " : "", basis,
 			when(sec->flood_t_ms, a, sizeof(a)),
 			when(sec->peak_t_ms, b, sizeof(b)), 100.0 * sec->peak_load,
+			sec->peak_flood_pct, when(sec->recovered_t_ms, c, sizeof(c)));
+	}
+}
+
+static void summary_impeller(const struct scenario *sc, FILE *f)
+{
+	char a[TIMEFMT_BUF_SIZE], b[TIMEFMT_BUF_SIZE], c[TIMEFMT_BUF_SIZE];
+	fprintf(f, "; stirred gas +150 %%/h at fixed speed from %s",
+		when(t_ms_at(sc, IMP_RAMP_START_S), a, sizeof(a)));
+	for (unsigned si = 0; si < sc->cfg->section_count; si++) {
+		const struct scenario_section *sec = &sc->sec[si];
+		if (sc->cfg->sections[si].geom.type != SECTION_STIRRED)
+			continue;
+		fprintf(f, "; %s impeller flood point (model flood_pct 100 %%) at %s, ramp stopped "
+			   "at %s (gas %.0f %% of design, flood_pct %.0f %%), back at design at %s",
+			sc->cfg->sections[si].name, when(sec->flood_t_ms, a, sizeof(a)),
+			when(sec->peak_t_ms, b, sizeof(b)), 100.0 * sec->peak_load,
+			sec->peak_flood_pct, when(sec->recovered_t_ms, c, sizeof(c)));
+	}
+}
+
+static void summary_stall(const struct scenario *sc, FILE *f)
+{
+	char a[TIMEFMT_BUF_SIZE], b[TIMEFMT_BUF_SIZE], c[TIMEFMT_BUF_SIZE];
+	fprintf(f, "; loop gas cut -50 %%/h from %s",
+		when(t_ms_at(sc, STALL_CUT_START_S), a, sizeof(a)));
+	for (unsigned si = 0; si < sc->cfg->section_count; si++) {
+		const struct scenario_section *sec = &sc->sec[si];
+		if (sc->cfg->sections[si].geom.type != SECTION_LOOP)
+			continue;
+		fprintf(f, "; %s stall point (model circulation below 25 %% of design) at %s, cut "
+			   "stopped at %s (gas %.0f %% of design, flood_pct %.0f %%), gas back at "
+			   "design at %s",
+			sc->cfg->sections[si].name, when(sec->flood_t_ms, a, sizeof(a)),
+			when(sec->peak_t_ms, b, sizeof(b)), 100.0 * sec->load_min,
 			sec->peak_flood_pct, when(sec->recovered_t_ms, c, sizeof(c)));
 	}
 }
@@ -865,6 +1132,8 @@ void scenario_summary(const struct scenario *sc, FILE *f)
 	switch (sc->opt.kind) {
 	case SCENARIO_FLOOD: summary_flood(sc, f); break;
 	case SCENARIO_WEEP: summary_weep(sc, f); break;
+	case SCENARIO_IMPELLER_FLOOD: summary_impeller(sc, f); break;
+	case SCENARIO_LOOP_STALL: summary_stall(sc, f); break;
 	case SCENARIO_FROZEN:
 		fprintf(f, "; %s frozen from %s to %s", upset_tag,
 			when(t_ms_at(sc, sc->window_from_s), a, sizeof(a)),

@@ -39,6 +39,8 @@ enum scenario_kind {
 	SCENARIO_WEEP,
 	SCENARIO_FROZEN,
 	SCENARIO_GAP,
+	SCENARIO_IMPELLER_FLOOD,
+	SCENARIO_LOOP_STALL,
 	SCENARIO_KIND_COUNT
 };
 
@@ -71,9 +73,16 @@ struct scenario_section {
 	double dp_design_pa;          /* plant DP at the design point, Pa */
 	double dp_true_pa;            /* plant DP this row, before transmitter noise */
 	double dp_cv;                 /* DP transmitter noise this row, coefficient of variation */
+	double motor_true_w;          /* stirred: agitator motor power this row, W */
+	double dp_riser_true_pa;      /* loop: riser DP this row, Pa */
+	double dp_downcomer_true_pa;  /* loop: downcomer DP this row, Pa */
+	double loop_u_ms;             /* loop: circulation velocity of the last row, m/s */
+	double loop_eps_d;            /* loop: downcomer holdup (lags the riser), NAN before */
+	double circ_design_ms;        /* loop: model circulation at the first row, m/s */
+	double load_min;              /* lowest gas load multiplier, - */
 	struct section_result res;    /* model at the true point this row */
 	/* events */
-	int64_t flood_t_ms;           /* model flood_pct first reached 100 % */
+	int64_t flood_t_ms;           /* model flood_pct first reached 100 % (a loop: its stall) */
 	enum flood_basis flood_basis; /* what drove flood_pct then (jet, downcomer ...) */
 	int64_t peak_t_ms;            /* flood ramp stopped (flood_pct 110 % or load cap) */
 	int64_t recovered_t_ms;       /* load back at nominal after the upset */

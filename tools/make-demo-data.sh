@@ -1,6 +1,7 @@
 #!/bin/sh
 # make-demo-data.sh - regenerates the demo data sets in replay/data/ from
-# configs/demo.ini with `floodgauge simulate` (see replay/data/README.md).
+# configs/demo.ini and configs/demo-contactors.ini with `floodgauge simulate`
+# (see replay/data/README.md).
 #
 #   sh tools/make-demo-data.sh          (from the repository root)
 #
@@ -40,4 +41,13 @@ python3 tools/historian-forms.py --config "$CONFIG" --in "$OUT/.historian-src.cs
 	--bad "C401_PDI,2026-10-25T00:40:00Z,2026-10-25T00:42:00Z,Bad Input" \
 	--bad "C402_FI_GAS,2026-10-25T02:00:00Z,2026-10-25T02:00:40Z,I/O Timeout"
 rm -f "$OUT/.historian-src.csv"
+# The high-holdup contactors of the same unit: packed bubble column, stirred
+# vessel, airlift loop.
+CONTACTORS=configs/demo-contactors.ini
+for scenario in impeller-flood loop-stall; do
+	"$FG_BIN" simulate -c "$CONTACTORS" --scenario "$scenario" --seed "$SEED" \
+		--period-s "$PERIOD_S" --out "$OUT/demo-$scenario.csv"
+done
+"$FG_BIN" simulate -c "$CONTACTORS" --scenario flood --seed "$SEED" \
+	--period-s "$PERIOD_S" --out "$OUT/demo-packed-bubble-flood.csv"
 ls -l "$OUT"/demo-*.csv "$OUT"/historian*

@@ -351,6 +351,130 @@ static void test_missing_file_is_enoent(void **state)
 	free(c);
 }
 
+/* A stirred vessel and a loop (lines counted from 1). */
+static const char contactors_ini[] =
+	"[monitor]\n"                          /* 1 */
+	"name = t\n"                           /* 2 */
+	"[tag.F]\n"                            /* 3 */
+	"value = 100\n"                        /* 4 */
+	"unit = kg/h\n"                        /* 5 */
+	"[tag.N]\n"                            /* 6 */
+	"value = 90\n"                         /* 7 */
+	"unit = rpm\n"                         /* 8 */
+	"[tag.J]\n"                            /* 9 */
+	"value = 4\n"                          /* 10 */
+	"unit = kW\n"                          /* 11 */
+	"[tag.D]\n"                            /* 12 */
+	"value = 900\n"                        /* 13 */
+	"unit = mbar\n"                        /* 14 */
+	"[tag.RHO]\n"                          /* 15 */
+	"value = 1.2\n"                        /* 16 */
+	"unit = kg/m3\n"                       /* 17 */
+	"[section.M]\n"                        /* 18 */
+	"type = stirred\n"                     /* 19 */
+	"diameter_m = 2.4\n"                   /* 20 */
+	"impeller_diameter_m = 0.8\n"          /* 21 */
+	"impeller_type = disc-turbine\n"       /* 22 */
+	"impeller_clearance_m = 0.6\n"         /* 23 */
+	"gas_flow = F\n"                       /* 24 */
+	"agitator_speed = N\n"                 /* 25 */
+	"motor_power = J\n"                    /* 26 */
+	"gas_density = RHO\n"                  /* 27 */
+	"gas_viscosity_pas = 1.8e-5\n"         /* 28 */
+	"liquid_density_kgm3 = 998\n"          /* 29 */
+	"liquid_viscosity_pas = 1e-3\n"        /* 30 */
+	"surface_tension_nm = 0.072\n"         /* 31 */
+	"[section.L]\n"                        /* 32 */
+	"type = loop\n"                        /* 33 */
+	"diameter_m = 3.0\n"                   /* 34 */
+	"riser_area_m2 = 3.14\n"               /* 35 */
+	"loop_downcomer_area_m2 = 3.6\n"       /* 36 */
+	"loop_height_m = 12\n"                 /* 37 */
+	"bottom_clearance_m = 0.8\n"           /* 38 */
+	"gas_flow = F\n"                       /* 39 */
+	"dp_riser = D\n"                       /* 40 */
+	"dp_downcomer = D\n"                   /* 41 */
+	"gas_density = RHO\n"                  /* 42 */
+	"gas_viscosity_pas = 1.8e-5\n"         /* 43 */
+	"liquid_density_kgm3 = 998\n"          /* 44 */
+	"liquid_viscosity_pas = 1e-3\n"        /* 45 */
+	"surface_tension_nm = 0.072\n";        /* 46 */
+
+static struct loaded *load_contactors_edit(const char *old, const char *new_text)
+{
+	static char buf[8192];
+	const char *at = strstr(contactors_ini, old);
+	assert_non_null(at);
+	size_t pre = (size_t)(at - contactors_ini);
+	snprintf(buf, sizeof(buf), "%.*s%s%s", (int)pre, contactors_ini, new_text,
+		 at + strlen(old));
+	return load_text(buf);
+}
+
+static void test_stirred_and_loop_sections_load(void **state)
+{
+	(void)state;
+	struct loaded *l = load_text(contactors_ini);
+	if (l->rc != 0)
+		fail_msg("%s", l->err);
+	const struct section_cfg *m = &l->cfg.sections[0];
+	assert_int_equal(m->geom.type, SECTION_STIRRED);
+	assert_int_equal(m->geom.stirred.impeller, IMPELLER_DISC_TURBINE);
+	assert_true(m->signal[SIGNAL_AGITATOR_SPEED] == 1);
+	assert_true(isnan(m->geom.stirred.power_number)); /* the type's default applies */
+	const struct section_cfg *lp = &l->cfg.sections[1];
+	assert_int_equal(lp->geom.type, SECTION_LOOP);
+	assert_true(lp->geom.loop.height_m == 12.0);
+	assert_true(lp->signal[SIGNAL_DP_DOWNCOMER] == 3);
+	loaded_free(l);
+}
+
+static void test_contactor_config_errors_name_their_line(void **state)
+{
+	(void)state;
+	struct loaded *l = load_contactors_edit("impeller_type = disc-turbine",
+						"impeller_type = propeller");
+	assert_error(l, 22, "impeller_type: 'propeller' is not one of: disc-turbine, hollow-blade");
+	loaded_free(l);
+	l = load_contactors_edit("agitator_speed = N\n", "");
+	assert_error(l, 18, "(stirred) needs 'agitator_speed'");
+	loaded_free(l);
+	l = load_contactors_edit("unit = rpm", "unit = m3/h");
+	assert_error(l, 25, "tag 'N' is in m3/h (volume flow), which is not a unit for "
+			    "agitator_speed");
+	loaded_free(l);
+	l = load_contactors_edit("bottom_clearance_m = 0.8\n",
+				 "bottom_clearance_m = 0.8\nimpeller_diameter_m = 0.5\n");
+	assert_error(l, 39, "'impeller_diameter_m' does not apply to a loop section");
+	loaded_free(l);
+	l = load_contactors_edit("impeller_diameter_m = 0.8", "impeller_diameter_m = 2.5");
+	assert_error(l, 18, "impeller_diameter_m 2.5 m is not smaller than the vessel");
+	loaded_free(l);
+	l = load_contactors_edit("riser_area_m2 = 3.14", "riser_area_m2 = 6.14");
+	assert_error(l, 32, "exceeds the vessel cross-section");
+	loaded_free(l);
+	l = load_contactors_edit("dp_riser = D\n", "dp = D\n");
+	assert_error(l, 40, "'dp' does not apply to a loop section");
+	loaded_free(l);
+}
+
+static void test_demo_contactors_config_is_valid(void **state)
+{
+	(void)state;
+	struct fg_config *c = malloc(sizeof(*c));
+	assert_non_null(c);
+	assert_int_equal(config_load(c, "configs/demo-contactors.ini", stderr), 0);
+	assert_int_equal(c->section_count, 3);
+	int types = 0;
+	for (unsigned i = 0; i < c->section_count; i++)
+		types |= 1 << c->sections[i].geom.type;
+	assert_int_equal(types, (1 << SECTION_PACKED_BUBBLE) | (1 << SECTION_STIRRED) |
+					(1 << SECTION_LOOP));
+	assert_true(c->sections[0].geom.pbub.void_frac > 0.9); /* from the packing table */
+	assert_true(c->sections[0].geom.pbub.bed_height_m == 5.0);
+	free(c);
+}
+
 static void test_demo_config_is_valid(void **state)
 {
 	(void)state;
@@ -523,6 +647,9 @@ int main(void)
 		cmocka_unit_test(test_export_fields_continue_over_lines),
 		cmocka_unit_test(test_missing_file_is_enoent),
 		cmocka_unit_test(test_demo_config_is_valid),
+		cmocka_unit_test(test_stirred_and_loop_sections_load),
+		cmocka_unit_test(test_contactor_config_errors_name_their_line),
+		cmocka_unit_test(test_demo_contactors_config_is_valid),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -136,6 +136,18 @@ static void test_length_density_fraction_factors_match_nist(void **state)
 	check_factor("-", UNIT_KIND_NONE, 1.0, 0.0);
 }
 
+static void test_speed_and_power_factors(void **state)
+{
+	(void)state;
+	/* SI brochure (9th ed.): the revolution per minute is 1/60 rev/s; 1 kW = 1e3 W. */
+	check_factor("rpm", UNIT_KIND_ROTATION, 1.0 / 60.0, 0.0);
+	check_factor("rps", UNIT_KIND_ROTATION, 1.0, 0.0);
+	check_factor("1/s", UNIT_KIND_ROTATION, 1.0, 0.0);
+	check_factor("W", UNIT_KIND_POWER, 1.0, 0.0);
+	check_factor("kW", UNIT_KIND_POWER, 1.0e3, 0.0);
+	check_factor("MW", UNIT_KIND_POWER, 1.0e6, 0.0);
+}
+
 static void test_from_si_inverts_to_si_for_every_unit(void **state)
 {
 	(void)state;
@@ -153,7 +165,7 @@ static void test_from_si_inverts_to_si_for_every_unit(void **state)
 		}
 		seen++;
 	}
-	assert_int_equal(seen, 40);
+	assert_int_equal(seen, 46); /* 40 + rpm, rps, 1/s, W, kW, MW */
 }
 
 static void test_known_list_names_every_table_entry(void **state)
@@ -217,6 +229,7 @@ int main(void)
 		cmocka_unit_test(test_temperature_scales_match_nist),
 		cmocka_unit_test(test_flow_factors_match_nist),
 		cmocka_unit_test(test_length_density_fraction_factors_match_nist),
+		cmocka_unit_test(test_speed_and_power_factors),
 		cmocka_unit_test(test_from_si_inverts_to_si_for_every_unit),
 		cmocka_unit_test(test_known_list_names_every_table_entry),
 		cmocka_unit_test(test_lookup_is_case_sensitive_and_rejects_unknown),
