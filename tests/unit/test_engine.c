@@ -52,6 +52,20 @@ static int rig_setup(void **state)
 	return 0;
 }
 
+static int rig_setup_contactors(void **state)
+{
+	struct rig *r = __real_calloc(1, sizeof(*r));
+	if (r == NULL || config_load(&r->cfg, "configs/demo-contactors.ini", stderr) != 0)
+		return -1;
+	engine_init(&r->eng, &r->cfg);
+	for (unsigned i = 0; i < r->cfg.tag_count; i++) {
+		r->values[i] = r->cfg.tags[i].nominal;
+		r->status[i] = TAG_STATUS_FRESH;
+	}
+	*state = r;
+	return 0;
+}
+
 static int rig_teardown(void **state)
 {
 	free(*state);
@@ -241,6 +255,73 @@ static void test_historian_status_text_reaches_the_event(void **state)
 			    ALARM_REASON_MISSING_COLUMN);
 }
 
+static int section_ix(const struct rig *r, const char *name)
+{
+	int i = config_section_index(&r->cfg, name);
+	assert_true(i >= 0);
+	return i;
+}
+
+static void test_contactors_step_does_not_allocate(void **state)
+{
+	struct rig *r = *state;
+	alloc_calls = 0;
+	run(r, 0, 1000, -1, ALARM_STATE_UNACK);
+	r->values[tag(r, "M406_JI")] = 2.8; /* power alarm fires: events too */
+	run(r, 1000, 120, -1, ALARM_STATE_UNACK);
+	assert_int_equal(alloc_calls, 0);
+}
+
+static void test_loop_learns_its_normal_circulation(void **state)
+{
+	struct rig *r = *state;
+	const struct engine_section *es = &r->eng.sec[section_ix(r, "L407")];
+	run(r, 0, 600, -1, ALARM_STATE_UNACK);
+	/* Still learning (ENGINE_CIRC_WARMUP_S 900 s): no circulation_pct yet. */
+	assert_true(isnan(es->r.v[RF_CIRCULATION_PCT]));
+	assert_true(isfinite(es->r.v[RF_CIRCULATION_VELOCITY]));
+	run(r, 600, 400, -1, ALARM_STATE_UNACK);
+	/* Constant inputs: the learned normal is the velocity itself. */
+	assert_true(fabs(es->r.v[RF_CIRCULATION_PCT] - 100.0) < 1e-9);
+	double normal = es->circ_normal_ms;
+	/* Less gas in the riser (a higher riser DP): the loop slows down by more
+	 * than the band, so learning stops and the normal is not dragged down
+	 * with it. It may move a little while the filtered DP (filter_tau_s 30 s)
+	 * passes through the +-10 % band: at most that band times the ~40 s there
+	 * over the ~1000 s averaging time so far, about 0.4 %; 1 % allowed. */
+	r->values[tag(r, "L407_PDI_RISER")] = 962.0;
+	int ai = alarm_ix(r, "L407_CIRC_L");
+	int raised = run(r, 1000, 600, ai, ALARM_STATE_UNACK);
+	assert_true(es->r.v[RF_CIRCULATION_PCT] < 75.0);
+	assert_true(fabs(es->circ_normal_ms / normal - 1.0) < 0.01);
+	assert_int_equal(raised, 1);
+}
+
+static void test_falling_power_ratio_raises_its_alarm(void **state)
+{
+	struct rig *r = *state;
+	int ai = alarm_ix(r, "M406_POWER_L");
+	assert_int_equal(run(r, 0, 300, ai, ALARM_STATE_UNACK), 0);
+	/* (2.8 kW - 0.4 kW) x 0.92 over Po rho N^3 D^5 = 5 x 998 x 1.5^3 x 0.8^5
+	 * = 5518.5 W: 0.400, below the 0.45 setpoint. */
+	r->values[tag(r, "M406_JI")] = 2.8;
+	assert_int_equal(run(r, 300, 50, ai, ALARM_STATE_UNACK), 0); /* on-delay 60 s */
+	assert_int_equal(run(r, 350, 30, ai, ALARM_STATE_UNACK), 1);
+	const struct engine_section *es = &r->eng.sec[section_ix(r, "M406")];
+	assert_true(fabs(es->r.v[RF_POWER_RATIO_MEASURED] - 2400.0 * 0.92 / 5518.5) < 1e-3);
+}
+
+static void test_standing_impeller_is_bad_and_raises_no_process_alarm(void **state)
+{
+	struct rig *r = *state;
+	r->values[tag(r, "M406_SI")] = 0.0;
+	r->values[tag(r, "M406_JI")] = 0.4;
+	assert_int_equal(run(r, 0, 300, alarm_ix(r, "M406_POWER_L"), ALARM_STATE_UNACK), 0);
+	const struct engine_section *es = &r->eng.sec[section_ix(r, "M406")];
+	assert_int_equal(es->r.quality, FG_QUALITY_BAD);
+	assert_true(isnan(es->r.v[RF_FLOW_NUMBER]));
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -259,6 +340,14 @@ int main(void)
 						rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_inventory_converts_each_flow_by_its_own_unit,
 						rig_setup, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_contactors_step_does_not_allocate,
+						rig_setup_contactors, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_loop_learns_its_normal_circulation,
+						rig_setup_contactors, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_falling_power_ratio_raises_its_alarm,
+						rig_setup_contactors, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_standing_impeller_is_bad_and_raises_no_process_alarm,
+						rig_setup_contactors, rig_teardown),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -40,9 +40,10 @@ static struct section_props air_water(void)
 	return pr;
 }
 
-static void eval(double gas_kgs, double n_rps, double motor_w, struct section_result *r)
+static void eval_g(const struct section_geom *gp, double gas_kgs, double n_rps, double motor_w,
+		   struct section_result *r)
 {
-	struct section_geom g = vessel();
+	struct section_geom g = *gp;
 	struct section_props pr = air_water();
 	struct section_point p;
 	section_point_clear(&p);
@@ -52,6 +53,12 @@ static void eval(double gas_kgs, double n_rps, double motor_w, struct section_re
 	p.agitator_speed_rps = n_rps;
 	p.motor_power_w = motor_w;
 	section_eval(&g, &pr, &p, r);
+}
+
+static void eval(double gas_kgs, double n_rps, double motor_w, struct section_result *r)
+{
+	struct section_geom g = vessel();
+	eval_g(&g, gas_kgs, n_rps, motor_w, r);
 }
 
 static void assert_no_nan_but_absent(const struct section_result *r)
@@ -223,6 +230,23 @@ static void test_eval_measured_ratio_from_motor_power(void **state)
 	assert_true(fabs(r.v[RF_POWER_RATIO_MEASURED] - 0.5) < 1e-9);
 }
 
+static void test_eval_hollow_blade_has_no_model_ratio_but_measures_one(void **state)
+{
+	(void)state;
+	struct section_geom g = vessel();
+	g.stirred.impeller = IMPELLER_HOLLOW_BLADE;
+	struct section_result d, h;
+	eval(0.02, 2.0, NAN, &d);
+	eval_g(&g, 0.02, 2.0, 3000.0, &h);
+	assert_true(isnan(h.v[RF_POWER_RATIO_MODEL]));
+	assert_true(isfinite(h.v[RF_POWER_RATIO_MEASURED]));
+	/* Po 3.2 by default: (3000 - 300) 0.95 / (3.2 998 8 0.4^5) */
+	double p0 = 3.2 * 998.0 * 8.0 * pow(0.4, 5.0);
+	assert_true(fabs(h.v[RF_POWER_RATIO_MEASURED] - 2700.0 * 0.95 / p0) < 1e-9);
+	assert_true(fabs(d.v[RF_FLOOD_PCT] / h.v[RF_FLOOD_PCT] - 2.5) < 1e-9);
+	assert_int_equal(h.quality, FG_QUALITY_GOOD);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -239,6 +263,7 @@ int main(void)
 		cmocka_unit_test(test_eval_flood_rises_with_gas_at_fixed_speed),
 		cmocka_unit_test(test_eval_flow_number_uses_sparger_pressure),
 		cmocka_unit_test(test_eval_measured_ratio_from_motor_power),
+		cmocka_unit_test(test_eval_hollow_blade_has_no_model_ratio_but_measures_one),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
