@@ -617,7 +617,14 @@ void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg
 {
 	assert(fr != NULL);
 	assert(k < rp->layout.section_count);
+	bool own = false;
+	for (size_t t = 0; t < sizeof type_charts / sizeof type_charts[0]; t++)
+		own = own || strcmp(type_charts[t].type, rp->layout.sections[k].type) == 0;
 	for (size_t c = 0; c < CHART_COUNT; c++) {
+		/* A type with its own charts and no dp signal (every loop, most
+		 * stirred vessels) skips the empty DP chart. */
+		if (own && c == 1 && !series_has_values(rp, k, REPORT_SERIES_DP))
+			continue;
 		if (c == CHART_COUNT - 1) /* the type's own charts before the bottom one */
 			for (size_t t = 0; t < sizeof type_charts / sizeof type_charts[0]; t++)
 				if (strcmp(type_charts[t].type, rp->layout.sections[k].type) == 0)
