@@ -61,7 +61,8 @@ double stirred_flood_flow_number(enum impeller_type t, double froude, double d_o
 /* Gas flow number at complete dispersion (gas recirculating below the
  * impeller): Fl_G,CD = 0.2 Fr^0.5 (D/T)^0.5, Nienow, Warmoeskerken & Smith
  * (1985) (from memory), disc turbines, same range as above. For hollow-blade
- * turbines the same expression is used (assumption; noted nowhere else).
+ * turbines the same expression is used (an assumption of ours: we know no
+ * published complete-dispersion constants for them).
  * NAN as above. */
 double stirred_dispersion_flow_number(enum impeller_type t, double froude, double d_over_t,
 				      struct fg_extrap *x);
