@@ -254,7 +254,7 @@ int config_section_key_line(const struct section_pending *sp, const char *key)
 {
 	int i = section_key_number(key);
 	assert(i >= 0);
-	return (sp->keys_set & (1ull << i)) != 0 ? sp->key_line[i] : 0;
+	return sp->key_line[i];
 }
 
 /* A tray gives each area once: as a fraction or in m2. */
