@@ -8,9 +8,11 @@
  * are counted and the first of them reported with their line numbers.
  */
 #include <assert.h>
+#include <assert.h>
 #include <errno.h>
 #include <getopt.h>
 #include <math.h>
+#include <pthread.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -25,6 +27,7 @@
 #include "numfmt.h"
 #include "report.h"
 #include "results.h"
+#include "rowqueue.h"
 #include "timefmt.h"
 
 /* Files of one series (`replay -c FILE a.csv b.csv ...`): a year as twelve
@@ -38,6 +41,11 @@ struct replay {
 	uint64_t bytes_before, bytes_all; /* progress over every file */
 	uint64_t rows_overlap;            /* rows not after the previous file's last */
 	struct csvread_stats all;         /* counters summed over the files */
+	unsigned threads;                 /* --threads: 2 (reader apart) or 1 */
+	struct rowq q;                    /* reader -> engine, with 2 threads */
+	uint64_t bytes_seen;              /* reader progress as the engine last saw it */
+	int reader_rc;                    /* the reader thread's exit status */
+	uint64_t bytes_first;             /* size of a single data file (progress) */
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
 	const char *from_text, *to_text;  /* --from/--to as given (read in the zone) */
@@ -67,7 +75,7 @@ static void replay_usage(FILE *f)
 {
 	fprintf(f, "usage: floodgauge replay -c FILE DATA.csv... [--out DIR] [--from T] [--to T]\n"
 		   "                        [--tz ZONE] [--event T[=LABEL]]...\n"
-		   "                        [--no-results | --results-every S]\n\n"
+		   "                        [--no-results | --results-every S] [--threads N]\n\n"
 		   "Runs the monitor's engine over recorded data (a historian export, wide:\n"
 		   "a time column and one column per tag, or long: time,tag,value[,status];\n"
 		   "ISO 8601 or epoch seconds, ',' or ';') and writes DIR/results.csv,\n"
@@ -79,6 +87,8 @@ static void replay_usage(FILE *f)
 		   "more (at most %d). Its time is read like --from, in the --tz zone.\n"
 		   "Several files are one series, taken in the time order of their first\n"
 		   "rows (rows where they overlap are skipped and counted).\n"
+		   "--threads 1 reads and evaluates in one thread (default 2: the reader\n"
+		   "apart; the output is the same byte for byte).\n"
 		   "--no-results skips results.csv (events, summary and report are still\n"
 		   "written; an old results.csv in DIR is removed); --results-every S writes\n"
 		   "one results row per S seconds of data, the last sample of each interval.\n"
@@ -161,6 +171,7 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 					     {"help", no_argument, NULL, 'h'},
 					     {"no-results", no_argument, NULL, 'R'},
 					     {"results-every", required_argument, NULL, 'E'},
+					     {"threads", required_argument, NULL, 'T'},
 					     HISTREAD_LONG_OPTIONS,
 					     {0}};
 	int ch;
@@ -181,6 +192,13 @@ static int parse_args(struct replay *rp, int argc, char **argv, const char **cfg
 			break;
 		case 'h': replay_usage(stdout); return -1;
 		case 'R': rp->no_results = true; break;
+		case 'T':
+			if (strcmp(optarg, "1") != 0 && strcmp(optarg, "2") != 0) {
+				fprintf(stderr, "floodgauge replay: --threads is 1 or 2\n");
+				return EXIT_USAGE;
+			}
+			rp->threads = (unsigned)(optarg[0] - '0');
+			break;
 		case 'E':
 			if (parse_every(optarg, &rp->results_every_ms) != 0)
 				return EXIT_USAGE;
@@ -434,12 +452,6 @@ static int write_results(struct replay *rp, int64_t t_ms,
 static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 		    const enum tag_status *status)
 {
-	for (unsigned k = 0; k < histread_text_count(&rp->hist); k++) {
-		unsigned ti;
-		const char *text;
-		histread_text_at(&rp->hist, k, &ti, &text);
-		engine_tag_status_text(rp->eng, ti, text);
-	}
 	engine_step(rp->eng, t_ms, values, status);
 	const struct section_result *res[FG_SECTIONS_MAX];
 	static struct section_result copy[FG_SECTIONS_MAX];
@@ -478,10 +490,15 @@ static void progress(const struct replay *rp, double t0, double *next, bool fina
 		return;
 	*next = now + 0.5;
 	uint64_t done = 0, total = 0;
-	histread_progress(&rp->hist, &done, &total);
-	if (rp->data_count > 1) {
-		done += rp->bytes_before;
-		total = rp->bytes_all;
+	if (rp->threads == 2) { /* the reader's own counters belong to its thread */
+		done = rp->bytes_seen;
+		total = rp->data_count > 1 ? rp->bytes_all : rp->bytes_first;
+	} else {
+		histread_progress(&rp->hist, &done, &total);
+		if (rp->data_count > 1) {
+			done += rp->bytes_before;
+			total = rp->bytes_all;
+		}
 	}
 	double rate = (double)rp->rows_used / fmax(now - t0, 1e-3);
 	if (total > 0 && done > 0) {
@@ -618,36 +635,54 @@ static int next_file(struct replay *rp, unsigned fi)
 	return 0;
 }
 
-static int run_rows(struct replay *rp)
+/* One row through the engine and the writers, unless --from/--to or an
+ * overlap of files leaves it out. Returns 0 or EXIT_RUNTIME. */
+static int use_row(struct replay *rp, int64_t t_ms, const double *values,
+		   const enum tag_status *status)
+{
+	if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms) {
+		rp->rows_outside++;
+		return 0;
+	}
+	/* Files of one series may overlap: a row not after the last one used
+	 * is out of time order, as within a file. */
+	if (rp->rows_used > 0 && t_ms <= rp->prev_t_ms) {
+		rp->rows_overlap++;
+		return 0;
+	}
+	if (step_row(rp, t_ms, values, status) != 0) {
+		fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir, strerror(errno));
+		return EXIT_RUNTIME;
+	}
+	return 0;
+}
+
+/* The status texts of the row the reader just returned, into the engine. */
+static void take_texts(struct replay *rp)
+{
+	for (unsigned k = 0; k < histread_text_count(&rp->hist); k++) {
+		unsigned ti;
+		const char *text;
+		histread_text_at(&rp->hist, k, &ti, &text);
+		engine_tag_status_text(rp->eng, ti, text);
+	}
+}
+
+/* Reads every file in order, handing each row to row(): the single-thread
+ * loop, and the reader thread's. Returns 0, or the exit status. */
+static int read_all(struct replay *rp, int (*row)(struct replay *, int64_t, const double *,
+						    const enum tag_status *))
 {
 	static double values[FG_TAGS_MAX];
 	static enum tag_status status[FG_TAGS_MAX];
-	bool tty = isatty(STDERR_FILENO);
-	double t0 = wall_s(), next = t0 + 0.5;
 	int64_t t_ms;
 	int rc = 0;
 	for (unsigned fi = 0; fi < rp->data_count; fi++) {
 		if (fi > 0 && (rc = next_file(rp, fi)) != 0)
 			return rc;
-		while ((rc = histread_next(&rp->hist, &t_ms, values, status)) == 1) {
-			if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms) {
-				rp->rows_outside++;
-				continue;
-			}
-			/* Files of one series may overlap: a row not after the
-			 * last one used is out of time order, as within a file. */
-			if (rp->rows_used > 0 && t_ms <= rp->prev_t_ms) {
-				rp->rows_overlap++;
-				continue;
-			}
-			if (step_row(rp, t_ms, values, status) != 0) {
-				fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir,
-					strerror(errno));
-				return EXIT_RUNTIME;
-			}
-			if (tty)
-				progress(rp, t0, &next, false);
-		}
+		while ((rc = histread_next(&rp->hist, &t_ms, values, status)) == 1)
+			if ((rc = row(rp, t_ms, values, status)) != 0)
+				return rc;
 		if (rc < 0) {
 			fprintf(stderr, "floodgauge replay: reading %s: %s\n", rp->data_path,
 				strerror(-rc));
@@ -655,8 +690,126 @@ static int run_rows(struct replay *rp)
 		}
 		end_file(rp);
 	}
-	if (tty)
-		progress(rp, t0, &next, true);
+	return 0;
+}
+
+static double progress_t0, progress_next;
+
+static int row_direct(struct replay *rp, int64_t t_ms, const double *values,
+		      const enum tag_status *status)
+{
+	take_texts(rp);
+	int rc = use_row(rp, t_ms, values, status);
+	if (rc == 0 && isatty(STDERR_FILENO))
+		progress(rp, progress_t0, &progress_next, false);
+	return rc;
+}
+
+/* ---- two threads: the reader apart (rowqueue.h) ------------------------ */
+
+static struct rowq_chunk *fill; /* the reader thread's chunk being filled */
+
+static void publish(struct replay *rp, int end_rc)
+{
+	uint64_t done, total;
+	histread_progress(&rp->hist, &done, &total);
+	fill->bytes_done = rp->bytes_before + done;
+	fill->end_rc = end_rc;
+	rowq_fill_end(&rp->q, fill);
+	fill = end_rc == 1 ? rowq_fill_begin(&rp->q) : NULL;
+}
+
+static int row_queued(struct replay *rp, int64_t t_ms, const double *values,
+		      const enum tag_status *status)
+{
+	static unsigned tags[ROWQ_TEXTS];
+	static const char *texts[ROWQ_TEXTS];
+	unsigned n = histread_text_count(&rp->hist);
+	for (unsigned k = 0; k < n && k < ROWQ_TEXTS; k++)
+		histread_text_at(&rp->hist, k, &tags[k], &texts[k]);
+	if (n > ROWQ_TEXTS)
+		n = ROWQ_TEXTS;
+	if (fill == NULL)
+		return -ECANCELED;
+	if (!rowq_add(&rp->q, fill, t_ms, values, status, n, tags, texts)) {
+		publish(rp, 1);
+		if (fill == NULL)
+			return -ECANCELED; /* the engine side gave up */
+		bool ok = rowq_add(&rp->q, fill, t_ms, values, status, n, tags, texts);
+		assert(ok);
+		(void)ok;
+	}
+	return 0;
+}
+
+static void *reader_main(void *arg)
+{
+	struct replay *rp = arg;
+	fill = rowq_fill_begin(&rp->q);
+	int rc = fill != NULL ? read_all(rp, row_queued) : 0;
+	rp->reader_rc = rc == -ECANCELED ? 0 : rc;
+	if (fill != NULL)
+		publish(rp, rc == 0 ? 0 : -1);
+	return NULL;
+}
+
+/* The engine and writers' side: takes chunks until the end marker. */
+static int engine_side(struct replay *rp)
+{
+	bool tty = isatty(STDERR_FILENO);
+	for (;;) {
+		struct rowq_chunk *c = rowq_take_begin(&rp->q);
+		for (unsigned r = 0; r < c->row_count; r++) {
+			const struct rowq_row *row = &c->rows[r];
+			for (unsigned k = 0; k < row->text_count; k++)
+				engine_tag_status_text(rp->eng, c->text_tag[row->text_first + k],
+						       c->text[row->text_first + k]);
+			if (use_row(rp, row->t_ms, rowq_values(&rp->q, c, r),
+				    rowq_status(&rp->q, c, r)) != 0) {
+				rowq_take_end(&rp->q, c);
+				rowq_cancel(&rp->q);
+				return EXIT_RUNTIME;
+			}
+		}
+		rp->bytes_seen = c->bytes_done;
+		bool end = c->end_rc != 1;
+		rowq_take_end(&rp->q, c);
+		if (tty)
+			progress(rp, progress_t0, &progress_next, false);
+		if (end)
+			return 0;
+	}
+}
+
+static int run_threaded(struct replay *rp)
+{
+	uint64_t done;
+	histread_progress(&rp->hist, &done, &rp->bytes_first);
+	if (rowq_init(&rp->q, rp->cfg->tag_count) != 0) {
+		fprintf(stderr, "floodgauge replay: out of memory\n");
+		return EXIT_RUNTIME;
+	}
+	pthread_t reader;
+	if (pthread_create(&reader, NULL, reader_main, rp) != 0) {
+		rowq_fini(&rp->q);
+		fprintf(stderr, "floodgauge replay: cannot start the reader thread\n");
+		return EXIT_RUNTIME;
+	}
+	int rc = engine_side(rp);
+	pthread_join(reader, NULL);
+	rowq_fini(&rp->q);
+	return rc != 0 ? rc : rp->reader_rc;
+}
+
+static int run_rows(struct replay *rp)
+{
+	progress_t0 = wall_s();
+	progress_next = progress_t0 + 0.5;
+	int rc = rp->threads == 2 ? run_threaded(rp) : read_all(rp, row_direct);
+	if (rc != 0)
+		return rc;
+	if (isatty(STDERR_FILENO))
+		progress(rp, progress_t0, &progress_next, true);
 	if (rp->rows_overlap > 0)
 		fprintf(stderr, "floodgauge replay: %llu rows skipped where the files overlap in "
 				"time\n", (unsigned long long)rp->rows_overlap);
@@ -770,6 +923,7 @@ int cmd_replay(int argc, char **argv)
 	memset(&rp, 0, sizeof(rp));
 	rp.out_dir = "floodgauge-replay";
 	rp.from_t_ms = INT64_MIN;
+	rp.threads = 2;
 	rp.to_t_ms = INT64_MAX;
 	const char *cfg_path = NULL;
 	int rc = parse_args(&rp, argc, argv, &cfg_path);

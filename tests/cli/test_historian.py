@@ -191,6 +191,11 @@ ok(open("replay/data/historian.ini").read() == open(SITE).read(),
 rc, so, se, ev = replay("replay/data/historian.ini", "replay/data/historian-long.csv", "r-bundled")
 ok(rc == 0 and same_outputs("r-utc", "r-bundled"), "the bundled long example replays as documented",
    se)
+# status texts (bad samples) cross the reader thread: one thread gives the same bytes
+rc, so, se, ev = replay("replay/data/historian.ini", "replay/data/historian-long.csv", "r-one",
+                        "--threads", "1")
+ok(rc == 0 and same_outputs("r-bundled", "r-one"),
+   "the long example with status texts replays the same in one thread", se)
 
 shutil.rmtree(tmp)
 done()

@@ -180,6 +180,17 @@ if m and ramp:
     rc, so, se = fg("replay", "-c", DEMO, csv, "--out", out5e, "--results-every", "0")
     ok(rc == 2 and "--results-every" in se, "--results-every 0 is a usage error", se)
 
+    # one thread or two (the reader apart): the same bytes
+    out8 = os.path.join(tmp, "onethread")
+    rc, so1, se, ev = replay(csv, out8, "--threads", "1")
+    ok(rc == 0, "--threads 1 runs", se)
+    for name in ("results.csv", "events.jsonl", "summary.json", "report.html"):
+        ok(open(os.path.join(out8, name), "rb").read()
+           == open(os.path.join(out, name), "rb").read(),
+           f"{name} with one thread equals the two-thread run's")
+    rc, so, se = fg("replay", "-c", DEMO, csv, "--out", out8, "--threads", "3")
+    ok(rc == 2 and "--threads" in se, "--threads 3 is a usage error", se)
+
     # several files as one series: the flood set cut in three, given out of order
     lines = open(csv).read().splitlines(keepends=True)
     parts = []

@@ -1,0 +1,134 @@
+/*
+ * rowqueue.c - see rowqueue.h.
+ */
+#include "rowqueue.h"
+
+#include <assert.h>
+#include <errno.h>
+#include <stdlib.h>
+#include <string.h>
+
+int rowq_init(struct rowq *q, unsigned tag_count)
+{
+	assert(q != NULL);
+	assert(tag_count <= FG_TAGS_MAX);
+	memset(q, 0, sizeof *q);
+	q->tag_count = tag_count;
+	size_t row_bytes = (size_t)(tag_count > 0 ? tag_count : 1) *
+			   (sizeof(double) + sizeof(enum tag_status));
+	size_t rows = ROWQ_CHUNK_BYTES / row_bytes;
+	q->rows_per_chunk = rows > ROWQ_ROWS ? ROWQ_ROWS : rows < 1 ? 1 : (unsigned)rows;
+	q->chunks = calloc(ROWQ_CHUNKS, sizeof *q->chunks);
+	if (q->chunks == NULL)
+		return -ENOMEM;
+	size_t n = (size_t)q->rows_per_chunk * (tag_count > 0 ? tag_count : 1);
+	for (unsigned i = 0; i < ROWQ_CHUNKS; i++) {
+		q->chunks[i].values = malloc(n * sizeof(double));
+		q->chunks[i].status = malloc(n * sizeof(enum tag_status));
+		if (q->chunks[i].values == NULL || q->chunks[i].status == NULL) {
+			rowq_fini(q);
+			return -ENOMEM;
+		}
+	}
+	pthread_mutex_init(&q->mu, NULL);
+	pthread_cond_init(&q->not_full, NULL);
+	pthread_cond_init(&q->not_empty, NULL);
+	return 0;
+}
+
+void rowq_fini(struct rowq *q)
+{
+	if (q == NULL || q->chunks == NULL)
+		return;
+	for (unsigned i = 0; i < ROWQ_CHUNKS; i++) {
+		free(q->chunks[i].values);
+		free(q->chunks[i].status);
+	}
+	free(q->chunks);
+	pthread_mutex_destroy(&q->mu);
+	pthread_cond_destroy(&q->not_full);
+	pthread_cond_destroy(&q->not_empty);
+	memset(q, 0, sizeof *q);
+}
+
+struct rowq_chunk *rowq_fill_begin(struct rowq *q)
+{
+	pthread_mutex_lock(&q->mu);
+	while (q->used == ROWQ_CHUNKS && !q->cancelled)
+		pthread_cond_wait(&q->not_full, &q->mu);
+	struct rowq_chunk *c = q->cancelled ? NULL : &q->chunks[q->head];
+	pthread_mutex_unlock(&q->mu);
+	if (c != NULL) {
+		c->row_count = 0;
+		c->text_count = 0;
+		c->end_rc = 1;
+		c->bytes_done = 0;
+	}
+	return c;
+}
+
+bool rowq_add(struct rowq *q, struct rowq_chunk *c, int64_t t_ms, const double *values,
+	      const enum tag_status *status, unsigned text_count, const unsigned *text_tags,
+	      const char *const *texts)
+{
+	assert(text_count <= ROWQ_TEXTS);
+	if (c->row_count == q->rows_per_chunk || c->text_count + text_count > ROWQ_TEXTS)
+		return false;
+	struct rowq_row *r = &c->rows[c->row_count];
+	r->t_ms = t_ms;
+	r->text_first = c->text_count;
+	r->text_count = text_count;
+	size_t off = (size_t)c->row_count * q->tag_count;
+	memcpy(c->values + off, values, q->tag_count * sizeof *values);
+	memcpy(c->status + off, status, q->tag_count * sizeof *status);
+	for (unsigned k = 0; k < text_count; k++) {
+		unsigned i = c->text_count++;
+		c->text_tag[i] = text_tags[k];
+		/* The engine keeps ALARM_STATUS_TEXT_MAX - 1 bytes of a text. */
+		size_t n = strlen(texts[k]);
+		if (n >= ALARM_STATUS_TEXT_MAX)
+			n = ALARM_STATUS_TEXT_MAX - 1;
+		memcpy(c->text[i], texts[k], n);
+		c->text[i][n] = '\0';
+	}
+	c->row_count++;
+	return true;
+}
+
+void rowq_fill_end(struct rowq *q, struct rowq_chunk *c)
+{
+	pthread_mutex_lock(&q->mu);
+	assert(c == &q->chunks[q->head]);
+	q->head = (q->head + 1) % ROWQ_CHUNKS;
+	q->used++;
+	pthread_cond_signal(&q->not_empty);
+	pthread_mutex_unlock(&q->mu);
+}
+
+struct rowq_chunk *rowq_take_begin(struct rowq *q)
+{
+	pthread_mutex_lock(&q->mu);
+	while (q->used == 0)
+		pthread_cond_wait(&q->not_empty, &q->mu);
+	struct rowq_chunk *c = &q->chunks[q->tail];
+	pthread_mutex_unlock(&q->mu);
+	return c;
+}
+
+void rowq_take_end(struct rowq *q, struct rowq_chunk *c)
+{
+	pthread_mutex_lock(&q->mu);
+	assert(c == &q->chunks[q->tail]);
+	q->tail = (q->tail + 1) % ROWQ_CHUNKS;
+	q->used--;
+	pthread_cond_signal(&q->not_full);
+	pthread_mutex_unlock(&q->mu);
+}
+
+void rowq_cancel(struct rowq *q)
+{
+	pthread_mutex_lock(&q->mu);
+	q->cancelled = true;
+	pthread_cond_signal(&q->not_full);
+	pthread_mutex_unlock(&q->mu);
+}

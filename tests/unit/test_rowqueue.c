@@ -1,0 +1,134 @@
+/*
+ * test_rowqueue.c - the bounded queue between the replay's reader thread
+ * and its engine thread (replay/rowqueue.c): order, contents, the bound,
+ * status texts cut as the engine cuts them, and cancelling.
+ */
+#include <pthread.h>
+#include <sched.h>
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <string.h>
+
+#include <cmocka.h>
+
+#include "rowqueue.h"
+
+#define TAGS 5
+#define ROWS 20000
+
+static struct rowq q;
+
+static void *producer(void *arg)
+{
+	(void)arg;
+	double v[TAGS];
+	enum tag_status st[TAGS];
+	struct rowq_chunk *c = rowq_fill_begin(&q);
+	for (unsigned i = 0; i < ROWS && c != NULL; i++) {
+		for (unsigned k = 0; k < TAGS; k++) {
+			v[k] = i * 10.0 + k;
+			st[k] = (i + k) % 3 == 0 ? TAG_STATUS_MISSING : TAG_STATUS_FRESH;
+		}
+		unsigned tags[1] = {i % TAGS};
+		const char *texts[1] = {i % 2 ? "Bad Input" : "a status text longer than the forty bytes"};
+		unsigned n = i % 7 == 0 ? 1 : 0;
+		if (!rowq_add(&q, c, (int64_t)i * 1000, v, st, n, tags, texts)) {
+			rowq_fill_end(&q, c);
+			c = rowq_fill_begin(&q);
+			if (c == NULL)
+				break;
+			assert_true(rowq_add(&q, c, (int64_t)i * 1000, v, st, n, tags, texts));
+		}
+	}
+	if (c != NULL) {
+		c->end_rc = 0;
+		rowq_fill_end(&q, c);
+	}
+	return NULL;
+}
+
+static void test_rows_arrive_in_order_with_their_values_and_texts(void **state)
+{
+	(void)state;
+	assert_int_equal(rowq_init(&q, TAGS), 0);
+	pthread_t th;
+	assert_int_equal(pthread_create(&th, NULL, producer, NULL), 0);
+	unsigned next = 0;
+	for (;;) {
+		struct rowq_chunk *c = rowq_take_begin(&q);
+		assert_true(c->row_count <= ROWQ_ROWS);
+		for (unsigned r = 0; r < c->row_count; r++, next++) {
+			assert_int_equal(c->rows[r].t_ms, (int64_t)next * 1000);
+			const double *v = rowq_values(&q, c, r);
+			const enum tag_status *st = rowq_status(&q, c, r);
+			for (unsigned k = 0; k < TAGS; k++) {
+				assert_true(v[k] == next * 10.0 + k);
+				assert_int_equal(st[k], (next + k) % 3 == 0 ? TAG_STATUS_MISSING
+									     : TAG_STATUS_FRESH);
+			}
+			assert_int_equal(c->rows[r].text_count, next % 7 == 0 ? 1 : 0);
+			if (next % 7 == 0) {
+				unsigned t = c->rows[r].text_first;
+				assert_int_equal(c->text_tag[t], next % TAGS);
+				/* Cut to ALARM_STATUS_TEXT_MAX - 1 bytes, as the engine keeps it. */
+				assert_string_equal(c->text[t], next % 2 ? "Bad Input"
+									 : "a status text longer than the forty byt");
+			}
+		}
+		bool end = c->end_rc != 1;
+		rowq_take_end(&q, c);
+		if (end)
+			break;
+	}
+	pthread_join(th, NULL);
+	assert_int_equal(next, ROWS);
+	rowq_fini(&q);
+}
+
+static void test_a_full_queue_holds_the_producer_until_cancelled(void **state)
+{
+	(void)state;
+	assert_int_equal(rowq_init(&q, TAGS), 0);
+	pthread_t th;
+	/* Nobody takes: the producer fills ROWQ_CHUNKS chunks and waits. */
+	assert_int_equal(pthread_create(&th, NULL, producer, NULL), 0);
+	for (;;) {
+		pthread_mutex_lock(&q.mu);
+		unsigned used = q.used;
+		pthread_mutex_unlock(&q.mu);
+		assert_true(used <= ROWQ_CHUNKS);
+		if (used == ROWQ_CHUNKS)
+			break;
+		sched_yield();
+	}
+	rowq_cancel(&q);
+	pthread_join(th, NULL); /* returns: the cancel woke the producer */
+	assert_int_equal(q.used, ROWQ_CHUNKS);
+	rowq_fini(&q);
+}
+
+static void test_chunk_rows_shrink_for_many_tags(void **state)
+{
+	(void)state;
+	assert_int_equal(rowq_init(&q, FG_TAGS_MAX), 0);
+	assert_true(q.rows_per_chunk < ROWQ_ROWS);
+	assert_true((size_t)q.rows_per_chunk * FG_TAGS_MAX *
+			    (sizeof(double) + sizeof(enum tag_status)) <=
+		    ROWQ_CHUNK_BYTES);
+	rowq_fini(&q);
+	assert_int_equal(rowq_init(&q, 7), 0);
+	assert_int_equal(q.rows_per_chunk, ROWQ_ROWS);
+	rowq_fini(&q);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_rows_arrive_in_order_with_their_values_and_texts),
+		cmocka_unit_test(test_a_full_queue_holds_the_producer_until_cancelled),
+		cmocka_unit_test(test_chunk_rows_shrink_for_many_tags),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
