@@ -694,13 +694,14 @@ static int read_all(struct replay *rp, int (*row)(struct replay *, int64_t, cons
 }
 
 static double progress_t0, progress_next;
+static bool progress_tty; /* stderr is a terminal (asked once, not per row) */
 
 static int row_direct(struct replay *rp, int64_t t_ms, const double *values,
 		      const enum tag_status *status)
 {
 	take_texts(rp);
 	int rc = use_row(rp, t_ms, values, status);
-	if (rc == 0 && isatty(STDERR_FILENO))
+	if (rc == 0 && progress_tty)
 		progress(rp, progress_t0, &progress_next, false);
 	return rc;
 }
@@ -756,7 +757,6 @@ static void *reader_main(void *arg)
 /* The engine and writers' side: takes chunks until the end marker. */
 static int engine_side(struct replay *rp)
 {
-	bool tty = isatty(STDERR_FILENO);
 	for (;;) {
 		struct rowq_chunk *c = rowq_take_begin(&rp->q);
 		for (unsigned r = 0; r < c->row_count; r++) {
@@ -774,7 +774,7 @@ static int engine_side(struct replay *rp)
 		rp->bytes_seen = c->bytes_done;
 		bool end = c->end_rc != 1;
 		rowq_take_end(&rp->q, c);
-		if (tty)
+		if (progress_tty)
 			progress(rp, progress_t0, &progress_next, false);
 		if (end)
 			return 0;
@@ -805,10 +805,11 @@ static int run_rows(struct replay *rp)
 {
 	progress_t0 = wall_s();
 	progress_next = progress_t0 + 0.5;
+	progress_tty = isatty(STDERR_FILENO);
 	int rc = rp->threads == 2 ? run_threaded(rp) : read_all(rp, row_direct);
 	if (rc != 0)
 		return rc;
-	if (isatty(STDERR_FILENO))
+	if (progress_tty)
 		progress(rp, progress_t0, &progress_next, true);
 	if (rp->rows_overlap > 0)
 		fprintf(stderr, "floodgauge replay: %llu rows skipped where the files overlap in "

@@ -20,7 +20,9 @@
  * v = M 2^-s exactly (M the 53-bit significand, 1 <= s <= 70). For P
  * significant digits and decimal exponent e, the digits are the integer
  * q = round(M 10^k / 2^s), k = P - 1 - e (0 <= k <= 22), rounded half to
- * even on the exact remainder, as glibc's printf rounds the exact value.
+ * even on the exact value, as glibc's printf rounds it: one product gives
+ * the 17 digits truncated and the exact rest below them, from which the
+ * 15- and 16-digit roundings follow with 64-bit division.
  * q reads back as v when the decimal q 10^-k lies within half an ulp of v:
  * |2 q 2^s - 2 M 10^k| <= 10^k (strictly when M is odd, ties going to the
  * even significand). Bounds: M 10^22 < 2^127, 2 q 2^s < 2^126 for P <= 16.
@@ -42,17 +44,6 @@ static u128 pow10_128(int k)
 	if (k <= 19)
 		return POW10[k];
 	return (u128)POW10[19] * POW10[k - 19];
-}
-
-/* Digits of M 2^-s to P places for the exact exponent e (0 <= k <= 22). */
-static uint64_t digits_at(uint64_t m, int s, int p, int e)
-{
-	int k = p - 1 - e;
-	u128 n = (u128)m * pow10_128(k);
-	u128 q = n >> s, rem = n & (((u128)1 << s) - 1), half = (u128)1 << (s - 1);
-	if (rem > half || (rem == half && (q & 1u)))
-		q++;
-	return (uint64_t)q;
 }
 
 static bool reads_back(uint64_t m, int s, uint64_t q, int k)
@@ -111,6 +102,17 @@ static int layout(char *buf, bool neg, uint64_t q, int p, int e)
 	return (int)(o - buf);
 }
 
+/* The P-digit rounding of the exact value t17 + frac (t17 its 17 digits
+ * truncated, inexact: the fraction below them is not zero), half to even. */
+static uint64_t round_from_17(uint64_t t17, bool inexact, int p)
+{
+	assert(p >= 15 && p < 17);
+	uint64_t div = POW10[17 - p], q = t17 / div, r = t17 % div, half = div / 2;
+	if (r > half || (r == half && (inexact || (q & 1u))))
+		q++;
+	return q;
+}
+
 static int full_fast(double v, char *buf)
 {
 	int ex;
@@ -122,11 +124,13 @@ static int full_fast(double v, char *buf)
 	/* The exact decimal exponent: 10^e <= |v| < 10^(e+1), checked on the
 	 * 17 digits truncated (log10 may be one off either way). */
 	int e = (int)floor(log10(fabs(v)));
+	u128 n = 0, t = 0;
 	for (int tries = 0;; tries++) {
 		int k = 16 - e;
 		if (k < 0 || k > 22 || tries > 2)
 			return -1;
-		u128 t = ((u128)m * pow10_128(k)) >> s;
+		n = (u128)m * pow10_128(k);
+		t = n >> s;
 		if (t < POW10[16])
 			e--;
 		else if (t >= POW10[17])
@@ -136,9 +140,18 @@ static int full_fast(double v, char *buf)
 	}
 	if (e > 13) /* keeps k = p - 1 - e >= 0 below, a carry included */
 		return -1;
+	/* The 17 digits truncated and the exact rest give every rounding. */
+	u128 rem = n & (((u128)1 << s) - 1), half = (u128)1 << (s - 1);
 	for (int p = 15; p <= 17; p++) {
 		int ep = e;
-		uint64_t q = digits_at(m, s, p, ep);
+		uint64_t q;
+		if (p == 17) {
+			q = (uint64_t)t;
+			if (rem > half || (rem == half && (q & 1u)))
+				q++;
+		} else {
+			q = round_from_17((uint64_t)t, rem != 0, p);
+		}
 		if (q == POW10[p]) { /* rounded up to the next power of ten */
 			q = POW10[p - 1];
 			ep++;
