@@ -2,12 +2,17 @@
  * cmd_replay.c - `floodgauge replay`: the live engine, driven from a
  * historian CSV instead of the plant.
  *
- * One pass over the file: each row becomes one engine step at the row's own
- * time; results go to results.csv, alarm transitions to events.jsonl, and a
- * bounded summary of the series to report.html. Rows the reader had to skip
- * are counted and the first of them reported with their line numbers.
+ * One pass over the file (or the files of one series, in time order): each
+ * row becomes one engine step at the row's own time; results go to
+ * results.csv, alarm transitions to events.jsonl, and a bounded summary of
+ * the series to report.html. Rows the reader had to skip are counted and
+ * the first of them reported with their line numbers.
+ *
+ * The stages, each in its own file: reader (histread.c, run in a thread of
+ * its own, rows handed over through rowqueue.c) -> engine (engine.c) ->
+ * writers (results.c, the events lines here, alarmperf.c, report.c). This
+ * file wires them: the command line, the outputs, the loops, the summary.
  */
-#include <assert.h>
 #include <assert.h>
 #include <errno.h>
 #include <getopt.h>
