@@ -87,6 +87,7 @@ struct stich {
 	double p;        /* (2 + c)/3, c = d ln f0 / d ln Re */
 	double h0;       /* holdup without gas effect */
 	double rlg;      /* rho_l g, Pa/m */
+	double ln_d_rlg; /* ln(dry_pam / rlg): the residual's constant part */
 };
 
 /* Dry-bed friction: equivalent particle diameter d_p = 6 (1 - eps)/a,
@@ -144,16 +145,22 @@ static double stich_ht(const struct stich *s, double t)
 	return s->h0 * (1.0 + 20.0 * t);
 }
 
-/* ln(D Phi(h_T(t))) - ln y(t): zero on the model, negative between the roots. */
-static double stich_resid(const struct stich *s, double t)
+/* ln(D Phi(h_T(t))) - ln y(t), y = rho_l g sqrt(t), with ln t given too
+ * (the warm solves work on logarithms and have it): zero on the model,
+ * negative between the roots. */
+static double stich_resid_ln(const struct stich *s, double t, double ln_t)
 {
 	double ht = stich_ht(s, t);
 	if (ht >= s->eps)
 		return INFINITY;
 	double eps = s->eps;
-	double ln_rhs = log(s->dry_pam) + s->p * log((1.0 - eps + ht) / (1.0 - eps)) +
-			4.65 * log(eps / (eps - ht));
-	return ln_rhs - log(s->rlg * sqrt(t));
+	return s->ln_d_rlg + s->p * log((1.0 - eps + ht) / (1.0 - eps)) +
+	       4.65 * log(eps / (eps - ht)) - 0.5 * ln_t;
+}
+
+static double stich_resid(const struct stich *s, double t)
+{
+	return stich_resid_ln(s, t, log(t));
 }
 
 /* The flooding condition of the paper (d(dP)/d(h_T) infinite), as a
@@ -217,14 +224,15 @@ static bool stich_setup(struct stich *s, const struct packing_constants *c, doub
 	s->p = (2.0 + ce) / 3.0;
 	s->h0 = packed_stichlmair_h0(c, u_l);
 	s->rlg = f->rho_l_kgm3 * PACKED_G_MS2;
+	s->ln_d_rlg = log(s->dry_pam / s->rlg);
 	return s->dry_pam > 0.0 && s->h0 < s->eps;
 }
 
 static double wet_resid_ln(double ln_y, const void *ctx)
 {
 	const struct stich *s = ctx;
-	double t = exp(2.0 * ln_y) / (s->rlg * s->rlg);
-	return stich_resid(s, t);
+	double ln_t = 2.0 * (ln_y - log(s->rlg));
+	return stich_resid_ln(s, exp(ln_t), ln_t);
 }
 
 /* The lower root in y between the dry DP (residual >= 0) and y_f (<= 0). */
@@ -310,7 +318,8 @@ static double flood_resid_ln(double ln_u, const void *ctx)
 	struct stich s;
 	if (!stich_setup(&s, fc->c, exp(ln_u), fc->u_l, fc->f))
 		return INFINITY; /* treated as above flooding, as the cold solve does */
-	return stich_resid(&s, stich_flood_t_w(&s, fc->ln_t));
+	double t = stich_flood_t_w(&s, fc->ln_t);
+	return stich_resid_ln(&s, t, *fc->ln_t);
 }
 
 double packed_stichlmair_flood_ms_warm(const struct packing_constants *c, double u_l_ms,
