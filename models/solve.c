@@ -145,6 +145,7 @@ void solve_warm_clear(struct solve_warm *w)
 	assert(w != NULL);
 	w->stich_flood_ln_u = NAN;
 	w->stich_flood_ln_t = NAN;
+	w->stich_flood_slope = NAN;
 	w->stich_wet_ln_y = NAN;
 	w->bs_flood_h = NAN;
 	w->tray_flood_ln_gas = NAN;

@@ -81,6 +81,7 @@ double solve_warm(solve_fn f, const void *ctx, double lo, double flo, double hi,
 struct solve_warm {
 	double stich_flood_ln_u;   /* Stichlmair flood gas velocity, ln(m/s) */
 	double stich_flood_ln_t;   /* Stichlmair flooding condition, ln t */
+	double stich_flood_slope;  /* d residual / d ln u at the last flood point */
 	double stich_wet_ln_y;     /* Stichlmair irrigated DP, ln(Pa/m) */
 	double bs_flood_h;         /* Billet-Schultes flood holdup, - */
 	double tray_flood_ln_gas;  /* gas rate at 100 % jet flood, ln(kg/s) */
