@@ -356,44 +356,6 @@ static double flood_resid_ln(double ln_u, const void *ctx)
 	return stich_resid_ln(&s, t, *fc->ln_t);
 }
 
-/* The secant method on ln u from the last answer, its first step along the
- * last sample's slope of the residual (w->stich_flood_slope, kept here):
- * from a nearby guess it converges in three or four evaluations. Accepted
- * when a step falls below SOLVE_TOL_LN within 6 steps, every value finite
- * and inside the search range; otherwise false and the bracketed solve
- * takes over. */
-static bool flood_secant(const struct flood_ctx *fc, struct solve_warm *w, double *root)
-{
-	double x0 = w->stich_flood_ln_u, lo = log(FLOOD_U_LO_MS), hi = log(FLOOD_U_HI_MS);
-	if (!(isfinite(x0) && x0 > lo && x0 < hi))
-		return false;
-	double f0 = flood_resid_ln(x0, fc);
-	if (!isfinite(f0))
-		return false;
-	double slope = w->stich_flood_slope;
-	double x1 = isfinite(slope) && slope > 0.0 ? x0 - f0 / slope : x0 + 1e-3;
-	for (int i = 0; i < 6; i++) {
-		if (!(x1 > lo && x1 < hi))
-			return false;
-		double f1 = flood_resid_ln(x1, fc);
-		if (!isfinite(f1) || f1 == f0)
-			return false;
-		double s = (f1 - f0) / (x1 - x0);
-		double x2 = x1 - f1 / s;
-		if (!isfinite(x2))
-			return false;
-		if (fabs(x2 - x1) <= SOLVE_TOL_LN) {
-			w->stich_flood_slope = s;
-			*root = x2;
-			return true;
-		}
-		x0 = x1;
-		f0 = f1;
-		x1 = x2;
-	}
-	return false;
-}
-
 double packed_stichlmair_flood_ms_warm(const struct packing_constants *c, double u_l_ms,
 				       const struct fluid_state *f, struct fg_extrap *x,
 				       struct solve_warm *w)
@@ -404,7 +366,11 @@ double packed_stichlmair_flood_ms_warm(const struct packing_constants *c, double
 	    has_stichlmair(c)) {
 		struct flood_ctx fc = {.c = c, .f = f, .u_l = u_l_ms, .ln_t = &w->stich_flood_ln_t};
 		double root;
-		if (flood_secant(&fc, w, &root) ||
+		/* The residual's slope barely changes from sample to sample: the
+		 * secant along the last one first, the bracket if it fails. */
+		if (solve_secant(flood_resid_ln, &fc, log(FLOOD_U_LO_MS), log(FLOOD_U_HI_MS),
+				 w->stich_flood_ln_u, &w->stich_flood_slope, 1e-3, SOLVE_TOL_LN,
+				 &root) ||
 		    solve_near(flood_resid_ln, &fc, log(FLOOD_U_LO_MS), log(FLOOD_U_HI_MS), true,
 			       w->stich_flood_ln_u, 1e-3, SOLVE_TOL_LN, &root, NULL)) {
 			w->stich_flood_ln_u = root;

@@ -131,6 +131,41 @@ bool solve_near(solve_fn f, const void *ctx, double lo, double hi, bool rising, 
 	return false;
 }
 
+bool solve_secant(solve_fn f, const void *ctx, double lo, double hi, double guess,
+		  double *slope, double step, double tol, double *root)
+{
+	assert(f != NULL);
+	assert(slope != NULL);
+	assert(root != NULL);
+	double x0 = guess;
+	if (!(isfinite(x0) && x0 > lo && x0 < hi))
+		return false;
+	double f0 = f(x0, ctx);
+	if (!isfinite(f0))
+		return false;
+	double x1 = isfinite(*slope) && *slope != 0.0 ? x0 - f0 / *slope : x0 + step;
+	for (int i = 0; i < SOLVE_SECANT_STEPS; i++) {
+		if (!(x1 > lo && x1 < hi))
+			return false;
+		double f1 = f(x1, ctx);
+		if (!isfinite(f1) || f1 == f0)
+			return false;
+		double s = (f1 - f0) / (x1 - x0);
+		double x2 = x1 - f1 / s;
+		if (!isfinite(x2))
+			return false;
+		if (fabs(x2 - x1) <= tol) {
+			*slope = s;
+			*root = x2;
+			return true;
+		}
+		x0 = x1;
+		f0 = f1;
+		x1 = x2;
+	}
+	return false;
+}
+
 double solve_warm(solve_fn f, const void *ctx, double lo, double flo, double hi, double fhi,
 		  bool rising, double guess, double step, double tol, int *evals)
 {
@@ -149,6 +184,7 @@ void solve_warm_clear(struct solve_warm *w)
 	w->stich_wet_ln_y = NAN;
 	w->bs_flood_h = NAN;
 	w->tray_flood_ln_gas = NAN;
+	w->tray_flood_slope = NAN;
 	w->spray_vt_ln_re = NAN;
 	w->spray_crit_ln_re = NAN;
 	w->bubble_ay_eps = NAN;

@@ -43,6 +43,9 @@
  * halves a 100-wide log interval to 1e-13 in 50 steps). */
 #define SOLVE_BRENT_MAX 120
 
+/* Steps of solve_secant before it gives the problem to the bracket. */
+#define SOLVE_SECANT_STEPS 6
+
 /* Absolute tolerance on a logarithm: 1e-12 relative in the quantity. */
 #define SOLVE_TOL_LN 1e-12
 
@@ -66,6 +69,17 @@ bool solve_near(solve_fn f, const void *ctx, double lo, double hi, bool rising, 
 		double step, double tol, double *root, int *evals);
 
 /*
+ * The secant method from guess, its first step along *slope (the last
+ * solve's slope of f, NAN for none: then a probe of `step`), for a smooth
+ * monotone f whose root moved little since the last sample. Converged when
+ * a step is below tol within SOLVE_SECANT_STEPS steps, every value finite
+ * and inside (lo, hi): true with *root, and *slope updated. Otherwise false
+ * (nothing is bracketed here: the caller then runs solve_near or cold).
+ */
+bool solve_secant(solve_fn f, const void *ctx, double lo, double hi, double guess,
+		  double *slope, double step, double tol, double *root);
+
+/*
  * Root of f on [lo, hi], f rising with x when rising is true (falling
  * otherwise), with f(lo) and f(hi) already known to bracket the root
  * (flo, fhi: the caller evaluated them or knows their signs; pass +-INFINITY
@@ -85,6 +99,7 @@ struct solve_warm {
 	double stich_wet_ln_y;     /* Stichlmair irrigated DP, ln(Pa/m) */
 	double bs_flood_h;         /* Billet-Schultes flood holdup, - */
 	double tray_flood_ln_gas;  /* gas rate at 100 % jet flood, ln(kg/s) */
+	double tray_flood_slope;   /* d (jet % - 100) / d ln G there */
 	double spray_vt_ln_re;     /* droplet terminal velocity, ln Re */
 	double spray_crit_ln_re;   /* critical (carried-over) droplet, ln Re */
 	double bubble_ay_eps;      /* Akita-Yoshida gas holdup, - */

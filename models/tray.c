@@ -533,14 +533,16 @@ static double jet_resid_ln(double ln_gas, const void *ctx)
  * bracketed Brent solve on ln G to 1e-12 relative; the cold doubling and
  * bisection when ln_gas is NULL or the guess brackets nothing. */
 static double flood_gas_kgs_w(const struct section_geom *g, const struct fluid_state *f,
-			      const struct areas *a, double liq_kgs, double *ln_gas)
+			      const struct areas *a, double liq_kgs, double *ln_gas, double *slope)
 {
 	if (ln_gas != NULL) {
 		struct jet_ctx j = {.g = g, .f = f, .a = a, .liq_kgs = liq_kgs};
 		double root;
 		/* The bounds are never reached from a guess (12 doubling steps
 		 * from 1e-3 span a factor of e^8). */
-		if (solve_near(jet_resid_ln, &j, log(1e-12), log(1e12), true, *ln_gas, 1e-3,
+		if (solve_secant(jet_resid_ln, &j, log(1e-12), log(1e12), *ln_gas, slope, 1e-3,
+				 SOLVE_TOL_LN, &root) ||
+		    solve_near(jet_resid_ln, &j, log(1e-12), log(1e12), true, *ln_gas, 1e-3,
 			       SOLVE_TOL_LN, &root, NULL)) {
 			*ln_gas = root;
 			return exp(root);
@@ -650,7 +652,8 @@ void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 		struct hyd hf;
 		struct fg_extrap flood_notes = {0, NULL};
 		double gf = flood_gas_kgs_w(g, f, &a, p->liquid_kgs,
-					    w != NULL ? &w->tray_flood_ln_gas : NULL);
+					    w != NULL ? &w->tray_flood_ln_gas : NULL,
+					    w != NULL ? &w->tray_flood_slope : NULL);
 		if (isfinite(gf)) {
 			hydraulics(g, f, &a, gf, p->liquid_kgs, &hf, &flood_notes);
 			r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / trays) / hf.dp_pa;

@@ -101,6 +101,34 @@ static void test_warm_start_steps_towards_the_root_on_both_sides(void **state)
 	assert_true(r == 0.5);
 }
 
+static void test_secant_along_the_last_slope_converges_and_keeps_the_slope(void **state)
+{
+	(void)state;
+	double slope = NAN, r;
+	assert_true(solve_secant(cubic, NULL, 0.0, 3.0, 1.3, &slope, 1e-3, 1e-13, &r));
+	assert_true(fabs(r - cbrt(2.0)) <= 1e-12);
+	assert_true(fabs(slope - 3.0 * cbrt(4.0)) < 1e-3); /* f' = 3 x^2 at the root */
+	/* With the slope kept, the next (moved) root is found from it. */
+	double at = 0.52;
+	slope = 1.0; /* tanh' at its root */
+	assert_true(solve_secant(shifted_tanh, &at, -10.0, 10.0, 0.5, &slope, 1e-3, 1e-13, &r));
+	assert_true(fabs(r - 0.52) <= 1e-12);
+}
+
+static void test_secant_gives_up_outside_the_range_or_without_a_guess(void **state)
+{
+	(void)state;
+	double slope = NAN, r = -1.0;
+	assert_false(solve_secant(cubic, NULL, 0.0, 3.0, NAN, &slope, 1e-3, 1e-13, &r));
+	/* A slope pointing the wrong way sends the first step out of range. */
+	slope = -1e-6;
+	assert_false(solve_secant(cubic, NULL, 0.0, 3.0, 1.3, &slope, 1e-3, 1e-13, &r));
+	/* An infinite value (beyond a wall) is not stepped over. */
+	slope = NAN;
+	assert_false(solve_secant(walled, NULL, 0.0, 10.0, 3.5, &slope, 1e-3, 1e-13, &r));
+	assert_true(r == -1.0);
+}
+
 static void test_warm_clear_sets_every_memory_cold(void **state)
 {
 	(void)state;
@@ -114,6 +142,8 @@ static void test_warm_clear_sets_every_memory_cold(void **state)
 	assert_true(isnan(w.stich_wet_ln_t));
 	assert_true(isnan(w.bs_flood_h));
 	assert_true(isnan(w.tray_flood_ln_gas));
+	assert_true(isnan(w.tray_flood_slope));
+	assert_true(isnan(w.stich_flood_slope));
 	assert_true(isnan(w.spray_vt_ln_re));
 	assert_true(isnan(w.spray_crit_ln_re));
 	assert_true(isnan(w.bubble_ay_eps));
@@ -128,6 +158,8 @@ int main(void)
 		cmocka_unit_test(test_warm_start_far_away_falls_back_to_whole_bracket),
 		cmocka_unit_test(test_no_guess_is_the_cold_solve),
 		cmocka_unit_test(test_warm_start_steps_towards_the_root_on_both_sides),
+		cmocka_unit_test(test_secant_along_the_last_slope_converges_and_keeps_the_slope),
+		cmocka_unit_test(test_secant_gives_up_outside_the_range_or_without_a_guess),
 		cmocka_unit_test(test_warm_clear_sets_every_memory_cold),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
