@@ -185,8 +185,8 @@ void solve_warm_clear(struct solve_warm *w)
 	w->bs_flood_h = NAN;
 	w->tray_flood_ln_gas = NAN;
 	w->tray_flood_slope = NAN;
-	w->spray_vt_ln_re = NAN;
-	w->spray_crit_ln_re = NAN;
+	w->spray_vt_ln_re[0] = w->spray_vt_ln_re[1] = NAN;
+	w->spray_crit_ln_re[0] = w->spray_crit_ln_re[1] = NAN;
 	w->bubble_ay_eps = NAN;
 	w->stich_wet_ln_t = NAN;
 }

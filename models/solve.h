@@ -100,8 +100,8 @@ struct solve_warm {
 	double bs_flood_h;         /* Billet-Schultes flood holdup, - */
 	double tray_flood_ln_gas;  /* gas rate at 100 % jet flood, ln(kg/s) */
 	double tray_flood_slope;   /* d (jet % - 100) / d ln G there */
-	double spray_vt_ln_re;     /* droplet terminal velocity, ln Re */
-	double spray_crit_ln_re;   /* critical (carried-over) droplet, ln Re */
+	double spray_vt_ln_re[2];  /* droplet terminal velocity: ln Re, and the slope there */
+	double spray_crit_ln_re[2];/* critical (carried-over) droplet: ln Re, slope */
 	double bubble_ay_eps;      /* Akita-Yoshida gas holdup, - */
 	double stich_wet_ln_t;     /* Stichlmair flooding condition at the operating gas rate */
 };

@@ -124,8 +124,9 @@ static double solve_re(double target_ln, bool per_cd)
 	return exp(0.5 * (lo + hi));
 }
 
-/* solve_re from the guess *ln_re (updated), cold when ln_re is NULL or the
- * guess brackets nothing. The warm solve stays inside the guess's piece and
+/* solve_re from the guess ln_re[0] (updated; ln_re[1] keeps the slope of
+ * the group at the answer for the next secant), cold when ln_re is NULL or
+ * the guess brackets nothing. The warm solve stays inside the guess's piece and
  * is accepted only when the piece below does not reach the target already
  * (so it is the first crossing, as solve_re defines it). */
 static double solve_re_w(double target_ln, bool per_cd, double *ln_re)
@@ -136,8 +137,10 @@ static double solve_re_w(double target_ln, bool per_cd, double *ln_re)
 		double root, lo = piece_ln_lo(k), hi = piece_ln_hi(k);
 		double guess = fmin(fmax(*ln_re, lo), hi);
 		bool first = k == 0 || group_ln(k - 1, PIECE_LO[k], per_cd) < target_ln;
-		if (first && solve_near(group_resid, &gt, lo, hi, true, guess, 1e-3, SOLVE_TOL_LN,
-					&root, NULL)) {
+		if (first && (solve_secant(group_resid, &gt, lo, hi, guess, &ln_re[1], 1e-3,
+					   SOLVE_TOL_LN, &root) ||
+			      solve_near(group_resid, &gt, lo, hi, true, guess, 1e-3, SOLVE_TOL_LN,
+					 &root, NULL))) {
 			*ln_re = root;
 			return exp(root);
 		}
@@ -270,12 +273,12 @@ void spray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 	const struct spray_geom *s = &g->spray;
 	double vt = spray_terminal_velocity_ms_warm(s->design_droplet_m, f->rho_l_kgm3,
 						    f->rho_g_kgm3, f->mu_g_pas, &r->extrap,
-						    w != NULL ? &w->spray_vt_ln_re : NULL);
+						    w != NULL ? w->spray_vt_ln_re : NULL);
 	note_deformation(s, f, &r->extrap);
 	r->v[RF_FLOOD_PCT] = spray_approach_pct(ug, vt);
 	r->basis = FLOOD_BASIS_DROPLET;
 	double dc = spray_critical_droplet_m_warm(ug, f->rho_l_kgm3, f->rho_g_kgm3, f->mu_g_pas,
-						  &r->extrap, w != NULL ? &w->spray_crit_ln_re : NULL);
+						  &r->extrap, w != NULL ? w->spray_crit_ln_re : NULL);
 	r->v[RF_CARRYOVER_FRAC] = spray_rosin_rammler_finer(dc, s->design_droplet_m,
 							   s->droplet_spread);
 	/* Liquid in flight needs the liquid rate; section_eval guarantees it,

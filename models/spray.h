@@ -60,8 +60,9 @@ double spray_terminal_velocity_ms(double d_m, double rho_l_kgm3, double rho_g_kg
 double spray_critical_droplet_m(double ug_ms, double rho_l_kgm3, double rho_g_kgm3,
 				double mu_g_pas, struct fg_extrap *x);
 
-/* The two above, warm-started from *ln_re (ln of the last Reynolds number,
- * NAN for none; updated) by solve.h's bracketed Brent solve to 1e-12
+/* The two above, warm-started from ln_re[0] (ln of the last Reynolds
+ * number, NAN for none; updated; ln_re[1] keeps the slope for the next
+ * secant step, NAN at first) by solve.h's bracketed Brent solve to 1e-12
  * relative in Re, cold when ln_re is NULL. Agree with the cold functions to
  * 1e-9 relative. */
 double spray_terminal_velocity_ms_warm(double d_m, double rho_l_kgm3, double rho_g_kgm3,

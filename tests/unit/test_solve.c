@@ -144,8 +144,9 @@ static void test_warm_clear_sets_every_memory_cold(void **state)
 	assert_true(isnan(w.tray_flood_ln_gas));
 	assert_true(isnan(w.tray_flood_slope));
 	assert_true(isnan(w.stich_flood_slope));
-	assert_true(isnan(w.spray_vt_ln_re));
-	assert_true(isnan(w.spray_crit_ln_re));
+	assert_true(isnan(w.spray_vt_ln_re[0]));
+	assert_true(isnan(w.spray_vt_ln_re[1]));
+	assert_true(isnan(w.spray_crit_ln_re[0]));
 	assert_true(isnan(w.bubble_ay_eps));
 }
 

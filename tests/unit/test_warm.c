@@ -209,11 +209,11 @@ static void test_stichlmair_flood_warm_follows_jumps(void **state)
 static void test_terminal_velocity_warm_follows_jumps(void **state)
 {
 	(void)state;
-	double ln_re = NAN;
+	double ln_re[2] = {NAN, NAN};
 	for (unsigned i = 0; i < 500; i++) {
 		double d = 1e-5 * pow(10.0, 3.0 * uniform());
 		double cold = spray_terminal_velocity_ms(d, 998.0, 1.2, 1.8e-5, NULL);
-		double warm = spray_terminal_velocity_ms_warm(d, 998.0, 1.2, 1.8e-5, NULL, &ln_re);
+		double warm = spray_terminal_velocity_ms_warm(d, 998.0, 1.2, 1.8e-5, NULL, ln_re);
 		assert_close(cold, warm, "terminal velocity", i);
 	}
 }
