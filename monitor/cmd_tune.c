@@ -202,8 +202,10 @@ static int find_alarm(struct tune *t)
 			t->ai = i;
 			return 0;
 		}
-	fprintf(stderr, "floodgauge tune: --alarm %s: no such alarm; the config has:",
-		t->alarm_name);
+	char dym[FG_NAME_MAX + 24];
+	fprintf(stderr, "floodgauge tune: --alarm %s: no such alarm%s; the config has:",
+		t->alarm_name, config_suggest(t->cfg, CONFIG_NAME_ALARM, t->alarm_name, dym,
+					      sizeof(dym)));
 	for (unsigned i = 0; i < t->cfg->alarm_count; i++)
 		fprintf(stderr, " %s", t->cfg->alarms[i].name);
 	fputc('\n', stderr);

@@ -150,6 +150,18 @@ rc, so, se, ev = replay(cfg_t, path("utc.csv"), "r-none")
 ok(rc == 2 and "no column for any tag" in se and "column =" in se,
    "a file with no column for any tag: exit 2, pointing at column =", se)
 
+# --- tune reads through the same reader: the same candidates from every form
+tune_out = []
+for cfgp, data, extra in ((DEMO, path("utc.csv"), []),
+                          (SITE, path("wide.csv"), ["--tz", "Europe/Berlin"]),
+                          (SITE, path("long.csv"), [])):
+    rc, so, se = fg("tune", "-c", cfgp, data, "--alarm", "C402_DIAG", "--on-delay", "0:60:30",
+                    "--json", *extra)
+    tune_out.append((rc, so))
+ok(all(rc == 0 for rc, so in tune_out) and tune_out[0][1] == tune_out[1][1] == tune_out[2][1]
+   and '"first_activation":"2026-10-25T00:31:50Z"' in tune_out[0][1],
+   "tune gives the same candidates from the three forms", tune_out)
+
 # --- a long file with a tag that never appears: warned at the end
 long_lines = [x for x in open(path("long.csv")).read().splitlines()
               if not x.startswith("U40.R404.TI.PV,")]

@@ -162,5 +162,8 @@ ok(rc == 2 and "(did you mean 'C401'?)" in se and "sections in" in se,
 rc, so, se = fg("rate", "-c", DEMO, "--section", "C401", "--set", "C401_PDII=3")
 ok(rc == 2 and "(did you mean 'C401_PDI'?)" in se, "rate --set mistyped tag: suggestion", se)
 
+rc, so, se = fg("tune", "-c", DEMO, os.path.join(tmp, "m.csv"), "--alarm", "C401_FLOD_H")
+ok(rc == 2 and "(did you mean 'C401_FLOOD_H'?)" in se, "tune --alarm mistyped: suggestion", se)
+
 shutil.rmtree(tmp)
 done()
