@@ -871,6 +871,62 @@ static void test_bind_some_reports_missing_columns(void **state)
 	expect_row2(fx, T0_MS, 12.5, NAN);
 }
 
+/* A long file several times the read buffer: samples gathered into rows
+ * across buffer refills (the held-back first sample of the next time stamp
+ * included), one row in memory. 3 tags in a rotating order, 120 000 time
+ * stamps every 0.25 s; tag B is missing every 7th stamp and "Bad" every
+ * 11th; values are integers, compared exactly. */
+static void test_long_file_across_buffer_refills(void **state)
+{
+	struct fixture *fx = *state;
+	struct tmpdir *td = &fx->td;
+	tmpdir_make(td, "long.csv");
+	FILE *f = fopen(td->path, "w");
+	assert_non_null(f);
+	const unsigned n = 120000;
+	fputs("Tag;Time;Value;Status\n", f);
+	for (unsigned i = 0; i < n; i++) {
+		char ts[TIMEFMT_BUF_SIZE];
+		assert_true(timefmt_format(T0_MS + (int64_t)i * 250, ts, sizeof ts) > 0);
+		for (unsigned k = 0; k < 3; k++) {
+			unsigned tag = (i + k) % 3;
+			if (tag == 1 && i % 7 == 0)
+				continue;
+			const char *status = tag == 1 && i % 11 == 0 ? "Bad" : "Good";
+			fprintf(f, "%c;%s;%u;%s\n", 'A' + tag, ts, i * 3 + tag, status);
+		}
+	}
+	assert_int_equal(fclose(f), 0);
+	const char *const names[] = { "A", "B", "C" };
+	assert_int_equal(csvread_open(&fx->r, td->path, fx->err, sizeof fx->err), 0);
+	assert_true(csvread_is_long(&fx->r));
+	assert_int_equal(csvread_bind(&fx->r, names, 3, fx->err, sizeof fx->err), 0);
+	unsigned rows = 0, bad = 0, wrong = 0;
+	int64_t t;
+	double v[3];
+	while (csvread_next(&fx->r, &t, v, 3) == 1) {
+		unsigned i = rows++;
+		wrong += t != T0_MS + (int64_t)i * 250;
+		wrong += v[0] != (double)(i * 3) || v[2] != (double)(i * 3 + 2);
+		if (i % 7 == 0 || i % 11 == 0) {
+			wrong += !isnan(v[1]);
+			wrong += csvread_text_count(&fx->r) != (i % 7 != 0 && i % 11 == 0);
+			bad += csvread_text_count(&fx->r);
+		} else {
+			wrong += v[1] != (double)(i * 3 + 1) || csvread_text_count(&fx->r) != 0;
+		}
+	}
+	uint64_t done, total;
+	csvread_progress(&fx->r, &done, &total);
+	assert_true(total > 4u * CSVREAD_BUF_SIZE); /* several refills */
+	assert_int_equal(rows, n);
+	assert_int_equal(wrong, 0);
+	/* "Bad" on stamps divisible by 11 but not 7: 10910 - 1559 = 9351. */
+	assert_int_equal(bad, n / 11 + 1 - (n / 77 + 1));
+	assert_int_equal(csvread_stats(&fx->r)->rows_malformed, 0);
+	csvread_close(&fx->r);
+}
+
 int main(void)
 {
 #define T(f) cmocka_unit_test_setup_teardown(f, setup, teardown)
@@ -906,6 +962,7 @@ int main(void)
 		T(test_long_form_rows_statuses_and_order),
 		T(test_status_words),
 		T(test_bind_some_reports_missing_columns),
+		T(test_long_file_across_buffer_refills),
 	};
 #undef T
 	return cmocka_run_group_tests_name("csvread", tests, NULL, NULL);
