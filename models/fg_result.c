@@ -45,6 +45,7 @@ const struct result_field_desc result_fields[RF_COUNT] = {
 	[RF_CARRY_UNDER_M3S] = {"carry_under_m3s", "m3/s"},
 	[RF_GAS_HOLDUP_COLUMN_FRAC] = {"gas_holdup_column_frac", "-"},
 	[RF_CARRYOVER_MARGIN_M] = {"carryover_margin_m", "m"},
+	[RF_DP_LOAD_PCT] = {"dp_load_pct", "%"},
 };
 
 static const char *const basis_names[FLOOD_BASIS_COUNT] = {

@@ -59,6 +59,9 @@ enum result_field {
 	RF_CARRY_UNDER_M3S,    /* loop: gas volume flow carried down the downcomer, m3/s */
 	RF_GAS_HOLDUP_COLUMN_FRAC, /* packed-bubble: gas volume / column (bed) volume, - */
 	RF_CARRYOVER_MARGIN_M, /* bubble, packed-bubble: overflow height - expanded level, m */
+	RF_DP_LOAD_PCT,        /* engine: gas load implied by the measured DP through its
+				* learned relation, % of the flood gas load (flood_index's
+				* DP branch), bounded to 150 % */
 	RF_COUNT
 };
 
@@ -70,7 +73,7 @@ enum flood_basis {
 	FLOOD_BASIS_GAS_VELOCITY,/* packed: gas velocity against the flooding velocity */
 	FLOOD_BASIS_DROPLET,     /* spray: gas velocity against the droplet terminal velocity */
 	FLOOD_BASIS_LEVEL_SWELL, /* bubble: expanded level against the overflow height */
-	FLOOD_BASIS_DP,          /* measured DP against the flood DP */
+	FLOOD_BASIS_DP,          /* the DP branch (dp_load_pct) */
 	FLOOD_BASIS_DP_TREND,    /* load-response slope or DP noise */
 	FLOOD_BASIS_IMPELLER,    /* stirred: gas flow number against impeller flooding */
 	FLOOD_BASIS_DOWNCOMER_GAS, /* loop: downcomer holdup against riser holdup */

@@ -760,6 +760,7 @@ static void eval_flood(struct pe *e, const struct section_geom *g, struct sectio
 			    : bs_flood_ms_w(e->c, e->u_l, e->f, &r->extrap, e->w);
 	if (isnan(u_fl) || u_fl <= 0.0)
 		return;
+	u_fl *= section_capacity_factor(g); /* the calibrated plant capacity */
 	/* A dry bed (u_fl infinite) cannot flood: 0 %. */
 	double pct = 100.0 * e->u_g / u_fl;
 	if (pct > 100.0)
@@ -768,7 +769,7 @@ static void eval_flood(struct pe *e, const struct section_geom *g, struct sectio
 	r->basis = FLOOD_BASIS_GAS_VELOCITY;
 }
 
-static void eval_loading(struct pe *e, struct section_result *r)
+static void eval_loading(struct pe *e, const struct section_geom *g, struct section_result *r)
 {
 	if (!has_geometry(e->c) || !pos_finite(e->c->billet_cs)) {
 		note_missing(e, r, "packed: Billet-Schultes C_S missing, no loading point");
@@ -777,7 +778,7 @@ static void eval_loading(struct pe *e, struct section_result *r)
 	double u_s = packed_bs_loading_ms(e->c, e->u_l, e->f, &r->extrap);
 	if (isnan(u_s) || u_s <= 0.0)
 		return;
-	r->v[RF_LOADING_PCT] = 100.0 * e->u_g / u_s;
+	r->v[RF_LOADING_PCT] = 100.0 * e->u_g / (u_s * section_capacity_factor(g));
 }
 
 /* Model DP: Stichlmair irrigated DP when its constants are known (it covers
@@ -878,7 +879,7 @@ void packed_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 	e.u_l = e.liq_flux / f->rho_l_kgm3;
 	unsigned before = r->extrap.count;
 	eval_flood(&e, g, r);
-	eval_loading(&e, r);
+	eval_loading(&e, g, r);
 	eval_dp(&e, r);
 	eval_dp_flood(&e, g, p, r);
 	eval_holdup(&e, r);

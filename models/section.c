@@ -61,6 +61,13 @@ double section_area_m2(const struct section_geom *g)
 	return M_PI * g->diameter_m * g->diameter_m / 4.0;
 }
 
+double section_capacity_factor(const struct section_geom *g)
+{
+	assert(g != NULL);
+	double k = g->capacity_factor;
+	return isfinite(k) && k > 0.0 ? k : 1.0;
+}
+
 static bool fluids_usable(const struct fluid_state *f)
 {
 	return isfinite(f->rho_g_kgm3) && f->rho_g_kgm3 > 0.0 && isfinite(f->rho_l_kgm3) &&
@@ -129,9 +136,9 @@ static const unsigned long long dp_mask = B(RF_DP_PA) | B(RF_DP_SLOPE) | B(RF_DP
 static const unsigned long long type_mask[SECTION_TYPE_COUNT] = {
 	[SECTION_TRAY] = B(RF_DP_FLOOD_PCT) | B(RF_DP_MODEL_PA) | B(RF_DP_CORRECTION) |
 			 B(RF_JET_FLOOD_PCT) | B(RF_DC_BACKUP_PCT) | B(RF_WEEP_PCT) |
-			 B(RF_CLEAR_LIQUID_M),
+			 B(RF_CLEAR_LIQUID_M) | B(RF_DP_LOAD_PCT),
 	[SECTION_PACKED] = B(RF_DP_FLOOD_PCT) | B(RF_DP_MODEL_PA) | B(RF_DP_CORRECTION) |
-			   B(RF_LOADING_PCT),
+			   B(RF_LOADING_PCT) | B(RF_DP_LOAD_PCT),
 	[SECTION_SPRAY] = B(RF_CARRYOVER_FRAC),
 	[SECTION_BUBBLE] = B(RF_GAS_HOLDUP_FRAC) | B(RF_GAS_HOLDUP_DP_FRAC) |
 			   B(RF_EXPANDED_LEVEL_M) | B(RF_CARRYOVER_MARGIN_M),
@@ -216,8 +223,11 @@ void section_fuse(struct section_result *r, double trend_pct)
 		best = r->v[RF_FLOOD_PCT];
 		basis = r->model_basis;
 	}
-	if (isfinite(r->v[RF_DP_FLOOD_PCT]) && !(r->v[RF_DP_FLOOD_PCT] <= best)) {
-		best = r->v[RF_DP_FLOOD_PCT];
+	/* Both branches are percent of the flood gas load: the DP branch is
+	 * the engine's dp_load_pct (dp_flood_pct compares DPs, not loads, and
+	 * is reported but not fused). */
+	if (isfinite(r->v[RF_DP_LOAD_PCT]) && !(r->v[RF_DP_LOAD_PCT] <= best)) {
+		best = r->v[RF_DP_LOAD_PCT];
 		basis = FLOOD_BASIS_DP;
 	}
 	if (isfinite(trend_pct) && !(trend_pct <= best)) {

@@ -152,6 +152,12 @@ struct loop_geom {
 struct section_geom {
 	enum section_type type;
 	double diameter_m;          /* tower inside diameter */
+	/* The plant's real gas capacity over the model's (`capacity_factor`,
+	 * fitted by `floodgauge calibrate`): multiplies the gas-capacity limits
+	 * only (tray jet-flood capacity, packed flood and loading velocity, spray
+	 * terminal velocity), never downcomer backup, weeping or level swell.
+	 * 0 or NAN means 1 (a zeroed struct is uncalibrated). */
+	double capacity_factor;
 	struct tray_geom tray;
 	struct packed_geom packed;
 	struct spray_geom spray;
@@ -208,7 +214,8 @@ void section_fluids(const struct section_props *props, double t_k, double rho_g_
  * table and notes that in x. A NAN t_k returns the first value. */
 double prop_table_at(const struct prop_table *t, double t_k, struct fg_extrap *x);
 
-/* Sets RF_FLOOD_INDEX to the largest of flood_pct, dp_flood_pct and
+/* Sets RF_FLOOD_INDEX to the largest of flood_pct, dp_load_pct (the
+ * engine's DP branch, NAN in a model-only evaluation) and
  * trend_pct (the engine's DP-trend indicator, NAN when none) and r->basis to
  * what drove it. The type evaluators set r->basis for flood_pct; this keeps
  * that basis when flood_pct is the largest. */
@@ -219,6 +226,9 @@ bool section_regime_applies(enum section_type t);
 
 /* Tower cross-section, m2. */
 double section_area_m2(const struct section_geom *g);
+
+/* g->capacity_factor, or 1 when it is not a positive finite number. */
+double section_capacity_factor(const struct section_geom *g);
 
 /* Type evaluators, called by section_eval with the common fields of r already
  * filled (RF_GAS_DENSITY, RF_GAS_VELOCITY, RF_FLOW_PARAM, RF_CAP_FACTOR,

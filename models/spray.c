@@ -275,7 +275,9 @@ void spray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 						    f->rho_g_kgm3, f->mu_g_pas, &r->extrap,
 						    w != NULL ? w->spray_vt_ln_re : NULL);
 	note_deformation(s, f, &r->extrap);
-	r->v[RF_FLOOD_PCT] = spray_approach_pct(ug, vt);
+	/* The calibrated plant capacity scales the terminal velocity the gas
+	 * is compared with (the liquid in flight below keeps the droplet's own). */
+	r->v[RF_FLOOD_PCT] = spray_approach_pct(ug, vt * section_capacity_factor(g));
 	r->basis = FLOOD_BASIS_DROPLET;
 	double dc = spray_critical_droplet_m_warm(ug, f->rho_l_kgm3, f->rho_g_kgm3, f->mu_g_pas,
 						  &r->extrap, w != NULL ? w->spray_crit_ln_re : NULL);

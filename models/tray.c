@@ -427,7 +427,9 @@ static double flood_velocity(const struct section_geom *g, const struct fluid_st
 		c = tray_fair_csb_ms(flv, t->spacing_m, x) * tray_sigma_factor(f->sigma_nm) *
 		    tray_hole_area_factor(t->hole_area_frac, x);
 	}
-	return tray_flood_velocity_ms(c, f->rho_l_kgm3, f->rho_g_kgm3);
+	/* The calibrated plant capacity scales the capacity factor (C_sb). */
+	return tray_flood_velocity_ms(c * section_capacity_factor(g), f->rho_l_kgm3,
+				      f->rho_g_kgm3);
 }
 
 static double jet_pct_at(const struct section_geom *g, const struct fluid_state *f,

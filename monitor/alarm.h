@@ -120,6 +120,16 @@ _Static_assert(ALARM_STATE_COUNT == 7, "state names, state file and JSON list 7 
 #define ALARM_REASON_HISTORIAN_STATUS "historian_status" /* the historian marked it bad */
 #define ALARM_REASON_MISSING_COLUMN "missing_column"     /* the data file has no column */
 #define ALARM_REASON_OTHER "other"
+/* A DP at the top of its range (validate.h): a process fact, reported as the
+ * tag's reason but never raising a diagnostic alarm. */
+#define ALARM_REASON_SATURATED "saturated"
+
+/* Default delays of a diagnostic alarm when the config gives none, s: on
+ * after 10 s of a bad input, off after 60 s of good input (common practice:
+ * diagnostics are low priority and must not chatter; ISA-18.2 recommends
+ * on/off delays against chattering alarms). */
+#define ALARM_DIAG_ON_DELAY_DEFAULT_S 10.0
+#define ALARM_DIAG_OFF_DELAY_DEFAULT_S 60.0
 
 /* One alarm as configured ([alarm.NAME]). The config loader fills it, starting
  * from alarm_cfg_defaults(), and checks it with alarm_cfg_check(). */

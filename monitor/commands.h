@@ -16,6 +16,7 @@ int cmd_rate(int argc, char **argv);
 int cmd_simulate(int argc, char **argv);
 int cmd_replay(int argc, char **argv);
 int cmd_tune(int argc, char **argv);
+int cmd_calibrate(int argc, char **argv);
 int cmd_run(int argc, char **argv);
 int cmd_feed(int argc, char **argv);
 

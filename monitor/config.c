@@ -23,6 +23,8 @@
 #include <ini.h>
 #include "suggest.h"
 
+#include "softsense.h"
+
 /* libinih's line buffer in Debian's build (ini_max_line default). */
 #define CONFIG_LINE_MAX 200
 
@@ -220,6 +222,11 @@ static void section_defaults(struct section_cfg *s)
 	s->active_area_m2 = s->downcomer_area_m2 = s->hole_area_m2 = NAN;
 	s->props.gas_compressibility = 1.0;
 	s->sump_area_m2 = NAN;
+	s->geom.capacity_factor = 1.0;
+	s->dp_factor = 1.0;
+	s->steady_window_s = SOFTSENSE_STEADY_WINDOW_DEFAULT_S;
+	s->steady_load_band = SOFTSENSE_STEADY_BAND_DEFAULT;
+	s->normal_dp_sigmas = SOFTSENSE_NORMAL_SIGMAS_DEFAULT;
 	s->geom.tray.deck_thickness_m = 0.002; /* common practice: 2 mm stainless deck */
 	s->geom.tray.flood_method = TRAY_FLOOD_FAIR;
 	s->geom.tray.kind = TRAY_SIEVE;

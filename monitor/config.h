@@ -107,6 +107,11 @@ struct section_cfg {
 	/* Tray areas per tray as a datasheet gives them, m2 (NAN unless given);
 	 * the loader turns them into geom.tray's fractions. */
 	double active_area_m2, downcomer_area_m2, hole_area_m2;
+	double dp_factor;            /* measured / model DP, the DP correction's start (default 1) */
+	/* The soft sensors' learning gate (softsense.h): */
+	double steady_window_s;      /* window over which the gas load must be steady, s */
+	double steady_load_band;     /* its allowed relative standard deviation, - */
+	double normal_dp_sigmas;     /* DP within this many standard deviations of its relation */
 	int line;
 };
 

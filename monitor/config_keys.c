@@ -51,6 +51,12 @@ static const struct key_desc section_keys[] = {
 	{"diameter_m", KK_DOUBLE, T_ALL, GEO(diameter_m), 0.05, 20.0, T_ALL},
 	{"in_service_gas_kgs", KK_DOUBLE, T_ALL, SC(in_service_gas_kgs), 0.0, 1e6, 0},
 	{"sump_area_m2", KK_DOUBLE, T_ALL, SC(sump_area_m2), 1e-4, 400.0, 0},
+	/* calibration (floodgauge calibrate) and the soft sensors' learning gate */
+	{"capacity_factor", KK_DOUBLE, T_ALL, GEO(capacity_factor), 0.3, 2.0, 0},
+	{"dp_factor", KK_DOUBLE, T_ALL, SC(dp_factor), 0.5, 2.0, 0},
+	{"steady_window_s", KK_DOUBLE, T_ALL, SC(steady_window_s), 30.0, 7200.0, 0},
+	{"steady_load_band", KK_DOUBLE, T_ALL, SC(steady_load_band), 0.001, 0.2, 0},
+	{"normal_dp_sigmas", KK_DOUBLE, T_ALL, SC(normal_dp_sigmas), 1.0, 20.0, 0},
 	{"gas_flow", KK_SIGNAL, T_ALL, SIGNAL_GAS_FLOW, 0, 0, T_ALL},
 	{"liquid_flow", KK_SIGNAL, T_ALL, SIGNAL_LIQUID_FLOW, 0, 0, T_TRAY | T_PACKED | T_SPRAY},
 	{"liquid_out_flow", KK_SIGNAL, T_ALL, SIGNAL_LIQUID_OUT_FLOW, 0, 0, 0},
@@ -299,6 +305,18 @@ int config_section_keys_check(struct config_ctx *c, unsigned si)
 		if (given && !(k->types & tbit)) {
 			config_error(c, sp->key_line[i], "key '%s' does not apply to a %s section",
 				     k->name, type_names[s->geom.type]);
+			rc = -EINVAL;
+		}
+		/* Only trays, packings and sprays have a gas-capacity limit to
+		 * calibrate (a bubble column's flood_pct is level swell): elsewhere
+		 * only the neutral value is accepted. */
+		if (given && !(tbit & (T_TRAY | T_PACKED | T_SPRAY)) &&
+		    !strcmp(k->name, "capacity_factor") && s->geom.capacity_factor != 1.0) {
+			config_error(c, sp->key_line[i], "capacity_factor does not apply to a %s "
+							 "section (it has no gas-capacity limit: "
+							 "level swell, dispersion or circulation is not "
+							 "one); leave it out or set 1",
+				     type_names[s->geom.type]);
 			rc = -EINVAL;
 		}
 		if (!given && (k->required & tbit)) {

@@ -589,6 +589,13 @@ static void resolve_alarm(struct config_ctx *c, unsigned ai)
 			return;
 		}
 		a->field = ALARM_FIELD_QUALITY;
+		/* Defaults that keep a diagnostic clean: a flickering input (a
+		 * reading hovering at a frozen or spike threshold) raises it once
+		 * and clears it once, not every few seconds. */
+		if (!(ap->keys_set & (1u << 5)))
+			a->on_delay_s = ALARM_DIAG_ON_DELAY_DEFAULT_S;
+		if (!(ap->keys_set & (1u << 6)))
+			a->off_delay_s = ALARM_DIAG_OFF_DELAY_DEFAULT_S;
 	} else {
 		a->field = result_field_lookup(ap->signal.name);
 		if (a->field < 0) {

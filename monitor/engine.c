@@ -23,7 +23,16 @@ int engine_init(struct engine *e, const struct fg_config *cfg)
 	for (unsigned i = 0; i < cfg->tag_count; i++)
 		validate_init(&e->tags[i], &cfg->tags[i], cfg->monitor.period_s);
 	for (unsigned i = 0; i < cfg->section_count; i++) {
-		softsense_init(&e->sec[i].ss);
+		const struct section_cfg *s = &cfg->sections[i];
+		struct softsense_cfg sc = {
+			.dp_factor = s->dp_factor,
+			.steady_window_s = s->steady_window_s,
+			.steady_load_band = s->steady_load_band,
+			.normal_dp_sigmas = s->normal_dp_sigmas,
+		};
+		softsense_init(&e->sec[i].ss, &sc);
+		if (s->signal[SIGNAL_DP] >= 0) /* a DP may sit at the top of its span */
+			validate_set_saturable(&e->tags[s->signal[SIGNAL_DP]], true);
 		result_clear(&e->sec[i].r);
 		e->sec[i].r.quality = FG_QUALITY_BAD;
 		e->sec[i].diag_tag = -1;
@@ -55,7 +64,10 @@ static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
 		const struct tag_state *ts = &e->tags[ti];
 		if (ts->quality != FG_QUALITY_BAD)
 			sig[k] = ts->value_si;
-		if (ts->reason != NULL && es->diag_reason == NULL) {
+		/* A saturated DP is a process fact, not a transmitter fault: it
+		 * makes the result uncertain but raises no diagnostic. */
+		bool saturated = ts->saturated;
+		if (ts->reason != NULL && !saturated && es->diag_reason == NULL) {
 			es->diag_reason = ts->reason;
 			es->diag_tag = ti;
 		}
@@ -68,6 +80,24 @@ static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
 	if (s->signal[SIGNAL_LIQUID_FLOW] < 0)
 		sig[SIGNAL_LIQUID_FLOW] = 0.0;
 	return q;
+}
+
+/* The model's local d ln DP / d ln G at point p: one more evaluation at a
+ * 2 % higher gas rate (without the measured DP, so no flood-point search).
+ * NAN when the model has no DP or no measured DP is wired. */
+static double dp_exponent(const struct section_cfg *s, const struct section_point *p,
+			  double dp_model_pa)
+{
+	if (s->signal[SIGNAL_DP] < 0 || !(dp_model_pa > 0.0) || !(p->gas_kgs > 0.0))
+		return NAN;
+	const double step = 1.02;
+	struct section_point q = *p;
+	q.gas_kgs *= step;
+	q.dp_pa = NAN;
+	struct section_result r2;
+	section_eval(&s->geom, &s->props, &q, &r2);
+	double dp2 = r2.v[RF_DP_MODEL_PA];
+	return dp2 > 0.0 ? log(dp2 / dp_model_pa) / log(step) : NAN;
 }
 
 static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
@@ -83,18 +113,22 @@ static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
 	if (lo >= 0 && e->tags[lo].quality != FG_QUALITY_BAD) /* by its own tag's unit */
 		liquid_out = point_mass_flow_kgs(&e->cfg->tags[lo], e->tags[lo].value_si, rho_l,
 						 s->props.gas_molar_mass_kgkmol);
+	int dpt = s->signal[SIGNAL_DP];
+	bool dp_sat = dpt >= 0 && e->tags[dpt].saturated;
 	struct softsense_input in = {
 		.gas_kgs = p->gas_kgs,
 		.dp_pa = r->v[RF_DP_PA],
 		.dp_model_pa = raw_model,
+		.dp_exponent = dp_exponent(s, p, raw_model),
+		.flood_pct = r->v[RF_FLOOD_PCT],
+		.dp_saturated = dp_sat,
 		.f_factor = r->v[RF_F_FACTOR],
 		.liquid_in_kgs = p->liquid_kgs,
 		.liquid_out_kgs = liquid_out,
 		.level_m = p->level_m,
 		.rho_l_kgm3 = rho_l,
 		.sump_area_m2 = isfinite(s->sump_area_m2) ? s->sump_area_m2 : section_area_m2(&s->geom),
-		.normal = r->quality == FG_QUALITY_GOOD && es->in_service &&
-			  r->v[RF_FLOOD_INDEX] < SOFTSENSE_NORMAL_FLOOD_PCT,
+		.normal = r->quality == FG_QUALITY_GOOD && es->in_service,
 	};
 	softsense_step(&es->ss, &in, t_ms, r);
 	double k = r->v[RF_DP_CORRECTION];

@@ -19,6 +19,7 @@ static const struct command commands[] = {
 	{"rate", cmd_rate, "evaluate one operating point of a section and print every result"},
 	{"replay", cmd_replay, "run the engine over recorded data; write results, events, report"},
 	{"tune", cmd_tune, "try alarm settings on recorded data: figures per candidate, pareto marked"},
+	{"calibrate", cmd_calibrate, "fit a section's capacity_factor and dp_factor to recorded data"},
 	{"simulate", cmd_simulate, "write synthetic plant data with an injected upset"},
 };
 

@@ -10,15 +10,43 @@
 /* RLS covariance is re-inflated only while its trace stays below this:
  * without excitation, forgetting would otherwise grow P without bound. */
 #define RLS_TRACE_MAX 1e4
+/* Bounds of the model's DP exponent used to invert the relation. */
+#define DP_EXPONENT_MIN 0.5
+#define DP_EXPONENT_MAX 3.0
 
-void softsense_init(struct softsense *s)
+void softsense_cfg_defaults(struct softsense_cfg *c)
+{
+	assert(c != NULL);
+	c->dp_factor = 1.0;
+	c->steady_window_s = SOFTSENSE_STEADY_WINDOW_DEFAULT_S;
+	c->steady_load_band = SOFTSENSE_STEADY_BAND_DEFAULT;
+	c->normal_dp_sigmas = SOFTSENSE_NORMAL_SIGMAS_DEFAULT;
+}
+
+void softsense_init(struct softsense *s, const struct softsense_cfg *c)
 {
 	assert(s != NULL);
 	memset(s, 0, sizeof(*s));
-	s->corr = 1.0;
+	if (c != NULL)
+		s->cfg = *c;
+	else
+		softsense_cfg_defaults(&s->cfg);
+	s->corr = fmin(SOFTSENSE_CORR_MAX, fmax(SOFTSENSE_CORR_MIN, s->cfg.dp_factor));
 	s->p[0][0] = s->p[1][1] = 1e3;
 	s->theta[1] = 2.0; /* prior: turbulent DP ~ F^2 */
+	s->slope_normal = NAN;
 	s->cv_base = NAN;
+	s->resid = NAN;
+	s->load_ratio_ln = NAN;
+}
+
+double softsense_sigma(const struct softsense *s)
+{
+	assert(s != NULL);
+	/* The short-term scatter of DP / (corr model DP) is the noise baseline
+	 * (a coefficient of variation is, for small values, the standard
+	 * deviation of the logarithm). */
+	return isfinite(s->cv_base) ? fmax(SOFTSENSE_SIGMA_MIN, s->cv_base) : SOFTSENSE_SIGMA_PRIOR;
 }
 
 static double ewma_weight(double dt_s, double tau_s)
@@ -35,12 +63,13 @@ static bool gas_steady(struct softsense *s, double gas_kgs, double dt_s)
 		s->g_sq = gas_kgs * gas_kgs;
 		return false;
 	}
-	double a = ewma_weight(dt_s, SOFTSENSE_STEADY_TAU_S);
+	double band = s->cfg.steady_load_band;
+	double a = ewma_weight(dt_s, s->cfg.steady_window_s);
 	s->g_mean += a * (gas_kgs - s->g_mean);
 	s->g_sq += a * (gas_kgs * gas_kgs - s->g_sq);
 	double var = fmax(0.0, s->g_sq - s->g_mean * s->g_mean);
-	return s->g_mean > 0.0 && sqrt(var) / s->g_mean < SOFTSENSE_STEADY_REL_STD &&
-	       fabs(gas_kgs - s->g_mean) / s->g_mean < 2.0 * SOFTSENSE_STEADY_REL_STD;
+	return s->g_mean > 0.0 && sqrt(var) / s->g_mean < band &&
+	       fabs(gas_kgs - s->g_mean) / s->g_mean < band;
 }
 
 static double slope_step(struct softsense *s, double f, double dp, double dt_s)
@@ -73,13 +102,14 @@ static double slope_step(struct softsense *s, double f, double dp, double dt_s)
 	return sqrt(var) >= SOFTSENSE_SLOPE_MIN_STD ? s->theta[1] : NAN;
 }
 
-static double noise_step(struct softsense *s, double dp, bool normal, double dt_s)
+/* ratio: DP over its learned relation (or the DP itself without a model). */
+static double noise_step(struct softsense *s, double ratio, bool learn, double dt_s)
 {
-	if (!isfinite(dp)) {
+	if (!isfinite(ratio)) {
 		s->ring_count = 0; /* a gap restarts the window */
 		return NAN;
 	}
-	s->ring[s->ring_pos] = dp;
+	s->ring[s->ring_pos] = ratio;
 	s->ring_pos = (s->ring_pos + 1) % SOFTSENSE_NOISE_WINDOW;
 	if (s->ring_count < SOFTSENSE_NOISE_WINDOW)
 		s->ring_count++;
@@ -94,7 +124,7 @@ static double noise_step(struct softsense *s, double dp, bool normal, double dt_
 	if (!(mean > 0.0))
 		return NAN;
 	double cv = sqrt(sq / (SOFTSENSE_NOISE_WINDOW - 1)) / mean;
-	if (normal) {
+	if (learn) {
 		if (isnan(s->cv_base))
 			s->cv_base = cv;
 		else
@@ -103,20 +133,46 @@ static double noise_step(struct softsense *s, double dp, bool normal, double dt_
 	return s->cv_base > 0.0 ? cv / s->cv_base : NAN;
 }
 
-static double inventory_step(struct softsense *s, const struct softsense_input *in, double dt_s)
+static double inventory_step(struct softsense *s, const struct softsense_input *in, bool learn,
+			     double dt_s)
 {
 	if (!isfinite(in->level_m) || !isfinite(in->liquid_in_kgs) ||
 	    !isfinite(in->liquid_out_kgs) || !(in->rho_l_kgm3 > 0.0) || !(in->sump_area_m2 > 0.0))
 		return NAN;
+	double q = (in->liquid_in_kgs - in->liquid_out_kgs) / in->rho_l_kgm3;
 	if (!s->inv_started) {
 		s->inv_started = true;
 		s->level0_m = in->level_m;
 		s->inventory_m3 = 0.0;
 	} else {
-		s->inventory_m3 += (in->liquid_in_kgs - in->liquid_out_kgs) / in->rho_l_kgm3 * dt_s;
+		if (learn)
+			s->imbalance_m3s += ewma_weight(dt_s, SOFTSENSE_INV_TAU_S) *
+					    (q - s->imbalance_m3s);
+		s->inventory_m3 += (q - s->imbalance_m3s) * dt_s;
 	}
 	/* What came in and did not leave, less what the sump gained, is in the section. */
 	return s->inventory_m3 - in->sump_area_m2 * (in->level_m - s->level0_m);
+}
+
+/* The DP branch of flood_index, % (see softsense.h). The load ratio is
+ * smoothed (first-order, SOFTSENSE_DP_LOAD_TAU_S) so that DP noise, which
+ * grows near flood, does not make the index and its alarms chatter. */
+static double dp_load_pct(struct softsense *s, const struct softsense_input *in, double dt_s)
+{
+	double expected = s->corr * in->dp_model_pa;
+	if (!(in->dp_pa > 0.0) || !(expected > 0.0) || !(in->flood_pct >= 0.0)) {
+		s->load_ratio_ln = NAN;
+		return NAN;
+	}
+	double n = isfinite(in->dp_exponent) ? in->dp_exponent : 2.0;
+	n = fmin(DP_EXPONENT_MAX, fmax(DP_EXPONENT_MIN, n));
+	double x = log(in->dp_pa / expected) / n;
+	if (isnan(s->load_ratio_ln))
+		s->load_ratio_ln = x;
+	else
+		s->load_ratio_ln += ewma_weight(dt_s, SOFTSENSE_DP_LOAD_TAU_S) * (x - s->load_ratio_ln);
+	double pct = in->flood_pct * exp(s->load_ratio_ln);
+	return fmin(SOFTSENSE_DP_LOAD_MAX_PCT, pct);
 }
 
 void softsense_step(struct softsense *s, const struct softsense_input *in, int64_t t_ms,
@@ -129,16 +185,52 @@ void softsense_step(struct softsense *s, const struct softsense_input *in, int64
 	if (dt_s < 0.0)
 		dt_s = 0.0; /* time going backwards: use the sample, learn nothing */
 	bool steady = gas_steady(s, in->gas_kgs, dt_s);
-	bool learn = in->normal && steady;
-	if (learn && in->dp_pa > 0.0 && in->dp_model_pa > 0.0) {
+	bool have_dp = in->dp_pa > 0.0 && in->dp_model_pa > 0.0 && !in->dp_saturated;
+	double resid = have_dp ? log(in->dp_pa / (s->corr * in->dp_model_pa)) : NAN;
+	bool warm = s->learned_s < SOFTSENSE_WARMUP_S;
+	double band = warm ? log(SOFTSENSE_CORR_MAX / SOFTSENSE_CORR_MIN)
+			   : s->cfg.normal_dp_sigmas * softsense_sigma(s);
+	bool normal = in->normal && have_dp && fabs(resid) <= band;
+	bool learn = normal && steady;
+	if (learn) {
 		double ratio = in->dp_pa / in->dp_model_pa;
-		s->corr += ewma_weight(dt_s, SOFTSENSE_CORR_TAU_S) * (ratio - s->corr);
+		double tau = warm ? SOFTSENSE_WARMUP_TAU_S : SOFTSENSE_CORR_TAU_S;
+		s->corr += ewma_weight(dt_s, tau) * (ratio - s->corr);
 		s->corr = fmin(SOFTSENSE_CORR_MAX, fmax(SOFTSENSE_CORR_MIN, s->corr));
+		s->learned_s += dt_s;
 	}
+	s->steady = steady;
+	s->normal = normal;
+	s->learning = learn;
+	s->resid = resid;
+	s->dp_exponent = in->dp_exponent;
 	r->v[RF_DP_CORRECTION] = isfinite(in->dp_model_pa) ? s->corr : NAN;
-	r->v[RF_DP_SLOPE] = slope_step(s, in->f_factor, in->dp_pa, dt_s);
-	r->v[RF_DP_NOISE_RATIO] = noise_step(s, in->dp_pa, learn, dt_s);
-	r->v[RF_INVENTORY_M3] = inventory_step(s, in, dt_s);
+	double slope = slope_step(s, in->f_factor, in->dp_saturated ? NAN : in->dp_pa, dt_s);
+	if (normal && isfinite(slope)) {
+		if (isnan(s->slope_normal))
+			s->slope_normal = slope;
+		else
+			s->slope_normal += ewma_weight(dt_s, SOFTSENSE_CORR_TAU_S) *
+					   (slope - s->slope_normal);
+	}
+	r->v[RF_DP_SLOPE] = slope;
+	double ratio = NAN;
+	if (in->dp_pa > 0.0 && !in->dp_saturated)
+		ratio = in->dp_model_pa > 0.0 ? in->dp_pa / (s->corr * in->dp_model_pa) : in->dp_pa;
+	/* Without a model DP, "normal" is the inputs and a steady load. The
+	 * baselines wait for half the warm-up (the noise: a correction still
+	 * moving would read as noise) or all of it (the meters' imbalance). */
+	bool plain = in->normal && steady && !in->dp_saturated;
+	if (plain)
+		s->plain_s += dt_s;
+	bool model = in->dp_model_pa > 0.0;
+	double settled_s = model ? s->learned_s : s->plain_s;
+	bool base_learn = model ? learn : plain;
+	r->v[RF_DP_NOISE_RATIO] = noise_step(s, ratio, base_learn &&
+					     settled_s >= 0.5 * SOFTSENSE_WARMUP_S, dt_s);
+	r->v[RF_INVENTORY_M3] = inventory_step(s, in, base_learn &&
+					       settled_s >= SOFTSENSE_WARMUP_S, dt_s);
+	r->v[RF_DP_LOAD_PCT] = dp_load_pct(s, in, dt_s);
 	s->started = true;
 	s->last_t_ms = t_ms;
 }

@@ -27,8 +27,15 @@ void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period
 	s->reason = ALARM_REASON_STALE; /* nothing read yet */
 }
 
+void validate_set_saturable(struct tag_state *s, bool saturable)
+{
+	assert(s != NULL);
+	s->saturable = saturable;
+}
+
 static void set_bad(struct tag_state *s, const char *reason)
 {
+	s->saturated = false;
 	s->quality = FG_QUALITY_BAD;
 	s->reason = reason;
 	s->value = NAN;
@@ -81,6 +88,34 @@ static bool at_span_end(const struct tag_cfg *c, double v)
 	return (isfinite(c->min) && v <= c->min) || (isfinite(c->max) && v >= c->max);
 }
 
+/* Is v in the saturation band of a saturable tag with a finite span? */
+static bool in_sat_band(const struct tag_state *s, double v)
+{
+	const struct tag_cfg *c = s->cfg;
+	if (!s->saturable || !isfinite(c->min) || !isfinite(c->max) || !(c->max > c->min))
+		return false;
+	double span = c->max - c->min;
+	return v >= c->max - VALIDATE_SAT_BELOW * span && v <= c->max + VALIDATE_SAT_ABOVE * span;
+}
+
+/* Accepts a saturated reading as `max`: "at least max", uncertain. The
+ * median and lag run on max so the value settles there; the frozen check is
+ * restarted (a pegged reading does not move). */
+static void saturate(struct tag_state *s, int64_t t_ms)
+{
+	double v = s->cfg->max;
+	s->saturated = true;
+	s->spike_held = false;
+	s->accepted = v;
+	s->seen = true;
+	s->last_fresh_t_ms = t_ms;
+	s->frozen_ref = v;
+	s->frozen_since_t_ms = t_ms;
+	filter(s, t_ms, v);
+	s->quality = FG_QUALITY_UNCERTAIN;
+	s->reason = ALARM_REASON_SATURATED;
+}
+
 static void fresh(struct tag_state *s, int64_t t_ms, double v)
 {
 	const struct tag_cfg *c = s->cfg;
@@ -88,11 +123,23 @@ static void fresh(struct tag_state *s, int64_t t_ms, double v)
 		set_bad(s, ALARM_REASON_NAN);
 		return;
 	}
+	bool had = s->quality != FG_QUALITY_BAD && isfinite(s->accepted);
+	if (in_sat_band(s, v)) {
+		if (s->saturated || (had && s->accepted >= c->max - VALIDATE_SAT_APPROACH *
+								  (c->max - c->min))) {
+			saturate(s, t_ms);
+			return;
+		}
+		if (v > c->max) { /* a jump above the span: a failed transmitter */
+			set_bad(s, ALARM_REASON_OUT_OF_RANGE);
+			return;
+		}
+	}
+	s->saturated = false;
 	if ((isfinite(c->min) && v < c->min) || (isfinite(c->max) && v > c->max)) {
 		set_bad(s, ALARM_REASON_OUT_OF_RANGE);
 		return;
 	}
-	bool had = s->quality != FG_QUALITY_BAD && isfinite(s->accepted);
 	if (had && c->spike_limit > 0.0 && fabs(v - s->accepted) > c->spike_limit &&
 	    !s->spike_held) {
 		s->spike_held = true; /* hold the last value once; quality uncertain */

@@ -13,6 +13,21 @@
  * real step change would); frozen (no change beyond frozen_tolerance for
  * frozen_s: uncertain, "frozen"); then a short median and a first-order lag.
  * Fixed state, no allocation, time passed in.
+ *
+ * Saturation (tags marked saturable: the engine marks every DP tag). A DP
+ * transmitter driven to the top of its span by a real high DP reads at or a
+ * little above its max: a process fact ("the DP is at least max"), not a dead
+ * transmitter. A reading in the band [max - VALIDATE_SAT_BELOW x span,
+ * max + VALIDATE_SAT_ABOVE x span] (span = max - min) that was reached
+ * without a jump (the last accepted value lay within VALIDATE_SAT_APPROACH x
+ * span below max, or the tag was already saturated) is accepted as
+ * `max` with quality uncertain and reason "saturated"; it is exempt from the
+ * frozen check (a pegged reading does not move). Reached by a jump, or above
+ * the band, it is bad ("out_of_range"), as before: a transmitter failing
+ * high jumps there. The band follows NAMUR NE 43 (a 4-20 mA transmitter
+ * signals a measurement up to 20.5 mA = 103.1 % of span; above that a
+ * failure): 3 % of span above max; 0.5 % of span below max covers the
+ * resolution of the reading at the end of its span (common practice).
  */
 #ifndef VALIDATE_H
 #define VALIDATE_H
@@ -47,8 +62,15 @@ enum tag_status {
 	TAG_STATUS_NO_COLUMN, /* the data file has no column for the tag ("missing_column") */
 };
 
+/* Saturation band and approach, fractions of the span (see above). */
+#define VALIDATE_SAT_BELOW 0.005
+#define VALIDATE_SAT_ABOVE 0.03
+#define VALIDATE_SAT_APPROACH 0.15
+
 struct tag_state {
 	const struct tag_cfg *cfg;
+	bool saturable;              /* a DP: may saturate at its max (see above) */
+	bool saturated;              /* the current reading is "at least max" */
 	int64_t stale_ms;            /* stale_periods x period, ms (0: never stale) */
 	bool seen;                   /* any fresh sample yet */
 	int64_t last_fresh_t_ms;
@@ -68,6 +90,9 @@ struct tag_state {
 };
 
 void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period_s);
+
+/* Marks the tag as one that may saturate at its max (a DP). */
+void validate_set_saturable(struct tag_state *s, bool saturable);
 
 /* One sample at t_ms: v in the tag's unit (ignored unless status is FRESH). */
 void validate_step(struct tag_state *s, int64_t t_ms, double v, enum tag_status status);

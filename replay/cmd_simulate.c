@@ -22,7 +22,7 @@ static void simulate_usage(FILE *f)
 {
 	fprintf(f,
 		"usage: floodgauge simulate -c FILE --scenario NAME [--out DATA.csv] [--seed N]\n"
-		"                           [--hours H] [--period-s S] [--start T]\n\n"
+		"                           [--hours H] [--period-s S] [--start T] [--capacity K]\n\n"
 		"Writes synthetic plant data for the tags of FILE as a historian CSV (header\n"
 		"time,TAG,... with every polled tag in config order; time ISO 8601 UTC; values in\n"
 		"each tag's own unit; an empty field is a missing value), made from floodgauge's\n"
@@ -37,7 +37,10 @@ static void simulate_usage(FILE *f)
 		"      --hours H       span (default: the scenario's own)\n"
 		"      --period-s S    row period (default: the config's period_s)\n"
 		"      --start T       time of the first row, ISO 8601 UTC or epoch seconds\n"
-		"                      (default 2026-03-02T06:00:00Z)\n\n"
+		"                      (default 2026-03-02T06:00:00Z)\n"
+		"      --capacity K    the plant really floods at K times the model's gas\n"
+		"                      capacity (0.3..2; e.g. 0.85 for a fouled column); with\n"
+		"                      --scenario flood the load follows the plant's capacity\n\n"
 		"%s\n"
 		"A one-line summary of what happened when goes to standard error.\n"
 		"Synthetic data are for testing and tuning the monitor, not for design.\n",
@@ -78,7 +81,7 @@ static int parse_seed(const char *arg, uint64_t *seed)
 /* Returns 0, 1 for --help (printed), or -EINVAL (reason printed). */
 static int parse_args(int argc, char **argv, struct simulate_args *a)
 {
-	enum { OPT_SEED = 1000, OPT_HOURS, OPT_PERIOD, OPT_START };
+	enum { OPT_SEED = 1000, OPT_HOURS, OPT_PERIOD, OPT_START, OPT_CAPACITY };
 	static const struct option opts[] = {{"config", required_argument, NULL, 'c'},
 					     {"scenario", required_argument, NULL, 's'},
 					     {"out", required_argument, NULL, 'o'},
@@ -86,6 +89,7 @@ static int parse_args(int argc, char **argv, struct simulate_args *a)
 					     {"hours", required_argument, NULL, OPT_HOURS},
 					     {"period-s", required_argument, NULL, OPT_PERIOD},
 					     {"start", required_argument, NULL, OPT_START},
+					     {"capacity", required_argument, NULL, OPT_CAPACITY},
 					     {"help", no_argument, NULL, 'h'},
 					     {0}};
 	memset(a, 0, sizeof(*a));
@@ -103,6 +107,14 @@ static int parse_args(int argc, char **argv, struct simulate_args *a)
 		case OPT_SEED: rc = parse_seed(optarg, &a->opt.seed); break;
 		case OPT_HOURS: rc = parse_positive("--hours", optarg, &a->opt.hours); break;
 		case OPT_PERIOD: rc = parse_positive("--period-s", optarg, &a->opt.period_s); break;
+		case OPT_CAPACITY:
+			rc = parse_positive("--capacity", optarg, &a->opt.capacity);
+			if (rc == 0 && (a->opt.capacity < 0.3 || a->opt.capacity > 2.0)) {
+				fprintf(stderr, "floodgauge simulate: --capacity %g is outside 0.3..2\n",
+					a->opt.capacity);
+				rc = -EINVAL;
+			}
+			break;
 		case OPT_START:
 			if (timefmt_parse(optarg, strlen(optarg), &a->opt.start_t_ms) != 0) {
 				fprintf(stderr, "floodgauge simulate: --start '%s' is not an ISO 8601 "

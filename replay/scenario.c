@@ -10,15 +10,18 @@
  *
  * The plant DP of a tray or packed section is
  *
- *     dp = k_plant dp_model(point) (1 + K_EXC max(0, f - F_EXC)^2)
+ *     dp = k_plant dp_model(point) (1 + K_EXC max(0, f - F_EXC)^2
+ *                                   + K_FLOOD max(0, f - 1))
  *
- * with k_plant = 1.1, f = model flood_pct / 100, F_EXC = 0.85, K_EXC = 20:
- * the factor is 1.45 at f = 1.0 and 2.25 at f = 1.1, a steep rise once the
- * column floods (liquid builds up on the trays or in the bed). Its
- * transmitter noise has a coefficient of variation 0.015 (1 + 20 max(0,
- * f - F_EXC)), 6 % at flood, as flooding makes DP erratic. These forms are
- * our own invented demo choices ("common practice" only in that DP is known
- * to rise steeply and get noisy near flood), not a published correlation.
+ * with k_plant = 1.1, f = the plant's flood fraction (model flood_pct / 100
+ * / capacity), F_EXC = 0.85, K_EXC = 10, K_FLOOD = 10: a gentle rise as the
+ * plant approaches its flood point (1.225 at f = 1.0), then a break in the
+ * slope once it floods (liquid builds up on the trays or in the bed; 2.6 at
+ * f = 1.1). Its transmitter noise has a coefficient of variation 0.015 (1 +
+ * 10 max(0, f - F_EXC) + 30 max(0, f - 1)): 2.5 times at the flood point,
+ * 5.5 times at f = 1.1, as flooding makes DP erratic. These forms are our own
+ * invented demo choices ("common practice" only in that DP is known to rise
+ * steeply and get noisy at flood), not a published correlation.
  * When the model gives no DP, the tag's nominal DP scaled with the square of
  * the F-factor stands in (dry and irrigated DP grow roughly with the square
  * of the gas load below loading - common practice).
@@ -62,8 +65,18 @@
 
 #define DP_PLANT_FACTOR 1.1
 #define DP_EXC_FROM 0.85
-#define DP_EXC_K 20.0
+#define DP_EXC_K 10.0
+#define DP_FLOOD_K 10.0
 #define DP_CV 0.015
+#define DP_CV_EXC_K 10.0
+#define DP_CV_FLOOD_K 30.0
+
+/* Flood scenario with --capacity (the calibration profile): steady at 75 %
+ * of the plant's real capacity, then +10 % of it per hour to 110 %. */
+#define CAL_BASE_FRAC 0.75
+#define CAL_RAMP_FRAC_PER_S (0.10 / 3600.0)
+#define CAL_STOP_FRAC 1.10
+#define CAL_HOURS 7.0
 
 #define FLOOD_RAMP_START_S (2.0 * 3600.0)
 #define FLOOD_RAMP_PER_S (0.25 / 3600.0)   /* +25 % of design load per hour */
@@ -207,6 +220,17 @@ const char *scenario_name(enum scenario_kind k)
 	return kind_names[k];
 }
 
+double scenario_capacity(const struct scenario_opts *opt)
+{
+	assert(opt != NULL);
+	return isfinite(opt->capacity) && opt->capacity > 0.0 ? opt->capacity : 1.0;
+}
+
+static bool capacity_given(const struct scenario_opts *opt)
+{
+	return isfinite(opt->capacity) && opt->capacity > 0.0;
+}
+
 double scenario_default_hours(enum scenario_kind k)
 {
 	assert(k >= 0);
@@ -225,9 +249,16 @@ const char *scenario_help(void)
 	"          section rises +25 % of design per hour until the model flood_pct\n"
 	"          reaches 110 % (or twice the design load, or the flow tag's range);\n"
 	"          held 20 min; cut back at -50 %/h to design; steady to the end.\n"
-	"          The DP is the model DP x 1.1 x (1 + 20 max(0, f - 0.85)^2),\n"
-	"          f = flood_pct/100, with noise of CV 1.5 % x (1 + 20 max(0, f - 0.85)).\n"
+	"          The DP is the model DP x 1.1 x (1 + 10 max(0, f - 0.85)^2\n"
+	"          + 10 max(0, f - 1)), f = flood_pct/100, with noise of CV\n"
+	"          1.5 % x (1 + 10 max(0, f - 0.85) + 30 max(0, f - 1)).\n"
 	"          The flood point is when the model flood_pct reaches 100 %.\n"
+	"          With --capacity K (the plant floods at K x the model's capacity:\n"
+	"          fouling, foaming) the profile is in the plant's real capacity: 7 h,\n"
+	"          steady 2 h at 75 % of it, then +10 % of it per hour to 110 %, held\n"
+	"          20 min, cut back at -50 %/h of design to 75 %; the DP and its noise\n"
+	"          follow the plant's flood fraction f = flood_pct / (100 K), so the\n"
+	"          plant floods (f = 1) at model flood_pct 100 K, 4.5 h into the run.\n"
 	"  weep    6 h. Steady 1 h; the gas load of every tray section falls to 35 %\n"
 	"          of design by 3 h, stays until 3.5 h, is back at design by 5 h.\n"
 	"          The model weep_pct falls below 100 % on the way down.\n"
@@ -423,10 +454,11 @@ static double plant_dp(const struct scenario *sc, unsigned si, const struct sect
 		double r = v[RF_F_FACTOR] / sec->f_factor_nominal_pa05;
 		base = sec->nominal_si[SIGNAL_DP] * r * r;
 	}
-	double f = v[RF_FLOOD_PCT] / 100.0;
+	double f = v[RF_FLOOD_PCT] / 100.0 / scenario_capacity(&sc->opt);
 	double ex = isfinite(f) && f > DP_EXC_FROM ? f - DP_EXC_FROM : 0.0;
-	*cv = DP_CV * (1.0 + DP_EXC_K * ex);
-	return base * (1.0 + DP_EXC_K * ex * ex);
+	double fl = isfinite(f) && f > 1.0 ? f - 1.0 : 0.0;
+	*cv = DP_CV * (1.0 + DP_CV_EXC_K * ex + DP_CV_FLOOD_K * fl);
+	return base * (1.0 + DP_EXC_K * ex * ex + DP_FLOOD_K * fl);
 }
 
 static double gas_load_cap(const struct scenario *sc, unsigned si, double load_max)
@@ -464,12 +496,15 @@ static void flood_load(struct scenario *sc, unsigned si, double t_s, double dt_s
 		       const struct ramp *rp)
 {
 	struct scenario_section *sec = &sc->sec[si];
-	double fp = sec->res.v[RF_FLOOD_PCT];
+	double cap = scenario_capacity(&sc->opt);
+	double fp = sec->res.v[RF_FLOOD_PCT] / cap;
+	/* --capacity: the calibration profile's ramp, in the plant's capacity */
+	double up = sec->ramp_per_s > 0.0 ? sec->ramp_per_s : rp->up_per_s;
 	switch (sec->phase) {
 	case PHASE_STEADY:
 		if (t_s >= rp->start_s) {
 			sec->phase = PHASE_RAMP;
-			sec->load = 1.0 + rp->up_per_s * (t_s - rp->start_s);
+			sec->load = sec->load_base + up * (t_s - rp->start_s);
 		}
 		break;
 	case PHASE_RAMP:
@@ -479,7 +514,7 @@ static void flood_load(struct scenario *sc, unsigned si, double t_s, double dt_s
 			sec->phase_start_s = t_s;
 			sec->peak_t_ms = t_ms_at(sc, t_s);
 		} else {
-			sec->load += rp->up_per_s * dt_s;
+			sec->load += up * dt_s;
 		}
 		break;
 	case PHASE_HOLD:
@@ -488,8 +523,8 @@ static void flood_load(struct scenario *sc, unsigned si, double t_s, double dt_s
 		break;
 	case PHASE_BACK:
 		sec->load -= rp->back_per_s * dt_s;
-		if (sec->load <= 1.0) {
-			sec->load = 1.0;
+		if (sec->load <= sec->load_base) {
+			sec->load = sec->load_base;
 			sec->phase = PHASE_DONE;
 			sec->recovered_t_ms = t_ms_at(sc, t_s);
 		}
@@ -593,7 +628,8 @@ static void note_events(struct scenario *sc, unsigned si, double t_s)
 	}
 	if (isfinite(fp) && fp > sec->peak_flood_pct)
 		sec->peak_flood_pct = fp;
-	if (isfinite(fp) && fp >= 100.0 && sec->flood_t_ms == SCENARIO_T_NONE) {
+	if (isfinite(fp) && fp >= 100.0 * scenario_capacity(&sc->opt) &&
+	    sec->flood_t_ms == SCENARIO_T_NONE) {
 		sec->flood_t_ms = t_ms_at(sc, t_s);
 		sec->flood_basis = sec->res.basis;
 	}
@@ -696,6 +732,9 @@ static void init_section_state(struct scenario_section *sec)
 	sec->load = 1.0;
 	sec->phase = PHASE_STEADY;
 	sec->dp_factor = DP_PLANT_FACTOR;
+	sec->flood_pct_design = NAN;
+	sec->load_base = 1.0;
+	sec->ramp_per_s = 0.0; /* 0: the scenario's own ramp */
 	sec->dp_true_pa = NAN;
 	sec->dp_cv = DP_CV;
 	sec->motor_true_w = NAN;
@@ -721,6 +760,17 @@ static void design_dp(struct scenario *sc, unsigned si)
 	true_point(sec, &p);
 	section_eval(&s->geom, &s->props, &p, &sec->res);
 	sec->f_factor_nominal_pa05 = sec->res.v[RF_F_FACTOR];
+	sec->flood_pct_design = sec->res.v[RF_FLOOD_PCT];
+	enum section_type type = s->geom.type;
+	double fd = sec->flood_pct_design / 100.0 / scenario_capacity(&sc->opt);
+	if (sc->opt.kind == SCENARIO_FLOOD && capacity_given(&sc->opt) && fd > 0.0 &&
+	    (type == SECTION_TRAY || type == SECTION_PACKED)) {
+		/* Flood % is close to proportional to the gas load: the load
+		 * multiples that give 75 % of the plant's capacity and +10 %/h. */
+		sec->load_base = CAL_BASE_FRAC / fd;
+		sec->load = sec->load_base;
+		sec->ramp_per_s = CAL_RAMP_FRAC_PER_S / fd;
+	}
 	sec->dp_model_missing = s->geom.type != SECTION_BUBBLE &&
 				s->geom.type != SECTION_PACKED_BUBBLE &&
 				(s->geom.type == SECTION_SPRAY ||
@@ -799,8 +849,9 @@ static int pick_upset(struct scenario *sc, FILE *errf)
 static int check_span(struct scenario *sc, FILE *errf)
 {
 	const struct scenario_opts *o = &sc->opt;
-	sc->span_s = (isfinite(o->hours) && o->hours > 0.0 ? o->hours
-							   : scenario_default_hours(o->kind)) * 3600.0;
+	double hours = o->kind == SCENARIO_FLOOD && capacity_given(o) ? CAL_HOURS
+								      : scenario_default_hours(o->kind);
+	sc->span_s = (isfinite(o->hours) && o->hours > 0.0 ? o->hours : hours) * 3600.0;
 	sc->period_s = isfinite(o->period_s) && o->period_s > 0.0 ? o->period_s
 								 : sc->cfg->monitor.period_s;
 	double period_ms = round(sc->period_s * 1000.0);
@@ -1013,17 +1064,22 @@ static const char *when(int64_t t_ms, char *buf, size_t buf_size)
 static void summary_flood(const struct scenario *sc, FILE *f)
 {
 	char a[TIMEFMT_BUF_SIZE], b[TIMEFMT_BUF_SIZE], c[TIMEFMT_BUF_SIZE];
-	fprintf(f, "; gas load +25 %%/h from %s",
-		when(t_ms_at(sc, FLOOD_RAMP_START_S), a, sizeof(a)));
+	double cap = scenario_capacity(&sc->opt);
+	if (capacity_given(&sc->opt))
+		fprintf(f, "; plant capacity %g x model; gas load +10 %% of it per hour from %s",
+			cap, when(t_ms_at(sc, FLOOD_RAMP_START_S), a, sizeof(a)));
+	else
+		fprintf(f, "; gas load +25 %%/h from %s",
+			when(t_ms_at(sc, FLOOD_RAMP_START_S), a, sizeof(a)));
 	for (unsigned si = 0; si < sc->cfg->section_count; si++) {
 		const struct scenario_section *sec = &sc->sec[si];
 		enum section_type type = sc->cfg->sections[si].geom.type;
 		if (type != SECTION_TRAY && type != SECTION_PACKED && type != SECTION_PACKED_BUBBLE)
 			continue;
 		const char *basis = flood_basis_name(sec->flood_basis);
-		fprintf(f, "; %s flood point (model flood_pct 100 %%%s%s) at %s, ramp stopped at %s "
+		fprintf(f, "; %s flood point (model flood_pct %.4g %%%s%s) at %s, ramp stopped at %s "
 			   "(load %.0f %%, flood_pct %.0f %%), back at design at %s",
-			sc->cfg->sections[si].name, basis[0] ? ", " : "", basis,
+			sc->cfg->sections[si].name, 100.0 * cap, basis[0] ? ", " : "", basis,
 			when(sec->flood_t_ms, a, sizeof(a)),
 			when(sec->peak_t_ms, b, sizeof(b)), 100.0 * sec->peak_load,
 			sec->peak_flood_pct, when(sec->recovered_t_ms, c, sizeof(c)));

@@ -56,6 +56,12 @@ struct scenario_opts {
 	double hours;        /* span, h; <= 0 or NAN: the scenario's default */
 	double period_s;     /* row period, s; <= 0 or NAN: the config's period_s */
 	int64_t start_t_ms;  /* time of the first row, ms since the Unix epoch */
+	/* The plant's real gas capacity over the model's (`--capacity`): the
+	 * plant floods where the model's flood_pct reaches 100 x capacity, and
+	 * its DP behaves accordingly. 0 or NAN: not given (1, and the flood
+	 * scenario keeps its design-load profile); given, the flood scenario runs
+	 * the calibration profile (scenario_help). */
+	double capacity;
 };
 
 /* Per-section state and what happened (the event fields are read-only for
@@ -68,6 +74,9 @@ struct scenario_section {
 	int phase;                    /* scenario phase (scenario.c) */
 	double phase_start_s;         /* run time the phase began, s */
 	double dp_factor;             /* plant factor on the model DP, - */
+	double flood_pct_design;      /* model flood_pct at the design point, % */
+	double load_base;             /* flood scenario: the load of the steady phases */
+	double ramp_per_s;            /* flood scenario: load ramp, design loads per s */
 	bool dp_model_missing;        /* model gave no DP: scaled nominal used */
 	double f_factor_nominal_pa05; /* F-factor at the design point (fallback DP) */
 	double dp_design_pa;          /* plant DP at the design point, Pa */
@@ -82,7 +91,8 @@ struct scenario_section {
 	double load_min;              /* lowest gas load multiplier, - */
 	struct section_result res;    /* model at the true point this row */
 	/* events */
-	int64_t flood_t_ms;           /* model flood_pct first reached 100 % (a loop: its stall) */
+	int64_t flood_t_ms;           /* the plant flooded: model flood_pct first reached
+				       * 100 % x capacity (a loop: its stall) */
 	enum flood_basis flood_basis; /* what drove flood_pct then (jet, downcomer ...) */
 	int64_t peak_t_ms;            /* flood ramp stopped (flood_pct 110 % or load cap) */
 	int64_t recovered_t_ms;       /* load back at nominal after the upset */
@@ -129,6 +139,9 @@ const char *scenario_name(enum scenario_kind k);
 
 /* Default span of a scenario, h. */
 double scenario_default_hours(enum scenario_kind k);
+
+/* The plant capacity of opt (1 when not given). */
+double scenario_capacity(const struct scenario_opts *opt);
 
 /* Static multi-line description of every scenario and its timeline, for --help. */
 const char *scenario_help(void);

@@ -324,6 +324,56 @@ static void test_key_that_does_not_apply_to_the_type_is_refused(void **state)
 	loaded_free(l);
 }
 
+static void test_calibration_and_gate_keys_default_and_load(void **state)
+{
+	(void)state;
+	struct loaded *l = load_text(base_ini);
+	assert_int_equal(l->rc, 0);
+	const struct section_cfg *c = &l->cfg.sections[0];
+	assert_true(c->geom.capacity_factor == 1.0);
+	assert_true(c->dp_factor == 1.0);
+	assert_true(c->steady_window_s == 600.0);
+	assert_true(c->steady_load_band == 0.015);
+	assert_true(c->normal_dp_sigmas == 4.0);
+	/* the diagnostic defaults do not touch a high alarm */
+	assert_true(l->cfg.alarms[0].on_delay_s == 0.0);
+	loaded_free(l);
+	l = load_edit("trays = 10\n", "trays = 10\ncapacity_factor = 0.85\ndp_factor = 1.1\n"
+				      "steady_window_s = 900\nsteady_load_band = 0.03\n"
+				      "normal_dp_sigmas = 5\n");
+	assert_int_equal(l->rc, 0);
+	c = &l->cfg.sections[0];
+	assert_true(c->geom.capacity_factor == 0.85);
+	assert_true(c->dp_factor == 1.1);
+	assert_true(c->steady_window_s == 900.0);
+	assert_true(c->steady_load_band == 0.03);
+	assert_true(c->normal_dp_sigmas == 5.0);
+	loaded_free(l);
+	l = load_edit("trays = 10\n", "trays = 10\ncapacity_factor = 0.1\n");
+	assert_error(l, 25, "capacity_factor");
+	loaded_free(l);
+}
+
+static void test_capacity_factor_on_a_bubble_section_is_refused(void **state)
+{
+	(void)state;
+	static const char bubble[] =
+		"[monitor]\nname = b\nperiod_s = 1\n"                         /* 1-3 */
+		"[tag.G]\nvalue = 100\nunit = Nm3/h\n"                        /* 4-6 */
+		"[tag.P]\nvalue = 1.2\nunit = bara\n"                         /* 7-9 */
+		"[tag.T]\nvalue = 30\nunit = degC\n"                          /* 10-12 */
+		"[section.R1]\ntype = bubble\ndiameter_m = 1\n"               /* 13-15 */
+		"overflow_height_m = 5\nclear_liquid_height_m = 3\n"           /* 16-17 */
+		"gas_flow = G\npressure = P\ntemperature = T\n"               /* 18-20 */
+		"gas_molar_mass_kgkmol = 29\ngas_viscosity_pas = 1.8e-5\n"     /* 21-22 */
+		"liquid_density_kgm3 = 1000\nliquid_viscosity_pas = 1e-3\n"    /* 23-24 */
+		"surface_tension_nm = 0.07\n"                                   /* 25 */
+		"capacity_factor = 0.9\n";                                      /* 26 */
+	struct loaded *l = load_text(bubble);
+	assert_error(l, 26, "capacity_factor does not apply to a bubble section");
+	loaded_free(l);
+}
+
 static void test_export_fields_continue_over_lines(void **state)
 {
 	(void)state;
@@ -644,6 +694,8 @@ int main(void)
 		cmocka_unit_test(test_long_line_is_refused_not_split),
 		cmocka_unit_test(test_alarm_on_unknown_field_is_refused),
 		cmocka_unit_test(test_key_that_does_not_apply_to_the_type_is_refused),
+		cmocka_unit_test(test_calibration_and_gate_keys_default_and_load),
+		cmocka_unit_test(test_capacity_factor_on_a_bubble_section_is_refused),
 		cmocka_unit_test(test_export_fields_continue_over_lines),
 		cmocka_unit_test(test_missing_file_is_enoent),
 		cmocka_unit_test(test_demo_config_is_valid),

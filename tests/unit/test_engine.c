@@ -331,6 +331,64 @@ static void test_standing_impeller_is_bad_and_raises_no_process_alarm(void **sta
 	assert_true(isnan(es->r.v[RF_FLOW_NUMBER]));
 }
 
+static void test_saturated_dp_keeps_flood_alarms_and_raises_no_diagnostic(void **state)
+{
+	struct rig *r = *state;
+	int dp = tag(r, "C402_PDI"), gas = tag(r, "C402_FI_GAS");
+	int diag = alarm_ix(r, "C402_DIAG"), flood = alarm_ix(r, "C402_FLOOD_H");
+	/* 10 min at design, then the DP climbs to the top of its 0..200 mbar
+	 * span in 1 mbar steps (no jump) at a flooding gas load (11 000 Nm3/h)
+	 * and stays pegged at 200-203 mbar (inside the 3 % band) for 20 min. */
+	run(r, 0, 600, -1, ALARM_STATE_UNACK);
+	r->values[gas] = 11000.0;
+	int t = 600;
+	for (double v = 20.0; v < 199.0; v += 1.0, t++) {
+		r->values[dp] = v;
+		run(r, t, 1, -1, ALARM_STATE_UNACK);
+	}
+	int diag_hits = 0, flood_hits = 0;
+	for (int i = 0; i < 1200; i++, t++) {
+		/* Live readings (frozen detection is on by default): every other
+		 * tag moves by 0.01 % of its value, the DP stays pegged. */
+		for (unsigned k = 0; k < r->cfg.tag_count; k++)
+			if ((int)k != dp && isfinite(r->cfg.tags[k].nominal))
+				r->values[k] = (k == (unsigned)gas ? 11000.0 : r->cfg.tags[k].nominal) *
+					       (1.0 + 1e-4 * (i % 2));
+		r->values[dp] = i % 3 ? 200.0 : 203.0;
+		diag_hits += run(r, t, 1, diag, ALARM_STATE_UNACK);
+		flood_hits += run(r, t, 1, flood, ALARM_STATE_UNACK);
+	}
+	const struct tag_state *ts = &r->eng.tags[dp];
+	assert_true(ts->saturated);
+	assert_string_equal(ts->reason, ALARM_REASON_SATURATED);
+	assert_int_equal(r->eng.sec[1].r.quality, FG_QUALITY_UNCERTAIN);
+	assert_int_equal(diag_hits, 0);
+	assert_false(r->eng.alarms[diag].active);
+	(void)flood_hits;
+	/* The flood alarm is (still) on: the model says flood and the DP branch
+	 * reads at least its bound. */
+	assert_true(r->eng.alarms[flood].state == ALARM_STATE_UNACK);
+	assert_true(r->eng.sec[1].r.v[RF_FLOOD_INDEX] >= 100.0);
+}
+
+static void test_diagnostic_default_delays_keep_a_flickering_input_clean(void **state)
+{
+	struct rig *r = *state;
+	int ai = alarm_ix(r, "C401_DIAG"), gas = tag(r, "C401_FI_GAS");
+	/* demo.ini gives C401_DIAG on_delay_s = 10 and no off_delay: the
+	 * default 60 s applies. */
+	assert_true(r->cfg.alarms[ai].off_delay_s == ALARM_DIAG_OFF_DELAY_DEFAULT_S);
+	/* A gas transmitter dropping out for 15 s every 45 s for 10 min raises
+	 * the diagnostic once and keeps it, rather than 13 times. */
+	run(r, 0, 60, -1, ALARM_STATE_UNACK);
+	int hits = 0;
+	for (int t = 60; t < 660; t++) {
+		r->status[gas] = (t % 45) < 15 ? TAG_STATUS_COMM_FAIL : TAG_STATUS_FRESH;
+		hits += run(r, t, 1, ai, ALARM_STATE_UNACK);
+	}
+	assert_int_equal(hits, 1);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -357,6 +415,12 @@ int main(void)
 						rig_setup_contactors, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_standing_impeller_is_bad_and_raises_no_process_alarm,
 						rig_setup_contactors, rig_teardown),
+		cmocka_unit_test_setup_teardown(
+			test_saturated_dp_keeps_flood_alarms_and_raises_no_diagnostic, rig_setup,
+			rig_teardown),
+		cmocka_unit_test_setup_teardown(
+			test_diagnostic_default_delays_keep_a_flickering_input_clean, rig_setup,
+			rig_teardown),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -31,7 +31,7 @@ static void test_correction_learns_the_plant_ratio_in_steady_operation(void **st
 	(void)state;
 	struct softsense s;
 	struct section_result r;
-	softsense_init(&s);
+	softsense_init(&s, NULL);
 	result_clear(&r);
 	struct softsense_input in = steady_input(5.0, 1200.0, 1000.0);
 	for (int i = 0; i < 6 * 3600; i++)
@@ -46,7 +46,7 @@ static void test_correction_is_frozen_outside_normal_operation(void **state)
 	(void)state;
 	struct softsense s;
 	struct section_result r;
-	softsense_init(&s);
+	softsense_init(&s, NULL);
 	result_clear(&r);
 	struct softsense_input in = steady_input(5.0, 1500.0, 1000.0);
 	in.normal = false; /* e.g. near flood: must not learn the flood as "the plant" */
@@ -60,12 +60,148 @@ static void test_correction_is_bounded(void **state)
 	(void)state;
 	struct softsense s;
 	struct section_result r;
-	softsense_init(&s);
+	softsense_init(&s, NULL);
 	result_clear(&r);
-	struct softsense_input in = steady_input(5.0, 9000.0, 1000.0); /* a broken transmitter */
+	/* Three times the model: inside the warm-up band (ln 4), so it learns,
+	 * and the bound holds it at 2. */
+	struct softsense_input in = steady_input(5.0, 3000.0, 1000.0);
 	for (int i = 0; i < 24 * 3600; i++)
 		softsense_step(&s, &in, (int64_t)i * 1000, &r);
 	assert_true(r.v[RF_DP_CORRECTION] == SOFTSENSE_CORR_MAX);
+}
+
+static void test_a_dp_beyond_any_plausible_ratio_is_never_learned(void **state)
+{
+	(void)state;
+	struct softsense s;
+	struct section_result r;
+	softsense_init(&s, NULL);
+	result_clear(&r);
+	/* Nine times the model (a broken transmitter or a wrong unit) is
+	 * outside the correction's own bounds, ln(2 / 0.5): not normal. */
+	struct softsense_input in = steady_input(5.0, 9000.0, 1000.0);
+	for (int i = 0; i < 3600; i++)
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+	assert_true(r.v[RF_DP_CORRECTION] == 1.0);
+	assert_false(s.normal);
+}
+
+static void test_correction_starts_at_dp_factor(void **state)
+{
+	(void)state;
+	struct softsense s;
+	struct section_result r;
+	struct softsense_cfg c;
+	softsense_cfg_defaults(&c);
+	c.dp_factor = 1.25;
+	softsense_init(&s, &c);
+	result_clear(&r);
+	struct softsense_input in = steady_input(5.0, 1250.0, 1000.0);
+	in.normal = false; /* nothing learned: the start value shows */
+	softsense_step(&s, &in, 0, &r);
+	assert_true(r.v[RF_DP_CORRECTION] == 1.25);
+}
+
+/* A deterministic deviate in [-0.5, 0.5). */
+static double uniform(uint64_t *x)
+{
+	*x ^= *x << 13, *x ^= *x >> 7, *x ^= *x << 17; /* xorshift64 */
+	return (double)(*x >> 11) / 9007199254740992.0 - 0.5;
+}
+
+static void test_gate_stops_learning_a_slowly_developing_excursion(void **state)
+{
+	(void)state;
+	struct softsense s;
+	struct section_result r;
+	softsense_init(&s, NULL);
+	result_clear(&r);
+	uint64_t x = 88172645463325252ull;
+	/* 2 h steady at 1.1 x model with 1 % (standard deviation 0.29 %: uniform
+	 * of width 1 %) noise, then the DP grows 20 % per hour at the same load
+	 * (fouling or foaming) for 2 h. The band is 4 sigma of the learned
+	 * scatter, floored at 1 %: 4 %. The correction may learn only the first
+	 * 4 % of the rise (12 min), a fraction of it at its 30 min time constant:
+	 * it must end below 1.1 x 1.04 = 1.144, where following the DP would take
+	 * it to 1.1 x 1.4 = 1.54. */
+	for (int i = 0; i < 4 * 3600; i++) {
+		double rise = i < 2 * 3600 ? 1.0 : 1.0 + 0.2 * (i - 2 * 3600) / 3600.0;
+		struct softsense_input in = steady_input(5.0, 1100.0 * rise * (1.0 + 0.01 * uniform(&x)),
+							 1000.0);
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+		if (i == 2 * 3600 - 1)
+			assert_true(fabs(r.v[RF_DP_CORRECTION] - 1.1) < 0.005);
+	}
+	assert_true(r.v[RF_DP_CORRECTION] < 1.144);
+	assert_false(s.normal);
+	assert_false(s.learning);
+}
+
+static void test_a_load_ramp_is_not_steady(void **state)
+{
+	(void)state;
+	struct softsense s;
+	struct section_result r;
+	softsense_init(&s, NULL);
+	result_clear(&r);
+	/* +20 %/h of the load: an exponential window of 600 s lags it by
+	 * 0.2 x 600 / 3600 = 3.3 % > the 1.5 % band, once the window has filled. */
+	bool any_steady = false;
+	for (int i = 0; i < 3600; i++) {
+		double g = 5.0 * (1.0 + 0.2 * i / 3600.0);
+		struct softsense_input in = steady_input(g, 1000.0 * g * g / 25.0, 1000.0 * g * g / 25.0);
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+		if (i > 1800)
+			any_steady = any_steady || s.steady;
+	}
+	assert_false(any_steady);
+	/* The same at a constant load is steady. */
+	softsense_init(&s, NULL);
+	struct softsense_input in = steady_input(5.0, 1000.0, 1000.0);
+	for (int i = 0; i < 600; i++)
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+	assert_true(s.steady);
+}
+
+static void test_a_saturated_dp_is_never_learned(void **state)
+{
+	(void)state;
+	struct softsense s;
+	struct section_result r;
+	softsense_init(&s, NULL);
+	result_clear(&r);
+	struct softsense_input in = steady_input(5.0, 1200.0, 1000.0);
+	in.dp_saturated = true;
+	for (int i = 0; i < 3600; i++)
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+	assert_true(r.v[RF_DP_CORRECTION] == 1.0);
+	assert_true(isnan(r.v[RF_DP_NOISE_RATIO]));
+}
+
+static void test_dp_branch_is_the_load_the_relation_gives_bounded(void **state)
+{
+	(void)state;
+	struct softsense s;
+	struct section_result r;
+	softsense_init(&s, NULL);
+	result_clear(&r);
+	/* Correction 1 (not learned: inputs not normal), model exponent 1.5,
+	 * flood_pct 80: DP 1.2 x the relation means the load that would give it
+	 * is 1.2^(1/1.5) = 1.12924 x the present one: 90.339 %. Hand arithmetic;
+	 * the smoothing has settled after 20 min (40 time constants). */
+	struct softsense_input in = steady_input(5.0, 1200.0, 1000.0);
+	in.normal = false;
+	in.dp_exponent = 1.5;
+	in.flood_pct = 80.0;
+	for (int i = 0; i < 1200; i++)
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+	assert_true(fabs(r.v[RF_DP_LOAD_PCT] - 80.0 * pow(1.2, 1.0 / 1.5)) < 1e-6);
+	assert_true(fabs(80.0 * pow(1.2, 1.0 / 1.5) - 90.339) < 1e-3);
+	/* A DP five times the relation: bounded at 150 %, not 234 %. */
+	in.dp_pa = 5000.0;
+	for (int i = 1200; i < 2400; i++)
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+	assert_true(r.v[RF_DP_LOAD_PCT] == SOFTSENSE_DP_LOAD_MAX_PCT);
 }
 
 static void test_slope_recovers_the_exponent_when_load_moves(void **state)
@@ -73,7 +209,7 @@ static void test_slope_recovers_the_exponent_when_load_moves(void **state)
 	(void)state;
 	struct softsense s;
 	struct section_result r;
-	softsense_init(&s);
+	softsense_init(&s, NULL);
 	result_clear(&r);
 	/* DP = c F^1.8 with F swinging +-15 % over 10 min: RLS must find 1.8. */
 	for (int i = 0; i < 3600; i++) {
@@ -91,7 +227,7 @@ static void test_slope_is_undefined_when_load_is_flat(void **state)
 	(void)state;
 	struct softsense s;
 	struct section_result r;
-	softsense_init(&s);
+	softsense_init(&s, NULL);
 	result_clear(&r);
 	for (int i = 0; i < 3600; i++) {
 		double f = 2.0 * (1.0 + 0.002 * sin(i / 30.0));
@@ -106,7 +242,7 @@ static void test_noise_ratio_rises_when_dp_gets_noisier(void **state)
 	(void)state;
 	struct softsense s;
 	struct section_result r;
-	softsense_init(&s);
+	softsense_init(&s, NULL);
 	result_clear(&r);
 	uint64_t x = 88172645463325252ull;
 	for (int i = 0; i < 4 * 3600; i++) {
@@ -135,7 +271,7 @@ static void test_inventory_balances_flows_and_sump_level(void **state)
 	(void)state;
 	struct softsense s;
 	struct section_result r;
-	softsense_init(&s);
+	softsense_init(&s, NULL);
 	result_clear(&r);
 	/* In 10 kg/s, out 9 kg/s, rho 1000: 1e-3 m3/s accumulates. Sump 2 m2
 	 * rises 0.2e-3 m/s: 0.4e-3 m3/s of it is in the sump, 0.6e-3 m3/s in
@@ -152,12 +288,47 @@ static void test_inventory_balances_flows_and_sump_level(void **state)
 	assert_true(fabs(r.v[RF_INVENTORY_M3] - 0.6) < 1e-9);
 }
 
+static void test_inventory_learns_the_meters_imbalance_when_steady(void **state)
+{
+	(void)state;
+	struct softsense s;
+	struct section_result r;
+	softsense_init(&s, NULL);
+	result_clear(&r);
+	/* A 1 % meter bias (in 10, out 9.9 kg/s, rho 1000: 1e-4 m3/s) at a steady
+	 * level, in steady normal operation, for 10 h. Without the learned
+	 * imbalance the inventory would read 3.6 m3; learned after the 30 min
+	 * warm-up with a 2 h time constant, what remains is the integral of the
+	 * unlearned part: 1e-4 x (1800 + 7200 (1 - e^-4.75)) = 0.8937 m3 (hand
+	 * arithmetic), and its rate has fallen to 1e-4 x e^-4.75 per second. */
+	for (int i = 0; i <= 10 * 3600; i++) {
+		struct softsense_input in = steady_input(5.0, NAN, NAN);
+		in.liquid_in_kgs = 10.0;
+		in.liquid_out_kgs = 9.9;
+		in.rho_l_kgm3 = 1000.0;
+		in.sump_area_m2 = 2.0;
+		in.level_m = 1.0;
+		softsense_step(&s, &in, (int64_t)i * 1000, &r);
+	}
+	double expect = 1e-4 * (1800.0 + 7200.0 * (1.0 - exp(-(36000.0 - 1800.0) / 7200.0)));
+	/* 1 s steps of a first-order filter: relative error of order dt/tau. */
+	assert_true(fabs(r.v[RF_INVENTORY_M3] - expect) < 2e-3 * expect);
+	assert_true(r.v[RF_INVENTORY_M3] < 0.25 * 3.6);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_correction_learns_the_plant_ratio_in_steady_operation),
 		cmocka_unit_test(test_correction_is_frozen_outside_normal_operation),
 		cmocka_unit_test(test_correction_is_bounded),
+		cmocka_unit_test(test_a_dp_beyond_any_plausible_ratio_is_never_learned),
+		cmocka_unit_test(test_correction_starts_at_dp_factor),
+		cmocka_unit_test(test_gate_stops_learning_a_slowly_developing_excursion),
+		cmocka_unit_test(test_a_load_ramp_is_not_steady),
+		cmocka_unit_test(test_a_saturated_dp_is_never_learned),
+		cmocka_unit_test(test_dp_branch_is_the_load_the_relation_gives_bounded),
+		cmocka_unit_test(test_inventory_learns_the_meters_imbalance_when_steady),
 		cmocka_unit_test(test_slope_recovers_the_exponent_when_load_moves),
 		cmocka_unit_test(test_slope_is_undefined_when_load_is_flat),
 		cmocka_unit_test(test_noise_ratio_rises_when_dp_gets_noisier),

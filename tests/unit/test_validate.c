@@ -218,6 +218,62 @@ static void test_frozen_default_window_and_span_end_exempt(void **state)
 	assert_null(p.reason);
 }
 
+/* A DP rising into the top of its 0..500 mbar span and pegging there. */
+static void test_dp_reaching_its_max_without_a_jump_is_saturated(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	c.frozen_s = 60.0;
+	c.frozen_tolerance = 0.01;
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_set_saturable(&s, true);
+	int64_t t = 0;
+	for (double v = 400.0; v < 496.0; v += 2.0) /* 2 mbar/s: no jump */
+		validate_step(&s, S(t += 1000), v, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	/* At max, then 1 % of span above it (inside the 3 % band): saturated,
+	 * "at least max", for ten minutes: never frozen, never bad. */
+	for (int i = 0; i < 600; i++) {
+		validate_step(&s, S(t += 1000), i % 2 ? 500.0 : 505.0, TAG_STATUS_FRESH);
+		assert_int_equal(s.quality, FG_QUALITY_UNCERTAIN);
+		assert_string_equal(s.reason, ALARM_REASON_SATURATED);
+		assert_true(s.saturated);
+		assert_true(s.value == 500.0);
+	}
+	/* Back below the band: good again. */
+	validate_step(&s, S(t += 1000), 480.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_GOOD);
+	assert_false(s.saturated);
+}
+
+static void test_dp_jumping_to_its_max_or_beyond_the_band_is_bad(void **state)
+{
+	(void)state;
+	struct tag_cfg c = tag();
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	validate_set_saturable(&s, true);
+	/* From 200 mbar straight to 505 (a transmitter failing high): bad. */
+	validate_step(&s, S(1000), 200.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(2000), 505.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	assert_string_equal(s.reason, ALARM_REASON_OUT_OF_RANGE);
+	/* Approached from 490, but 4 % of span above max (beyond NAMUR NE 43's
+	 * 20.5 mA = 103.1 %): bad. */
+	validate_init(&s, &c, 1.0);
+	validate_set_saturable(&s, true);
+	validate_step(&s, S(1000), 490.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(2000), 520.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	/* A tag that is not a DP keeps the old rule: above max is bad. */
+	validate_init(&s, &c, 1.0);
+	validate_step(&s, S(1000), 490.0, TAG_STATUS_FRESH);
+	validate_step(&s, S(2000), 505.0, TAG_STATUS_FRESH);
+	assert_int_equal(s.quality, FG_QUALITY_BAD);
+	assert_string_equal(s.reason, ALARM_REASON_OUT_OF_RANGE);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -232,6 +288,8 @@ int main(void)
 		cmocka_unit_test(test_frozen_value_turns_uncertain_after_frozen_s),
 		cmocka_unit_test(test_median_removes_an_outlier),
 		cmocka_unit_test(test_first_order_lag_follows_its_time_constant),
+		cmocka_unit_test(test_dp_reaching_its_max_without_a_jump_is_saturated),
+		cmocka_unit_test(test_dp_jumping_to_its_max_or_beyond_the_band_is_bad),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
