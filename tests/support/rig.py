@@ -148,14 +148,15 @@ def plant_csv(tmp, rows=600):
 
 
 def config(tmp, mqtt_port, feed_port, exp_port, events=None, state=None, extra=None):
-    """The demo config on spare ports, diagnostic alarms after 1 s instead of 10."""
+    """The demo config on spare ports, diagnostic alarms after 1 s instead of 10, and
+    back after 1 s instead of their default 60 s off-delay."""
     text = open("configs/demo.ini").read()
     text = (text.replace("port = 15020", f"port = {feed_port}")
             .replace("tcp://127.0.0.1:18830", f"tcp://127.0.0.1:{mqtt_port}")
             .replace("listen = 127.0.0.1:15021", f"listen = 127.0.0.1:{exp_port}")
             .replace("build/demo/alarm-state.txt", state or os.path.join(tmp, "state.txt"))
             .replace("build/demo/events.jsonl", events or os.path.join(tmp, "events.jsonl"))
-            .replace("on_delay_s = 10", "on_delay_s = 1"))
+            .replace("on_delay_s = 10", "on_delay_s = 1\noff_delay_s = 1"))
     for section, lines in (extra or {}).items():
         text = text.replace(f"[{section}]\n", f"[{section}]\n{lines}\n", 1)
     path = os.path.join(tmp, "fault.ini")
