@@ -107,14 +107,30 @@ int cmd_check(int argc, char **argv)
 
 static void rate_usage(FILE *f)
 {
-	fprintf(f, "usage: floodgauge rate -c FILE --section NAME [--set TAG=VALUE]... [--json]\n\n"
+	fprintf(f, "usage: floodgauge rate -c FILE --section NAME [--set TAG=VALUE]...\n"
+		   "                       [--sweep TAG=A:B:STEP] [--json]\n\n"
 		   "Evaluates one operating point of a section. Tag values are in each tag's own\n"
 		   "unit; a tag not set takes its 'value =' or its 'nominal ='. Prints every\n"
-		   "result field that applies: an aligned table, or one JSON object with --json.\n");
+		   "result field that applies: an aligned table, or one JSON object with --json.\n"
+		   "Only tags that feed the section can be set.\n"
+		   "--sweep evaluates TAG from A to B in steps of STEP: one row per value (with\n"
+		   "--json an array of result objects, each with the swept value), with the DP\n"
+		   "the model predicts at each point in place of the DP tag's nominal (unless\n"
+		   "the DP tag is set or swept), and the gas and liquid loads at 80, 85 and 90 %%\n"
+		   "of flood (model flood_pct) at the point's liquid-to-gas ratio.\n");
+}
+
+static bool tag_feeds(const struct section_cfg *s, int ti)
+{
+	for (int k = 0; k < SIGNAL_COUNT; k++)
+		if (s->signal[k] == ti)
+			return true;
+	return false;
 }
 
 /* Applies one --set TAG=VALUE. Returns 0 or prints why and returns -EINVAL. */
-static int apply_set(const struct fg_config *cfg, const char *arg, double *values)
+static int apply_set(const struct fg_config *cfg, const struct section_cfg *s, const char *arg,
+		     double *values)
 {
 	const char *eq = strchr(arg, '=');
 	char name[FG_NAME_MAX];
@@ -129,6 +145,15 @@ static int apply_set(const struct fg_config *cfg, const char *arg, double *value
 		char dym[160];
 		fprintf(stderr, "floodgauge rate: --set: tag '%s' is not in %s%s\n", name, cfg->path,
 			config_suggest(cfg, CONFIG_NAME_TAG, name, dym, sizeof(dym)));
+		return -EINVAL;
+	}
+	if (!tag_feeds(s, ti)) {
+		fprintf(stderr, "floodgauge rate: --set: tag '%s' does not feed section %s (its "
+				"tags:", name, s->name);
+		for (int k = 0; k < SIGNAL_COUNT; k++)
+			if (s->signal[k] >= 0)
+				fprintf(stderr, " %s", cfg->tags[s->signal[k]].name);
+		fprintf(stderr, ")\n");
 		return -EINVAL;
 	}
 	char *end;
@@ -216,8 +241,206 @@ static void list_sections(const struct fg_config *cfg)
 	fputc('\n', stderr);
 }
 
+/* ---- --sweep ------------------------------------------------------------ */
+
+#define SWEEP_MAX 1000 /* rows; more is a typo in STEP */
+
+struct sweep {
+	int ti;             /* the swept tag, -1 when no sweep */
+	double v[SWEEP_MAX];
+	unsigned count;
+	bool predict_dp;    /* the DP tag is neither set nor swept: use the model's */
+};
+
+/* "TAG=A:B:STEP" with A <= B, STEP > 0 (B included when a whole number of
+ * steps away). Returns 0, or prints why and returns -EINVAL. */
+static int parse_sweep(const struct fg_config *cfg, const struct section_cfg *s, const char *arg,
+		       struct sweep *sw)
+{
+	const char *eq = strchr(arg, '=');
+	char name[FG_NAME_MAX];
+	if (eq == NULL || eq == arg || (size_t)(eq - arg) >= sizeof(name))
+		goto bad;
+	memcpy(name, arg, (size_t)(eq - arg));
+	name[eq - arg] = '\0';
+	sw->ti = config_tag_index(cfg, name);
+	if (sw->ti < 0 || !tag_feeds(s, sw->ti)) {
+		fprintf(stderr, "floodgauge rate: --sweep: tag '%s' %s section %s\n", name,
+			sw->ti < 0 ? "is not in the config, so it does not feed"
+				   : "does not feed", s->name);
+		return -EINVAL;
+	}
+	char *end;
+	const char *p = eq + 1;
+	double a = strtod(p, &end);
+	if (end == p || *end != ':')
+		goto bad;
+	p = end + 1;
+	double b = strtod(p, &end);
+	if (end == p || *end != ':')
+		goto bad;
+	p = end + 1;
+	double step = strtod(p, &end);
+	if (end == p || *end != '\0' || !isfinite(a) || !isfinite(b) || !isfinite(step) ||
+	    b < a || step <= 0.0)
+		goto bad;
+	double n = floor((b - a) / step + 1e-9) + 1.0;
+	if (n > SWEEP_MAX) {
+		fprintf(stderr, "floodgauge rate: --sweep %s: %.0f values; at most %d\n", arg, n,
+			SWEEP_MAX);
+		return -EINVAL;
+	}
+	sw->count = (unsigned)n;
+	for (unsigned i = 0; i < sw->count; i++)
+		sw->v[i] = a + step * (double)i;
+	return 0;
+bad:
+	fprintf(stderr, "floodgauge rate: --sweep '%s' is not TAG=A:B:STEP (A <= B, STEP > 0)\n",
+		arg);
+	return -EINVAL;
+}
+
+/* One point; with predict_dp the DP the model predicts there stands in for the
+ * DP tag (a first evaluation without DP gives it). */
+static void eval_point(const struct fg_config *cfg, unsigned si, const double *values,
+		       bool predict_dp, struct section_result *r)
+{
+	const struct section_cfg *s = &cfg->sections[si];
+	struct section_point p;
+	point_from_tags(cfg, si, values, &p);
+	if (predict_dp) {
+		p.dp_pa = NAN;
+		section_eval(&s->geom, &s->props, &p, r);
+		p.dp_pa = r->v[RF_DP_MODEL_PA];
+	}
+	section_eval(&s->geom, &s->props, &p, r);
+}
+
+/* The factor on the gas and liquid loads (same liquid-to-gas ratio) at which
+ * the model's flood_pct reaches target; NAN when out of reach. flood_pct
+ * rises with the load at a fixed ratio (every model here). */
+static double load_factor_at(const struct fg_config *cfg, unsigned si, const double *values,
+			     double target)
+{
+	const struct section_cfg *s = &cfg->sections[si];
+	int gi = s->signal[SIGNAL_GAS_FLOW], li = s->signal[SIGNAL_LIQUID_FLOW];
+	static double v[FG_TAGS_MAX];
+	double lo = 0.0, hi = 1.0;
+	struct section_result r;
+	for (int n = 0;; n++) {
+		if (n == 40)
+			return NAN;
+		memcpy(v, values, cfg->tag_count * sizeof(v[0]));
+		v[gi] *= hi;
+		if (li >= 0)
+			v[li] *= hi;
+		eval_point(cfg, si, v, false, &r);
+		if (isfinite(r.v[RF_FLOOD_PCT]) && r.v[RF_FLOOD_PCT] >= target)
+			break;
+		lo = hi;
+		hi *= 1.5;
+	}
+	for (int i = 0; i < 48; i++) { /* 2^-48 of the bracket */
+		double mid = 0.5 * (lo + hi);
+		memcpy(v, values, cfg->tag_count * sizeof(v[0]));
+		v[gi] *= mid;
+		if (li >= 0)
+			v[li] *= mid;
+		eval_point(cfg, si, v, false, &r);
+		if (isfinite(r.v[RF_FLOOD_PCT]) && r.v[RF_FLOOD_PCT] >= target)
+			hi = mid;
+		else
+			lo = mid;
+	}
+	return 0.5 * (lo + hi);
+}
+
+static const double sweep_pct[3] = {80.0, 85.0, 90.0};
+
+static int sweep_run(const struct fg_config *cfg, unsigned si, double *values,
+		     const struct sweep *sw, bool json)
+{
+	const struct section_cfg *s = &cfg->sections[si];
+	const struct tag_cfg *st = &cfg->tags[sw->ti];
+	int gi = s->signal[SIGNAL_GAS_FLOW], li = s->signal[SIGNAL_LIQUID_FLOW];
+	int dpi = s->signal[SIGNAL_DP];
+	const struct unit *dpu = dpi >= 0 ? cfg->tags[dpi].unit : NULL;
+	const char *gu = cfg->tags[gi].unit ? cfg->tags[gi].unit->name : "";
+	const char *lu = li >= 0 && cfg->tags[li].unit ? cfg->tags[li].unit->name : "";
+	if (json)
+		putchar('[');
+	else
+		printf("section %s (%s): %s swept, %s; DP %s\n  %10s %9s %9s %10s %9s"
+		       "  gas/liquid at 80, 85, 90 %% of flood (%s, %s)\n",
+		       s->name, config_section_type_name(s->geom.type), st->name,
+		       st->unit ? st->unit->name : "", sw->predict_dp ? "predicted by the model"
+								      : "as set",
+		       st->name, "flood_pct", "flood_idx", "dp_model", "quality", gu, lu);
+	for (unsigned i = 0; i < sw->count; i++) {
+		values[sw->ti] = sw->v[i];
+		struct section_result r;
+		eval_point(cfg, si, values, sw->predict_dp, &r);
+		double g[3], l[3];
+		for (int k = 0; k < 3; k++) {
+			double f = load_factor_at(cfg, si, values, sweep_pct[k]);
+			g[k] = f * values[gi];
+			l[k] = li >= 0 ? f * values[li] : NAN;
+		}
+		if (json) {
+			char buf[4096];
+			struct jsonw w;
+			jsonw_init(&w, buf, sizeof(buf));
+			jsonw_open(&w);
+			jsonw_str(&w, "section", s->name);
+			jsonw_str(&w, "type", config_section_type_name(s->geom.type));
+			jsonw_str(&w, "sweep_tag", st->name);
+			jsonw_num(&w, "sweep_value", sw->v[i]);
+			jsonw_num(&w, st->name, sw->v[i]);
+			jsonw_result(&w, &r);
+			static const char *const gk[3] = {"gas_at_flood_80", "gas_at_flood_85",
+							  "gas_at_flood_90"};
+			static const char *const lk[3] = {"liquid_at_flood_80", "liquid_at_flood_85",
+							  "liquid_at_flood_90"};
+			for (int k = 0; k < 3; k++) {
+				jsonw_num(&w, gk[k], g[k]);
+				if (li >= 0)
+					jsonw_num(&w, lk[k], l[k]);
+			}
+			jsonw_close(&w);
+			if (jsonw_finish(&w) < 0)
+				return EXIT_RUNTIME;
+			printf("%s%s", i ? ",\n " : "", buf);
+			continue;
+		}
+		char v[NUMFMT_FULL_SIZE], fp[NUMFMT_FULL_SIZE], fi[NUMFMT_FULL_SIZE],
+			dp[NUMFMT_FULL_SIZE];
+		numfmt_human(sw->v[i], st->unit ? st->unit->name : NULL, v, sizeof v);
+		numfmt_human(r.v[RF_FLOOD_PCT], "%", fp, sizeof fp);
+		numfmt_human(r.v[RF_FLOOD_INDEX], "%", fi, sizeof fi);
+		double dpv = r.v[RF_DP_MODEL_PA];
+		if (dpu != NULL && units_usable_as_dp(dpu))
+			dpv /= dpu->factor;
+		numfmt_human(dpv, NULL, dp, sizeof dp);
+		printf("  %10s %9s %9s %10s %9s ", v, fp, fi, dp, fg_quality_name(r.quality));
+		for (int k = 0; k < 3; k++) {
+			char a[NUMFMT_FULL_SIZE], b[NUMFMT_FULL_SIZE];
+			numfmt_human(g[k], gu, a, sizeof a);
+			numfmt_human(l[k], lu, b, sizeof b);
+			printf(" %s/%s", a, li >= 0 ? b : "-");
+		}
+		putchar('\n');
+	}
+	if (json) {
+		puts("]");
+		return 0;
+	}
+	printf("  dp_model in %s\n", dpu != NULL && units_usable_as_dp(dpu) ? dpu->name : "Pa");
+	fg_caution_print(stdout);
+	return 0;
+}
+
 static int rate_eval(const struct fg_config *cfg, const char *section, char **sets,
-		     unsigned set_count, bool json)
+		     unsigned set_count, const char *sweep_arg, bool json)
 {
 	if (section == NULL) {
 		fprintf(stderr, "floodgauge rate: which section? give --section NAME\n");
@@ -236,10 +459,23 @@ static int rate_eval(const struct fg_config *cfg, const char *section, char **se
 	for (unsigned i = 0; i < cfg->tag_count; i++)
 		values[i] = isfinite(cfg->tags[i].fixed_value) ? cfg->tags[i].fixed_value
 							       : cfg->tags[i].nominal;
-	for (unsigned i = 0; i < set_count; i++)
-		if (apply_set(cfg, sets[i], values) != 0)
-			return EXIT_USAGE;
 	const struct section_cfg *s = &cfg->sections[si];
+	for (unsigned i = 0; i < set_count; i++)
+		if (apply_set(cfg, s, sets[i], values) != 0)
+			return EXIT_USAGE;
+	static struct sweep sw;
+	sw.ti = -1;
+	if (sweep_arg != NULL) {
+		if (parse_sweep(cfg, s, sweep_arg, &sw) != 0)
+			return EXIT_USAGE;
+		values[sw.ti] = sw.v[0];
+		int dpi = s->signal[SIGNAL_DP];
+		sw.predict_dp = dpi >= 0 && dpi != sw.ti;
+		for (unsigned i = 0; i < set_count && sw.predict_dp; i++)
+			if (strncmp(sets[i], cfg->tags[dpi].name, strlen(cfg->tags[dpi].name)) == 0 &&
+			    sets[i][strlen(cfg->tags[dpi].name)] == '=')
+				sw.predict_dp = false;
+	}
 	int missing = 0;
 	int dens = s->signal[SIGNAL_GAS_DENSITY];
 	bool have_density = dens >= 0 && isfinite(values[dens]);
@@ -256,6 +492,8 @@ static int rate_eval(const struct fg_config *cfg, const char *section, char **se
 	}
 	if (missing)
 		return EXIT_USAGE;
+	if (sw.ti >= 0)
+		return sweep_run(cfg, (unsigned)si, values, &sw, json);
 	struct section_point p;
 	struct section_result r;
 	point_from_tags(cfg, (unsigned)si, values, &p);
@@ -271,10 +509,11 @@ int cmd_rate(int argc, char **argv)
 	static const struct option opts[] = {{"config", required_argument, NULL, 'c'},
 					     {"section", required_argument, NULL, 's'},
 					     {"set", required_argument, NULL, 'S'},
+					     {"sweep", required_argument, NULL, 'w'},
 					     {"json", no_argument, NULL, 'j'},
 					     {"help", no_argument, NULL, 'h'},
 					     {0}};
-	const char *path = NULL, *section = NULL;
+	const char *path = NULL, *section = NULL, *sweep = NULL;
 	static char *sets[FG_TAGS_MAX];
 	unsigned set_count = 0;
 	bool json = false;
@@ -292,6 +531,7 @@ int cmd_rate(int argc, char **argv)
 			sets[set_count++] = optarg;
 			break;
 		case 'j': json = true; break;
+		case 'w': sweep = optarg; break;
 		case 'h': rate_usage(stdout); return 0;
 		default: rate_usage(stderr); return EXIT_USAGE;
 		}
@@ -303,7 +543,7 @@ int cmd_rate(int argc, char **argv)
 	struct fg_config *cfg = load_or_report(path);
 	if (cfg == NULL)
 		return EXIT_USAGE;
-	int rc = rate_eval(cfg, section, sets, set_count, json);
+	int rc = rate_eval(cfg, section, sets, set_count, sweep, json);
 	free(cfg);
 	return rc;
 }
