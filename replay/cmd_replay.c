@@ -30,6 +30,7 @@
 #include "histread.h"
 #include "engine.h"
 #include "numfmt.h"
+#include "opwindow.h"
 #include "report.h"
 #include "results.h"
 #include "rowqueue.h"
@@ -64,6 +65,13 @@ struct replay {
 	struct report rp;
 	struct report_summary sum;
 	struct alarmperf perf;
+	/* the operating window: per section, the tag values at the row of the
+	 * highest flood_index, and the largest x load seen */
+	double ref_flood[FG_SECTIONS_MAX];
+	int64_t ref_t_ms[FG_SECTIONS_MAX];
+	double x_max[FG_SECTIONS_MAX];
+	double loads[2 * FG_SECTIONS_MAX];
+	double (*ref_vals)[FG_TAGS_MAX];
 	unsigned marker_count;           /* --event, in the order given */
 	struct report_marker markers[REPORT_MARKERS_MAX];
 	uint64_t rows_used, rows_outside;
@@ -320,6 +328,32 @@ static int bind_columns(struct replay *rp)
 	return 0;
 }
 
+/* Where a section's loads come from: gas flow (y) and liquid flow, else the
+ * level (x); and the DP tag's unit. */
+static void section_tags(const struct fg_config *cfg, unsigned k, struct report_section *rs)
+{
+	const struct section_cfg *s = &cfg->sections[k];
+	int g = s->signal[SIGNAL_GAS_FLOW], l = s->signal[SIGNAL_LIQUID_FLOW];
+	int x = l >= 0 ? l : s->signal[SIGNAL_LEVEL], dp = s->signal[SIGNAL_DP];
+	if (g >= 0) {
+		snprintf(rs->load_y_tag, FG_NAME_MAX, "%s", cfg->tags[g].name);
+		snprintf(rs->load_y_unit, REPORT_WORD_MAX, "%s",
+			 cfg->tags[g].unit ? cfg->tags[g].unit->name : "");
+	}
+	if (x >= 0) {
+		snprintf(rs->load_x_tag, FG_NAME_MAX, "%s", cfg->tags[x].name);
+		snprintf(rs->load_x_unit, REPORT_WORD_MAX, "%s",
+			 cfg->tags[x].unit ? cfg->tags[x].unit->name : "");
+		snprintf(rs->load_x_what, REPORT_WORD_MAX, "%s", l >= 0 ? "liquid flow" : "level");
+	}
+	if (dp >= 0 && cfg->tags[dp].unit != NULL && units_usable_as_dp(cfg->tags[dp].unit)) {
+		snprintf(rs->dp_unit, REPORT_WORD_MAX, "%s", cfg->tags[dp].unit->name);
+		rs->dp_pa_per_unit = cfg->tags[dp].unit->factor;
+	}
+	if (s->geom.type == SECTION_BUBBLE || s->geom.type == SECTION_PACKED_BUBBLE)
+		rs->overflow_m = s->geom.bubble.overflow_height_m;
+}
+
 static int marker_cmp(const void *a, const void *b)
 {
 	int64_t x = ((const struct report_marker *)a)->t_ms;
@@ -343,6 +377,7 @@ static int report_layout_from(struct replay *rp)
 		snprintf(lay.sections[i].name, FG_NAME_MAX, "%s", cfg->sections[i].name);
 		snprintf(lay.sections[i].type, REPORT_WORD_MAX, "%s",
 			 config_section_type_name(cfg->sections[i].geom.type));
+		section_tags(cfg, i, &lay.sections[i]);
 	}
 	lay.alarm_count = cfg->alarm_count;
 	for (unsigned i = 0; i < cfg->alarm_count; i++) {
@@ -454,6 +489,54 @@ static int write_results(struct replay *rp, int64_t t_ms,
 	return 0;
 }
 
+static double tag_now(const struct engine *e, int ti)
+{
+	if (ti < 0 || e->tags[ti].quality == FG_QUALITY_BAD)
+		return NAN;
+	return e->tags[ti].value;
+}
+
+/* The loads of every section in their tags' units, for the report; and the
+ * row of each section's highest flood_index, whose tag values set the
+ * operating window's limits. */
+static void track_loads(struct replay *rp, int64_t t_ms)
+{
+	static double ref_vals[FG_SECTIONS_MAX][FG_TAGS_MAX];
+	const struct fg_config *cfg = rp->cfg;
+	const struct engine *e = rp->eng;
+	for (unsigned k = 0; k < cfg->section_count; k++) {
+		const struct section_cfg *s = &cfg->sections[k];
+		int l = s->signal[SIGNAL_LIQUID_FLOW];
+		rp->loads[2 * k] = tag_now(e, s->signal[SIGNAL_GAS_FLOW]);
+		rp->loads[2 * k + 1] = tag_now(e, l >= 0 ? l : s->signal[SIGNAL_LEVEL]);
+		if (isfinite(rp->loads[2 * k + 1]) && !(rp->loads[2 * k + 1] <= rp->x_max[k]))
+			rp->x_max[k] = rp->loads[2 * k + 1];
+		double fi = e->sec[k].r.v[RF_FLOOD_INDEX];
+		if (e->sec[k].r.quality == FG_QUALITY_BAD || !isfinite(fi) ||
+		    !isfinite(rp->loads[2 * k]) || fi <= rp->ref_flood[k])
+			continue;
+		rp->ref_flood[k] = fi;
+		rp->ref_t_ms[k] = t_ms;
+		for (unsigned ti = 0; ti < cfg->tag_count; ti++)
+			ref_vals[k][ti] = e->tags[ti].value;
+	}
+	rp->ref_vals = ref_vals;
+}
+
+/* The operating windows, at the end of the run. */
+static void set_windows(struct replay *rp)
+{
+	for (unsigned k = 0; k < rp->cfg->section_count; k++) {
+		static struct report_window w;
+		memset(&w, 0, sizeof(w));
+		if (rp->ref_vals == NULL || rp->ref_t_ms[k] == REPORT_T_NONE ||
+		    opwindow_compute(rp->cfg, k, rp->ref_vals[k], rp->x_max[k] * 1.25, &w) != 0)
+			continue;
+		w.ref_t_ms = rp->ref_t_ms[k];
+		report_set_window(&rp->rp, k, &w);
+	}
+}
+
 static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 		    const enum tag_status *status)
 {
@@ -467,7 +550,8 @@ static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 	if (write_results(rp, t_ms, res) != 0 || write_events(rp) != 0)
 		return -EIO;
 	engine_events_clear(rp->eng);
-	report_add_row(&rp->rp, t_ms, copy);
+	track_loads(rp, t_ms);
+	report_add_row_loads(&rp->rp, t_ms, copy, rp->loads);
 	if (rp->rows_used > 0) {
 		/* Gaps longer than ten periods count for one period only. */
 		double dt_s = (double)(t_ms - rp->prev_t_ms) / 1000.0;
@@ -890,6 +974,11 @@ static int replay_run(struct replay *rp)
 		return rc;
 	engine_init(rp->eng, rp->cfg);
 	report_summary_clear(&rp->sum);
+	for (unsigned k = 0; k < FG_SECTIONS_MAX; k++) {
+		rp->ref_flood[k] = -INFINITY;
+		rp->ref_t_ms[k] = REPORT_T_NONE;
+		rp->x_max[k] = NAN;
+	}
 	if (perf_init(rp) != 0)
 		return EXIT_RUNTIME;
 	if (rp->results != NULL && results_write_header(rp->results, rp->cfg) != 0)
@@ -912,6 +1001,7 @@ static int replay_run(struct replay *rp)
 		return EXIT_USAGE;
 	}
 	alarmperf_finish(&rp->perf, rp->sum.first_t_ms, rp->sum.last_t_ms);
+	set_windows(rp);
 	rp->sum.perf = &rp->perf;
 	if (write_summary_json(rp) != 0)
 		return EXIT_RUNTIME;

@@ -47,6 +47,13 @@ const int report_series_field[REPORT_SERIES_COUNT] = {
 	[REPORT_SERIES_DP] = RF_DP_PA,
 	[REPORT_SERIES_DP_MODEL] = RF_DP_MODEL_PA,
 	[REPORT_SERIES_HOLDUP] = RF_LIQUID_HOLDUP_FRAC,
+	[REPORT_SERIES_LOAD_Y] = -1,
+	[REPORT_SERIES_LOAD_X] = -1,
+	[REPORT_SERIES_WEEP] = RF_WEEP_PCT,
+	[REPORT_SERIES_CARRYOVER] = RF_CARRYOVER_FRAC,
+	[REPORT_SERIES_GAS_HOLDUP] = RF_GAS_HOLDUP_FRAC,
+	[REPORT_SERIES_GAS_HOLDUP_DP] = RF_GAS_HOLDUP_DP_FRAC,
+	[REPORT_SERIES_EXPANDED_LEVEL] = RF_EXPANDED_LEVEL_M,
 	[REPORT_SERIES_TYPE_A] = -1,
 	[REPORT_SERIES_TYPE_B] = -1,
 	[REPORT_SERIES_TYPE_C] = -1,
@@ -157,8 +164,9 @@ int report_init(struct report *rp, const struct report_layout *layout)
 	rp->marks = calloc(nsec * REPORT_BUCKETS_MAX, sizeof *rp->marks);
 	rp->events = calloc(REPORT_EVENTS_MAX, sizeof *rp->events);
 	rp->periods = calloc(nsec * SHADE_KINDS * REPORT_PERIODS_MAX, sizeof *rp->periods);
+	rp->windows = calloc(nsec, sizeof *rp->windows);
 	if (rp->slots == NULL || rp->cells == NULL || rp->marks == NULL || rp->events == NULL ||
-	    rp->periods == NULL) {
+	    rp->periods == NULL || rp->windows == NULL) {
 		report_fini(rp);
 		return -ENOMEM;
 	}
@@ -182,6 +190,8 @@ void report_fini(struct report *rp)
 	free(rp->marks);
 	free(rp->events);
 	free(rp->periods);
+	free(rp->windows);
+	rp->windows = NULL;
 	rp->periods = NULL;
 	rp->slots = NULL;
 	rp->cells = NULL;
@@ -376,7 +386,24 @@ static void slot_add(struct report *rp, size_t b, int64_t t_ms)
 	}
 }
 
+int report_set_window(struct report *rp, unsigned k, const struct report_window *w)
+{
+	assert(rp != NULL);
+	assert(w != NULL);
+	if (k >= rp->layout.section_count || rp->windows == NULL)
+		return -EINVAL;
+	rp->windows[k] = *w;
+	rp->windows[k].set = true;
+	return 0;
+}
+
 int report_add_row(struct report *rp, int64_t t_ms, const struct section_result *results)
+{
+	return report_add_row_loads(rp, t_ms, results, NULL);
+}
+
+int report_add_row_loads(struct report *rp, int64_t t_ms, const struct section_result *results,
+			 const double *loads)
 {
 	assert(rp != NULL);
 	assert(rp->slots != NULL);
@@ -393,7 +420,13 @@ int report_add_row(struct report *rp, int64_t t_ms, const struct section_result 
 		const struct section_result *r = &results[k];
 		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++) {
 			const int fld = rp->series_field[k][s];
-			cell_add(&rp->cells[cell_at(k, s, b)], fld >= 0 ? r->v[fld] : NAN);
+			double v = NAN;
+			if (fld >= 0)
+				v = r->v[fld];
+			else if (loads != NULL &&
+				 (s == REPORT_SERIES_LOAD_Y || s == REPORT_SERIES_LOAD_X))
+				v = loads[2 * k + (s == REPORT_SERIES_LOAD_X)];
+			cell_add(&rp->cells[cell_at(k, s, b)], v);
 		}
 		struct report_mark *m = &rp->marks[mark_at(k, b)];
 		if ((uint8_t)r->quality > m->quality)

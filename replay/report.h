@@ -72,6 +72,35 @@ struct report_section {
 	char name[FG_NAME_MAX];        /* section name from the config */
 	char type[REPORT_WORD_MAX];    /* "tray", "packed", "spray", "bubble", "packed-bubble",
 					  "stirred" or "loop" */
+	/* The loads that drive the section, charted in their tags' own units
+	 * (report_add_row_loads): y = the gas flow, x = the liquid flow, or the
+	 * level for a column without liquid through-flow. Empty when none. */
+	char load_y_tag[FG_NAME_MAX], load_y_unit[REPORT_WORD_MAX];
+	char load_x_tag[FG_NAME_MAX], load_x_unit[REPORT_WORD_MAX];
+	char load_x_what[REPORT_WORD_MAX];  /* "liquid flow" or "level" */
+	/* DP charted in the DP tag's unit: dp_unit and Pa per one of it (0 or
+	 * "" = Pa). */
+	char dp_unit[REPORT_WORD_MAX];
+	double dp_pa_per_unit;
+	double overflow_m;             /* bubble: overflow height for the level chart; 0 = none */
+};
+
+/* Points along a limit line of the operating window. */
+#define REPORT_WINDOW_POINTS 41
+
+/* The operating window of one section (report_set_window): gas load against
+ * the x load, in the tags' units, with the model's limits computed at the
+ * recorded properties (the operating point named by ref_t_ms). A limit value
+ * is NAN where it does not exist (e.g. no flooding within reach). */
+struct report_window {
+	bool set;
+	int64_t ref_t_ms;              /* the row whose P, T and properties were used */
+	double x[REPORT_WINDOW_POINTS];
+	double y_flood[REPORT_WINDOW_POINTS];  /* model flood limit, capacity_factor 1 */
+	double y_cal[REPORT_WINDOW_POINTS];    /* calibrated limit (capacity_factor) */
+	double y_weep[REPORT_WINDOW_POINTS];   /* tray weep limit */
+	bool has_cal, has_weep;
+	char note[FG_TEXT_MAX];        /* what was drawn and what not, for the caption */
 };
 
 struct report_alarm {
@@ -122,6 +151,13 @@ enum report_series {
 	REPORT_SERIES_DP,
 	REPORT_SERIES_DP_MODEL,
 	REPORT_SERIES_HOLDUP,
+	REPORT_SERIES_LOAD_Y,          /* gas load, tag unit (report_add_row_loads) */
+	REPORT_SERIES_LOAD_X,          /* liquid load or level, tag unit */
+	REPORT_SERIES_WEEP,            /* the signals alarms of each type watch */
+	REPORT_SERIES_CARRYOVER,
+	REPORT_SERIES_GAS_HOLDUP,
+	REPORT_SERIES_GAS_HOLDUP_DP,
+	REPORT_SERIES_EXPANDED_LEVEL,
 	/* Three series whose field depends on the section's type (packed-bubble,
 	 * stirred, loop): report_type_series_field(). */
 	REPORT_SERIES_TYPE_A,
@@ -165,7 +201,7 @@ struct report_period {
 struct report_event {
 	int64_t t_ms;
 	int alarm_index;
-	char state[REPORT_WORD_MAX];
+	char state[32];                /* an ISA-18.2 state name, the longest 23 characters */
 	double value;
 };
 
@@ -196,6 +232,7 @@ struct report {
 	struct report_period *periods;        /* [section][kind][REPORT_PERIODS_MAX] */
 	unsigned period_count[FG_SECTIONS_MAX][REPORT_SHADE_KINDS];
 	uint64_t periods_joined;              /* joins forced by REPORT_PERIODS_MAX */
+	struct report_window *windows; /* [section_count] */
 	struct report_event *events;   /* [REPORT_EVENTS_MAX] */
 	size_t event_count;            /* events kept, <= REPORT_EVENTS_MAX */
 	uint64_t events_dropped;       /* events counted but not kept */
@@ -211,6 +248,15 @@ int report_init(struct report *rp, const struct report_layout *layout);
  * come in rising time; a row earlier than the previous one is ignored and
  * -EINVAL returned (the caller skips unsorted rows before this). Returns 0. */
 int report_add_row(struct report *rp, int64_t t_ms, const struct section_result *results);
+
+/* The same with the loads of every section: loads[2k] the gas load (y) and
+ * loads[2k + 1] the x load of section k, in their tags' units (NAN = none).
+ * loads may be NULL. */
+int report_add_row_loads(struct report *rp, int64_t t_ms, const struct section_result *results,
+			 const double *loads);
+
+/* Sets the operating window of section k (copied). Returns 0 or -EINVAL. */
+int report_set_window(struct report *rp, unsigned k, const struct report_window *w);
 
 /* Records one alarm event. state is one of the ISA-18.2 names alarm_state_name
  * gives (normal, unacknowledged, acknowledged, returned_unacknowledged,

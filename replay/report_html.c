@@ -200,19 +200,34 @@ static const char page_css[] =
 	".st{font-weight:600}\n"
 	".st-unacknowledged{color:#a3231b}.st-acknowledged{color:#a35f00}"
 	".st-returned_unacknowledged{color:#2d5f9a}.st-normal{color:#2f6b35}\n"
-	"svg .ev{stroke:#1d2327;stroke-width:1.4;stroke-dasharray:6 3}\n"
-	"svg .evl{font-size:11.5px;font-weight:600;fill:#1d2327}\n"
+	"svg .ev{stroke:#d4007a;stroke-width:1.6;stroke-dasharray:6 3}\n"
+	"svg .evl{font-size:11.5px;font-weight:600;fill:#d4007a}\n"
 	"footer{margin-top:24px;font-size:11px;color:#6b7378}\n"
 	/* SVG classes: lines, shading, strip, axes. */
 	"svg text{font-family:inherit;font-size:11px;fill:#3b4246}\n"
 	"svg .ttl{font-size:12.5px;font-weight:600;fill:#1d2327}\n"
 	"svg .grid{stroke:#e3e0d9;stroke-width:1}\n"
 	"svg .axis{stroke:#8d948f;stroke-width:1;fill:none}\n"
-	"svg .s0,svg .s1,svg .s2,svg .s3,svg .s4,svg .s5,svg .s6,svg .s7{fill:none;"
-	"stroke-width:1.6;stroke-linejoin:round;stroke-linecap:round}\n"
+	"svg .s0,svg .s1,svg .s2,svg .s3,svg .s4,svg .s5,svg .s6,svg .s7,svg .s8,svg .s9,"
+	"svg .s10,svg .s11,svg .s12,svg .s13,svg .s14{fill:none;stroke-width:1.6;stroke-linejoin:round;stroke-linecap:round}\n"
 	"svg .s0{stroke:#1b4f9c}svg .s1{stroke:#e0761b}svg .s2{stroke:#0d8a80}"
-	"svg .s3{stroke:#8e3fb0}svg .s4{stroke:#3c8d2f}\n"
-	"svg .s5{stroke:#0d8a80}svg .s6{stroke:#e0761b}svg .s7{stroke:#1b4f9c}\n"
+	"svg .s3{stroke:#8e3fb0}svg .s4{stroke:#3c8d2f}svg .s5{stroke:#b5446e}"
+	"svg .s6{stroke:#7b5e2a}svg .s7{stroke:#b07d00}svg .s8{stroke:#6a4c93}"
+	"svg .s9{stroke:#d35400}svg .s10{stroke:#0d8a80}svg .s11{stroke:#2e86ab}\n"
+	"svg .s12{stroke:#0d8a80}svg .s13{stroke:#e0761b}svg .s14{stroke:#1b4f9c}\n"
+	"svg .over{fill:#c0392b}svg .overl{fill:#a5281c;font-size:10.5px;paint-order:stroke;"
+	"stroke:#fff;stroke-width:3px}\n"
+	"svg .ref{stroke:#4b5358;stroke-width:1.2;stroke-dasharray:2 3;fill:none}"
+	"svg .refl{fill:#4b5358;font-size:10.5px;paint-order:stroke;stroke:#fff;stroke-width:3px}\n"
+	"svg .lim{fill:none;stroke:#9b1d20;stroke-width:2.2}svg .limc{fill:none;stroke:#6a1b9a;"
+	"stroke-width:2;stroke-dasharray:9 4}svg .limw{fill:none;stroke:#b07d00;stroke-width:2;"
+	"stroke-dasharray:4 3}\n"
+	"svg .tr{stroke:none}svg .tra{stroke:#c0392b;stroke-width:1.3}\n"
+	".zoomwrap{overflow-x:auto}.zoomwrap svg.chart{min-width:100%}\n"
+	".zbar{font-size:12px;margin:2px 4px}.zbar button{font:inherit;margin-right:4px}\n"
+	"#readout{position:fixed;pointer-events:none;display:none;background:#1d2327;color:#fff;"
+	"font-size:12px;padding:3px 6px;border-radius:3px;z-index:9}\n"
+	"@media print{.zbar,#readout{display:none}}\n"
 	"svg .sp{stroke:#c0392b;stroke-width:1.2;stroke-dasharray:7 4;fill:none}\n"
 	"svg .spl{fill:#a5281c;font-size:10.5px;paint-order:stroke;stroke:#fff;stroke-width:3px}\n"
 	"svg .q0{fill:#cfe6cf}svg .q1{fill:#f2c14e}svg .q2{fill:#4a4a4a}"
@@ -348,6 +363,13 @@ static void write_legend(FILE *f)
 		{"#0d8a80", "dp_pa (measured)"},
 		{"#8e3fb0", "dp_model_pa (model)"},
 		{"#3c8d2f", "liquid_holdup_frac"},
+		{"#b5446e", "gas load (tag unit)"},
+		{"#7b5e2a", "liquid load or level (tag unit)"},
+		{"#b07d00", "weep_pct"},
+		{"#6a4c93", "carryover_frac"},
+		{"#d35400", "gas_holdup_frac (correlation)"},
+		{"#0d8a80", "gas_holdup_dp_frac (taps)"},
+		{"#2e86ab", "expanded_level_m"},
 	};
 	fputs("<div class=\"legend\">", f);
 	/* The type charts (packed-bubble, stirred, loop) name their series above
@@ -393,7 +415,10 @@ static void write_section(FILE *f, const struct report *rp, const struct report_
 	fprintf(f, " &middot; rows with bad quality: %" PRIu64 ", uncertain: %" PRIu64
 		   ", extrapolated: %" PRIu64 "</div>\n",
 		rp->sec_rows_bad[k], rp->sec_rows_uncertain[k], rp->sec_rows_extrap[k]);
+	fputs("<div class=\"zoomwrap\">\n", f);
 	report_svg_write_charts(f, rp, fr, k);
+	fputs("</div>\n", f);
+	report_window_write(f, rp, k);
 	fputs("</section>\n", f);
 }
 
@@ -437,6 +462,44 @@ static void write_events(FILE *f, const struct report *rp)
 	fputs("</table>\n", f);
 }
 
+/* Zoom and a hover read-out, for a reader with scripts on; the page reads the
+ * same without them (the buttons are made by the script itself). The
+ * read-out shows the time and the value under the cursor from the plot box
+ * each chart carries in its data- attributes. */
+static const char page_script[] =
+	"<div id=\"readout\"></div>\n<script>\n(function(){\n"
+	"var ro=document.getElementById('readout');\n"
+	"function iso(t){return new Date(t).toISOString().replace('.000','');}\n"
+	"document.querySelectorAll('svg.chart[data-t0]').forEach(function(s){\n"
+	" s.addEventListener('mousemove',function(e){\n"
+	"  var p=s.createSVGPoint();p.x=e.clientX;p.y=e.clientY;\n"
+	"  var q=p.matrixTransform(s.getScreenCTM().inverse()),d=s.dataset;\n"
+	"  var x0=+d.x0,x1=+d.x1,yt=+d.yt,yb=+d.yb;\n"
+	"  if(q.x<x0||q.x>x1||q.y<yt||q.y>yb){ro.style.display='none';return;}\n"
+	"  var t=+d.t0+(q.x-x0)/(x1-x0)*(d.t1-d.t0),v=+d.lo+(yb-q.y)/(yb-yt)*(d.hi-d.lo);\n"
+	"  ro.textContent=iso(t)+'  '+v.toPrecision(4)+' '+d.unit;\n"
+	"  ro.style.left=(e.clientX+12)+'px';ro.style.top=(e.clientY+12)+'px';\n"
+	"  ro.style.display='block';});\n"
+	" s.addEventListener('mouseleave',function(){ro.style.display='none';});\n"
+	"});\n"
+	"document.querySelectorAll('.zoomwrap').forEach(function(w){\n"
+	" var z=1,bar=document.createElement('div');bar.className='zbar';\n"
+	" bar.innerHTML='Zoom time: <button type=\"button\">+</button>"
+	"<button type=\"button\">&minus;</button><button type=\"button\">reset</button> "
+	"(or Ctrl + wheel over a chart; scroll sideways)';\n"
+	" w.parentNode.insertBefore(bar,w);\n"
+	" function set(nz,fx){var f=fx===undefined?0.5:fx,old=w.scrollWidth;\n"
+	"  z=Math.min(32,Math.max(1,nz));\n"
+	"  w.querySelectorAll('svg.chart').forEach(function(s){s.style.width=(100*z)+'%';});\n"
+	"  w.scrollLeft=(w.scrollLeft+f*w.clientWidth)*w.scrollWidth/old-f*w.clientWidth;}\n"
+	" var b=bar.querySelectorAll('button');\n"
+	" b[0].onclick=function(){set(z*2);};b[1].onclick=function(){set(z/2);};\n"
+	" b[2].onclick=function(){set(1);};\n"
+	" w.addEventListener('wheel',function(e){if(!e.ctrlKey)return;e.preventDefault();\n"
+	"  var r=w.getBoundingClientRect();\n"
+	"  set(e.deltaY<0?z*1.25:z/1.25,(e.clientX-r.left)/w.clientWidth);},{passive:false});\n"
+	"});\n})();\n</script>\n";
+
 static void write_page(FILE *f, const struct report *rp, const struct report_summary *sum)
 {
 	write_head(f, rp, sum);
@@ -466,7 +529,9 @@ static void write_page(FILE *f, const struct report *rp, const struct report_sum
 	write_events(f, rp);
 	fputs("<footer>Written by the floodgauge replay from the data file named above. The page "
 	      "depends only on that data: the same input gives the same page, byte for byte."
-	      "</footer>\n</main>\n</body>\n</html>\n", f);
+	      "</footer>\n</main>\n", f);
+	fputs(page_script, f);
+	fputs("</body>\n</html>\n", f);
 }
 
 int report_write(const struct report *rp, const char *path, const struct report_summary *sum)

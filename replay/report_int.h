@@ -81,6 +81,7 @@ struct report_svg_frame {
 	double y_top, y_bot;
 	double lo, hi, step;
 	int decimals;                   /* of the y tick labels */
+	double scale;                   /* drawn value = stored value x scale (Pa to the DP unit) */
 	int64_t gap_ms;                 /* intervals above this break the lines */
 };
 
@@ -98,6 +99,10 @@ void report_html_put_duration_s(FILE *f, double s);
 /* The alarm performance section (report_perf.c); nothing when sum->perf is
  * NULL. */
 void report_perf_write(FILE *f, const struct report *rp, const struct report_summary *sum);
+
+/* The operating window of section k (report_window.c): nothing when it was
+ * not set. */
+void report_window_write(FILE *f, const struct report *rp, unsigned k);
 
 void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg_frame *fr,
 			     unsigned k);

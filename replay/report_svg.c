@@ -15,6 +15,7 @@
  * numbers from our own formatter (no locale), times from the data only.
  */
 #include <assert.h>
+#include <inttypes.h>
 #include <math.h>
 #include <stdint.h>
 #include <stdio.h>
@@ -71,51 +72,114 @@ static int64_t floor_div(int64_t a, int64_t b)
 #define AXIS_H 34.0
 #define CHAR_W 6.2
 
+/* Where a chart's axis unit comes from. */
+enum chart_unit {
+	CHART_UNIT_FIXED,               /* y_title as written */
+	CHART_UNIT_DP,                  /* the DP tag's unit (values converted from Pa) */
+	CHART_UNIT_LOAD_Y,              /* the gas flow tag's unit */
+	CHART_UNIT_LOAD_X,              /* the liquid flow (or level) tag's unit */
+};
+
 struct chart {
 	const char *title;
-	const char *y_title;            /* axis title with its unit */
+	const char *y_title;            /* axis title with its unit (CHART_UNIT_FIXED) */
 	unsigned series[2];
 	unsigned series_count;
 	double hi_at_least;             /* the y range always reaches this */
 	double plot_h;
-	bool bottom;                    /* carries the quality strip and the time labels */
+	double clamp_hi;                /* > 0: the axis is 0..clamp_hi whatever the data;
+					 * values beyond are drawn at the edge and marked */
+	enum chart_unit unit;
+	bool overflow_line;             /* draw the section's overflow height */
 };
 
-static const struct chart charts[] = {
-	{"Approach to flooding", "flood, %",
-	 {REPORT_SERIES_FLOOD_INDEX, REPORT_SERIES_FLOOD_PCT}, 2, 100.0, 200.0, false},
-	{"Pressure drop: measured against model", "DP, Pa",
-	 {REPORT_SERIES_DP, REPORT_SERIES_DP_MODEL}, 2, 0.0, 150.0, false},
-	{"Liquid holdup", "holdup, m\xc2\xb3/m\xc2\xb3", {REPORT_SERIES_HOLDUP, 0}, 1, 0.0, 110.0,
-	 true},
-};
-#define CHART_COUNT (sizeof charts / sizeof charts[0])
+static const struct chart chart_load_y = {
+	"Gas load", NULL, {REPORT_SERIES_LOAD_Y, 0}, 1, 0.0, 80.0, 0.0, CHART_UNIT_LOAD_Y, false};
+static const struct chart chart_load_x = {
+	"Liquid load", NULL, {REPORT_SERIES_LOAD_X, 0}, 1, 0.0, 80.0, 0.0, CHART_UNIT_LOAD_X, false};
+static const struct chart chart_flood = {
+	"Approach to flooding", "flood, %", {REPORT_SERIES_FLOOD_INDEX, REPORT_SERIES_FLOOD_PCT}, 2,
+	100.0, 200.0, 150.0, CHART_UNIT_FIXED, false};
+static const struct chart chart_dp = {
+	"Pressure drop: measured against model", NULL, {REPORT_SERIES_DP, REPORT_SERIES_DP_MODEL},
+	2, 0.0, 150.0, 0.0, CHART_UNIT_DP, false};
+static const struct chart chart_holdup = {
+	"Liquid holdup", "holdup, m\xc2\xb3/m\xc2\xb3", {REPORT_SERIES_HOLDUP, 0}, 1, 0.0, 110.0,
+	0.0, CHART_UNIT_FIXED, false};
+static const struct chart chart_weep = {
+	"Weep margin: hole velocity over the weep-point velocity", "weep_pct, %",
+	{REPORT_SERIES_WEEP, 0}, 1, 150.0, 130.0, 0.0, CHART_UNIT_FIXED, false};
+static const struct chart chart_carryover = {
+	"Carry-over: mass fraction of the droplets carried out", "carried over, -",
+	{REPORT_SERIES_CARRYOVER, 0}, 1, 0.0, 110.0, 0.0, CHART_UNIT_FIXED, false};
+static const struct chart chart_gas_holdup = {
+	"Gas holdup: from the taps against the correlation", "gas holdup, -",
+	{REPORT_SERIES_GAS_HOLDUP_DP, REPORT_SERIES_GAS_HOLDUP}, 2, 0.0, 130.0, 0.0,
+	CHART_UNIT_FIXED, false};
+static const struct chart chart_level = {
+	"Expanded level against the overflow", "level, m", {REPORT_SERIES_EXPANDED_LEVEL, 0}, 1,
+	0.0, 130.0, 0.0, CHART_UNIT_FIXED, true};
 
-/* The own charts of the high-holdup types, drawn between the DP chart and
- * the holdup chart (which carries the time axis). Their series take the
- * fields report.c's type table gives them. */
-static const struct {
-	const char *type;
-	struct chart chart[2];
-} type_charts[] = {
-	{"packed-bubble",
-	 {{"Gas holdup per free volume: taps against correlation", "holdup, -",
-	   {REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 0.0, 110.0, false},
-	  {"Expanded level", "level, m", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0, false}}},
-	{"stirred",
-	 {{"Gassed power ratio: measured against model", "Pg/P0, -",
-	   {REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 1.0, 110.0, false},
-	  {"Gas flow number", "Fl_G, -", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0, false}}},
-	{"loop",
-	 {{"Riser and downcomer gas holdup", "holdup, -",
-	   {REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 0.0, 110.0, false},
-	  {"Liquid circulation velocity", "velocity, m/s", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0,
-	   false}}},
+/* The per-type chart hook: the trend charts of a section type, top to
+ * bottom (the last one carries the quality strip and the time labels). A new
+ * section type adds its row here, and its series to enum report_series. */
+struct type_charts {
+	const char *type;               /* report_section.type; NULL: any other type */
+	const struct chart *charts[8];
+	unsigned count;
+	bool own_charts;                /* has charts of its own: skip an empty DP chart */
 };
+
+/* The own charts of the high-holdup types; their series take the fields
+ * report.c's type table gives them (REPORT_SERIES_TYPE_A..C). */
+static const struct chart chart_pb_holdup = {
+	"Gas holdup per free volume: taps against correlation", "holdup, -",
+	{REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 0.0, 110.0, 0.0, CHART_UNIT_FIXED, false};
+static const struct chart chart_pb_level = {
+	"Expanded level", "level, m", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0, 0.0,
+	CHART_UNIT_FIXED, true};
+static const struct chart chart_st_power = {
+	"Gassed power ratio: measured against model", "Pg/P0, -",
+	{REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B}, 2, 1.0, 110.0, 0.0, CHART_UNIT_FIXED, false};
+static const struct chart chart_st_flow = {
+	"Gas flow number", "Fl_G, -", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0, 0.0,
+	CHART_UNIT_FIXED, false};
+static const struct chart chart_lp_holdup = {
+	"Riser and downcomer gas holdup", "holdup, -", {REPORT_SERIES_TYPE_A, REPORT_SERIES_TYPE_B},
+	2, 0.0, 110.0, 0.0, CHART_UNIT_FIXED, false};
+static const struct chart chart_lp_velocity = {
+	"Liquid circulation velocity", "velocity, m/s", {REPORT_SERIES_TYPE_C, 0}, 1, 0.0, 110.0,
+	0.0, CHART_UNIT_FIXED, false};
+
+static const struct type_charts type_charts[] = {
+	{"tray", {&chart_load_y, &chart_load_x, &chart_flood, &chart_dp, &chart_weep,
+		  &chart_holdup}, 6, false},
+	{"packed", {&chart_load_y, &chart_load_x, &chart_flood, &chart_dp, &chart_holdup}, 5, false},
+	{"spray", {&chart_load_y, &chart_load_x, &chart_flood, &chart_carryover}, 4, false},
+	{"bubble", {&chart_load_y, &chart_load_x, &chart_flood, &chart_gas_holdup, &chart_level},
+	 5, false},
+	{"packed-bubble", {&chart_load_y, &chart_load_x, &chart_flood, &chart_dp, &chart_pb_holdup,
+			   &chart_pb_level, &chart_holdup}, 7, true},
+	{"stirred", {&chart_load_y, &chart_load_x, &chart_flood, &chart_dp, &chart_st_power,
+		     &chart_st_flow, &chart_holdup}, 7, true},
+	{"loop", {&chart_load_y, &chart_load_x, &chart_flood, &chart_dp, &chart_lp_holdup,
+		  &chart_lp_velocity, &chart_holdup}, 7, true},
+	{NULL, {&chart_load_y, &chart_load_x, &chart_flood, &chart_dp, &chart_holdup}, 5, false},
+};
+
+static const struct type_charts *charts_of(const char *type)
+{
+	size_t i = 0;
+	while (type_charts[i].type != NULL && strcmp(type_charts[i].type, type) != 0)
+		i++;
+	return &type_charts[i];
+}
 
 static const char *const series_label[REPORT_SERIES_COUNT] = {
-	"flood_index", "flood_pct", "dp_pa (measured)", "dp_model_pa (model)",
-	"liquid_holdup_frac", "", "", "",
+	"flood_index", "flood_pct", "dp (measured)", "dp_model (model)",
+	"liquid_holdup_frac", "gas flow", "liquid flow", "weep_pct", "carryover_frac",
+	"gas_holdup_frac (correlation)", "gas_holdup_dp_frac (taps)", "expanded_level_m",
+	"", "", "", /* the type series: label_of() names their field */
 };
 
 /* The legend name of series s in section k: a type series is its field. */
@@ -134,10 +198,19 @@ static double frame_x(const struct report_svg_frame *fr, int64_t t_ms)
 	return x < PLOT_X0 ? PLOT_X0 : x > PLOT_X1 ? PLOT_X1 : x;
 }
 
-static double frame_y(const struct report_svg_frame *fr, double v)
+/* y of a value in the axis's unit. Values beyond the axis are drawn at its
+ * edge (the chart marks them). */
+static double frame_y_axis(const struct report_svg_frame *fr, double v)
 {
 	const double u = (v - fr->lo) / (fr->hi - fr->lo);
-	return fr->y_bot - u * (fr->y_bot - fr->y_top);
+	const double y = fr->y_bot - u * (fr->y_bot - fr->y_top);
+	return y < fr->y_top ? fr->y_top : y > fr->y_bot ? fr->y_bot : y;
+}
+
+/* y of a stored value (SI, or the load's tag unit), converted by the scale. */
+static double frame_y(const struct report_svg_frame *fr, double v)
+{
+	return frame_y_axis(fr, v * fr->scale);
 }
 
 static void put_xy(FILE *f, double x, double y)
@@ -170,6 +243,7 @@ static bool chart_range(const struct report *rp, unsigned k, const struct chart 
 {
 	double lo = 0.0, hi = c->hi_at_least;
 	bool any = false;
+	const double sc = fr->scale;
 	for (unsigned i = 0; i < c->series_count; i++) {
 		const unsigned s = c->series[i];
 		for (size_t b = 0; b < rp->bucket_count; b++) {
@@ -177,16 +251,26 @@ static bool chart_range(const struct report *rp, unsigned k, const struct chart 
 			if (cl->finite_count == 0)
 				continue;
 			any = true;
-			lo = cl->min < lo ? cl->min : lo;
-			hi = cl->max > hi ? cl->max : hi;
+			lo = cl->min * sc < lo ? cl->min * sc : lo;
+			hi = cl->max * sc > hi ? cl->max * sc : hi;
 		}
 		for (unsigned a = 0; a < rp->layout.alarm_count; a++) {
 			const struct report_alarm *al = &rp->layout.alarms[a];
 			if (!alarm_on_series(rp, al, k, s))
 				continue;
-			lo = al->setpoint < lo ? al->setpoint : lo;
-			hi = al->setpoint > hi ? al->setpoint : hi;
+			lo = al->setpoint * sc < lo ? al->setpoint * sc : lo;
+			hi = al->setpoint * sc > hi ? al->setpoint * sc : hi;
 		}
+	}
+	const double ovf = rp->layout.sections[k].overflow_m;
+	if (c->overflow_line && ovf > 0.0 && ovf > hi)
+		hi = ovf;
+	if (c->clamp_hi > 0.0) {
+		fr->lo = 0.0;
+		fr->hi = c->clamp_hi;
+		fr->step = c->clamp_hi / 6.0;
+		fr->decimals = 0;
+		return any;
 	}
 	if (!(hi > lo))
 		hi = lo + 1.0;
@@ -376,7 +460,9 @@ static void write_time_axis(FILE *f, const struct report_svg_frame *fr, bool lab
 		*tee = '\0';
 		const char *clock = tee + 1;
 		const int clock_len = step < 60000 ? 8 : 5; /* HH:MM:SS or HH:MM */
-		fputs("<text text-anchor=\"middle\" x=\"", f);
+		/* a label at the left edge starts there, clear of "UTC" */
+		const char *anchor = x - 30.0 < PLOT_X0 ? "start" : "middle";
+		fprintf(f, "<text text-anchor=\"%s\" x=\"", anchor);
 		report_html_put_fixed(f, x, 1);
 		fputs("\" y=\"", f);
 		report_html_put_fixed(f, label_y, 1);
@@ -385,7 +471,7 @@ static void write_time_axis(FILE *f, const struct report_svg_frame *fr, bool lab
 		else
 			fprintf(f, "\">%.*s</text>\n", clock_len, clock);
 		if (step < 86400000 && strcmp(iso, prev_date) != 0) {
-			fputs("<text text-anchor=\"middle\" x=\"", f);
+			fprintf(f, "<text text-anchor=\"%s\" x=\"", anchor);
 			report_html_put_fixed(f, x, 1);
 			fputs("\" y=\"", f);
 			report_html_put_fixed(f, label_y + 13.0, 1);
@@ -415,7 +501,7 @@ static void write_value_axis(FILE *f, const struct report_svg_frame *fr, const c
 		const double v = fr->lo + (double)i * fr->step;
 		if (v > fr->hi + fr->step * 1e-6)
 			break;
-		const double y = frame_y(fr, v);
+		const double y = frame_y_axis(fr, v);
 		put_hline(f, "grid", y);
 		fputs("<text text-anchor=\"end\" x=\"", f);
 		report_html_put_fixed(f, PLOT_X0 - 6.0, 1);
@@ -484,8 +570,12 @@ static bool series_has_values(const struct report *rp, unsigned k, unsigned s)
 static void write_chart_head(FILE *f, const struct report *rp, unsigned k, const struct chart *c,
 			     bool setpoints)
 {
-	fprintf(f, "<text class=\"ttl\" x=\"%d\" y=\"16\">%s</text>\n", (int)PLOT_X0, c->title);
-	double x = PLOT_X0 + CHAR_W * 1.15 * (double)strlen(c->title) + 28.0;
+	const char *t = c->unit == CHART_UNIT_LOAD_X &&
+				strcmp(rp->layout.sections[k].load_x_what, "level") == 0
+			? "Liquid level"
+			: c->title;
+	fprintf(f, "<text class=\"ttl\" x=\"%d\" y=\"16\">%s</text>\n", (int)PLOT_X0, t);
+	double x = PLOT_X0 + CHAR_W * 1.15 * (double)strlen(t) + 28.0;
 	for (unsigned i = 0; i < c->series_count; i++) {
 		const unsigned s = c->series[i];
 		fprintf(f, "<path class=\"s%u\" d=\"M", s);
@@ -493,9 +583,15 @@ static void write_chart_head(FILE *f, const struct report *rp, unsigned k, const
 		fputs("h20\"/>\n<text x=\"", f);
 		report_html_put_fixed(f, x + 25.0, 1);
 		const bool has = series_has_values(rp, k, s);
-		const char *label = label_of(rp, k, s);
-		fprintf(f, "\" y=\"16\">%s%s</text>\n", label, has ? "" : ": no values");
-		x += 25.0 + CHAR_W * (double)(strlen(label) + (has ? 0 : 11)) + 18.0;
+		const char *lab = s == REPORT_SERIES_LOAD_Y   ? rp->layout.sections[k].load_y_tag
+				  : s == REPORT_SERIES_LOAD_X ? rp->layout.sections[k].load_x_tag
+							      : label_of(rp, k, s);
+		if (lab[0] == '\0')
+			lab = series_label[s];
+		fputs("\" y=\"16\">", f);
+		report_html_put_escaped(f, lab);
+		fprintf(f, "%s</text>\n", has ? "" : ": no values");
+		x += 25.0 + CHAR_W * (double)(strlen(lab) + (has ? 0 : 11)) + 18.0;
 	}
 	if (setpoints) {
 		fputs("<path class=\"sp\" d=\"M", f);
@@ -556,22 +652,131 @@ void report_svg_write_markers(FILE *f, const struct report *rp,
 	}
 }
 
-static void write_chart(FILE *f, const struct report *rp, struct report_svg_frame *fr, unsigned k,
-			const struct chart *c)
+/* The axis title and the unit the script's read-out shows. */
+static void axis_title(const struct report *rp, unsigned k, const struct chart *c, char *title,
+		       size_t title_size, char *unit, size_t unit_size)
 {
+	const struct report_section *sec = &rp->layout.sections[k];
+	switch (c->unit) {
+	case CHART_UNIT_DP: {
+		const char *u = sec->dp_unit[0] && sec->dp_pa_per_unit > 0.0 ? sec->dp_unit : "Pa";
+		snprintf(title, title_size, "DP, %s", u);
+		snprintf(unit, unit_size, "%s", u);
+		break;
+	}
+	case CHART_UNIT_LOAD_Y:
+		snprintf(title, title_size, "gas, %s", sec->load_y_unit);
+		snprintf(unit, unit_size, "%s", sec->load_y_unit);
+		break;
+	case CHART_UNIT_LOAD_X:
+		snprintf(title, title_size, "%s, %s",
+			 strcmp(sec->load_x_what, "level") == 0 ? "level" : "liquid",
+			 sec->load_x_unit);
+		snprintf(unit, unit_size, "%s", sec->load_x_unit);
+		break;
+	default: {
+		snprintf(title, title_size, "%s", c->y_title);
+		const char *comma = strrchr(c->y_title, ',');
+		snprintf(unit, unit_size, "%s", comma ? comma + 2 : "");
+	}
+	}
+}
+
+/* Values beyond a fixed axis: a red bar along the edge they passed, over each
+ * run of buckets whose extreme lies beyond it, and the extreme written once. */
+static void write_beyond_side(FILE *f, const struct report *rp, const struct report_svg_frame *fr,
+			      unsigned k, const struct chart *c, bool above)
+{
+	double ext = above ? -INFINITY : INFINITY;
+	int64_t run_a = 0, run_b = 0;
+	bool in_run = false;
+	const double bar_y = above ? fr->y_top - 4.0 : fr->y_bot;
+	for (size_t b = 0; b <= rp->bucket_count; b++) {
+		bool over = false;
+		if (b < rp->bucket_count && rp->slots[b].row_count > 0)
+			for (unsigned i = 0; i < c->series_count; i++) {
+				const struct report_cell *cl = &rp->cells[cell_at(k, c->series[i], b)];
+				if (cl->finite_count == 0)
+					continue;
+				const double v = (above ? cl->max : cl->min) * fr->scale;
+				if (above ? v > fr->hi : v < fr->lo) {
+					over = true;
+					ext = above ? fmax(ext, v) : fmin(ext, v);
+				}
+			}
+		if (over && !in_run)
+			run_a = rp->slots[b].t_first_ms;
+		if (over)
+			run_b = rp->slots[b].t_last_ms;
+		if (!over && in_run)
+			put_span(f, fr, run_a, run_b, bar_y, 4.0, "class=\"over\"");
+		in_run = over;
+	}
+	if (!isfinite(ext))
+		return;
+	fputs("<text class=\"overl\" x=\"", f);
+	report_html_put_fixed(f, PLOT_X0 + 4.0, 1);
+	fputs("\" y=\"", f);
+	report_html_put_fixed(f, above ? fr->y_top + 11.0 : fr->y_bot - 4.0, 1);
+	fputs(above ? "\">\xe2\x96\xb2 above the axis (red bar on top), up to "
+		    : "\">\xe2\x96\xbc below the axis (red bar at the bottom), down to ", f);
+	report_html_put_fixed(f, ext, report_html_auto_decimals(ext));
+	fputs("</text>\n", f);
+}
+
+static void write_beyond(FILE *f, const struct report *rp, const struct report_svg_frame *fr,
+			 unsigned k, const struct chart *c)
+{
+	write_beyond_side(f, rp, fr, k, c, true);
+	write_beyond_side(f, rp, fr, k, c, false);
+}
+
+static void write_overflow(FILE *f, const struct report *rp, const struct report_svg_frame *fr,
+			   unsigned k)
+{
+	const double ovf = rp->layout.sections[k].overflow_m;
+	if (!(ovf > 0.0))
+		return;
+	const double y = frame_y(fr, ovf);
+	put_hline(f, "ref", y);
+	fputs("<text class=\"refl\" text-anchor=\"end\" x=\"", f);
+	report_html_put_fixed(f, PLOT_X1 - 4.0, 1);
+	fputs("\" y=\"", f);
+	report_html_put_fixed(f, y - 4.0 < fr->y_top + 10.0 ? y + 12.0 : y - 4.0, 1);
+	fputs("\">overflow height ", f);
+	report_html_put_fixed(f, ovf, report_html_auto_decimals(ovf));
+	fputs(" m</text>\n", f);
+}
+
+static void write_chart(FILE *f, const struct report *rp, struct report_svg_frame *fr, unsigned k,
+			const struct chart *c, bool bottom)
+{
+	const struct report_section *sec = &rp->layout.sections[k];
+	fr->scale = c->unit == CHART_UNIT_DP && sec->dp_pa_per_unit > 0.0
+			    ? 1.0 / sec->dp_pa_per_unit
+			    : 1.0;
 	fr->y_top = HEAD_H + 4.0;
 	fr->y_bot = fr->y_top + c->plot_h;
 	const bool any = chart_range(rp, k, c, fr);
 	double h = fr->y_bot + 10.0;
-	if (c->bottom)
+	if (bottom)
 		h = fr->y_bot + 6.0 + EXTRAP_H + STRIP_H + AXIS_H;
+	char title[FG_NAME_MAX + 40], unit[REPORT_WORD_MAX + 8];
+	axis_title(rp, k, c, title, sizeof title, unit, sizeof unit);
 	fprintf(f, "<svg class=\"chart\" xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 %d ",
 		VIEW_W);
 	report_html_put_fixed(f, h, 0);
+	/* What the inline script needs for the read-out: the plot box and the
+	 * time and value it spans. */
+	fprintf(f, "\" data-t0=\"%" PRId64 "\" data-t1=\"%" PRId64 "\" data-x0=\"%g\" "
+		   "data-x1=\"%g\" data-yt=\"%g\" data-yb=\"%g\" data-lo=\"%g\" data-hi=\"%g\" "
+		   "data-unit=\"", fr->t0_ms, fr->t1_ms, PLOT_X0, PLOT_X1, fr->y_top, fr->y_bot,
+		fr->lo, fr->hi);
+	report_html_put_escaped(f, unit);
 	fprintf(f, "\" role=\"img\" aria-label=\"%s\">\n", c->title);
 	write_chart_head(f, rp, k, c, chart_has_setpoints(rp, k, c));
 	write_shading(f, rp, fr, k);
-	write_value_axis(f, fr, c->y_title);
+	write_value_axis(f, fr, title);
 	write_time_axis(f, fr, false, 0.0);
 	write_setpoints(f, rp, fr, k, c);
 	/* Last series first, so the primary one (flood_index, measured DP)
@@ -592,7 +797,11 @@ static void write_chart(FILE *f, const struct report *rp, struct report_svg_fram
 	fputs("\" height=\"", f);
 	report_html_put_fixed(f, c->plot_h, 1);
 	fputs("\"/>\n", f);
-	if (c->bottom) {
+	if (c->clamp_hi > 0.0)
+		write_beyond(f, rp, fr, k, c);
+	if (c->overflow_line)
+		write_overflow(f, rp, fr, k);
+	if (bottom) {
 		const double ye = fr->y_bot + 6.0, yq = ye + EXTRAP_H;
 		put_span(f, fr, fr->t0_ms, fr->t1_ms, yq, STRIP_H, "class=\"qn\"");
 		write_runs(f, rp, fr, k, quality_state, yq, STRIP_H, "q");
@@ -617,19 +826,11 @@ void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg
 {
 	assert(fr != NULL);
 	assert(k < rp->layout.section_count);
-	bool own = false;
-	for (size_t t = 0; t < sizeof type_charts / sizeof type_charts[0]; t++)
-		own = own || strcmp(type_charts[t].type, rp->layout.sections[k].type) == 0;
-	for (size_t c = 0; c < CHART_COUNT; c++) {
-		/* A type with its own charts and no dp signal (every loop, most
-		 * stirred vessels) skips the empty DP chart. */
-		if (own && c == 1 && !series_has_values(rp, k, REPORT_SERIES_DP))
-			continue;
-		if (c == CHART_COUNT - 1) /* the type's own charts before the bottom one */
-			for (size_t t = 0; t < sizeof type_charts / sizeof type_charts[0]; t++)
-				if (strcmp(type_charts[t].type, rp->layout.sections[k].type) == 0)
-					for (size_t i = 0; i < 2; i++)
-						write_chart(f, rp, fr, k, &type_charts[t].chart[i]);
-		write_chart(f, rp, fr, k, &charts[c]);
-	}
+	const struct type_charts *tc = charts_of(rp->layout.sections[k].type);
+	/* A type with charts of its own and no dp signal (every loop, most
+	 * stirred vessels) skips the empty DP chart. */
+	const bool own = tc->own_charts && !series_has_values(rp, k, REPORT_SERIES_DP);
+	for (unsigned c = 0; c < tc->count; c++)
+		if (!(own && tc->charts[c] == &chart_dp))
+			write_chart(f, rp, fr, k, tc->charts[c], c + 1 == tc->count);
 }
