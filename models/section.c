@@ -153,6 +153,17 @@ static const unsigned long long type_mask[SECTION_TYPE_COUNT] = {
 			 B(RF_CARRY_UNDER_M3S),
 };
 
+/* Common fields that do not apply to a type. The flow parameter, capacity
+ * factor and F-factor are the vapour-load terms of a countercurrent column
+ * (tray and packing capacity charts). A stirred vessel is loaded by its
+ * impeller (flow number, Froude number) and a loop by its riser and downcomer
+ * holdups; neither has a liquid through-flow, so a flow parameter would be a
+ * made-up 0. */
+static const unsigned long long type_drop[SECTION_TYPE_COUNT] = {
+	[SECTION_STIRRED] = B(RF_FLOW_PARAM) | B(RF_CAP_FACTOR) | B(RF_F_FACTOR),
+	[SECTION_LOOP] = B(RF_FLOW_PARAM) | B(RF_CAP_FACTOR) | B(RF_F_FACTOR),
+};
+
 bool section_type_has_field(enum section_type t, int field)
 {
 	assert(t < SECTION_TYPE_COUNT);
@@ -160,7 +171,15 @@ bool section_type_has_field(enum section_type t, int field)
 		return false;
 	/* A loop has no single `dp` signal: its DPs are riser and downcomer. */
 	unsigned long long m = common_mask | type_mask[t] | (t == SECTION_LOOP ? 0 : dp_mask);
-	return (m & B(field)) != 0;
+	return (m & ~type_drop[t] & B(field)) != 0;
+}
+
+/* Leaves the common fields that do not apply to the type absent (NAN). */
+static void drop_foreign_fields(enum section_type t, struct section_result *r)
+{
+	for (int i = 0; i < RF_COUNT; i++)
+		if (type_drop[t] & B(i))
+			r->v[i] = NAN;
 }
 #undef B
 
@@ -194,7 +213,9 @@ void section_eval_warm(const struct section_geom *g, const struct section_props 
 	 * through-flow (batch liquid). */
 	if (section_liquid_batch(g->type) && !isfinite(q.liquid_kgs))
 		q.liquid_kgs = 0.0;
-	if (!common_fields(g, &f, &q, r) || !isfinite(q.liquid_kgs) || q.liquid_kgs < 0.0) {
+	bool usable = common_fields(g, &f, &q, r);
+	drop_foreign_fields(g->type, r);
+	if (!usable || !isfinite(q.liquid_kgs) || q.liquid_kgs < 0.0) {
 		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
 		return;
 	}

@@ -50,6 +50,8 @@ if r:
     ok(abs(r["froude_number"] - 0.183549) < 1e-5, "M406 Froude number from rpm", r)
     ok(r["flood_basis"] == "impeller" and r["quality"] == "good", "M406 basis and quality", r)
     ok("riser_holdup_frac" not in r, "no loop fields on a stirred section", r)
+    for k in ("flow_param", "cap_factor_ms", "f_factor_pa05"):
+        ok(k not in r, f"M406 has no {k} (a countercurrent vapour-load term)", r)
 rc, r, err = rate("M406", "M406_SI=0")
 ok(rc == 0 and r is not None, "rate M406 at zero speed runs", err)
 if r:
@@ -69,6 +71,8 @@ if r:
     ok(abs(r["flood_pct"] - 100 * r["downcomer_holdup_frac"] / r["riser_holdup_frac"]) < 1e-6,
        "L407 flood_pct is downcomer over riser holdup", r)
     ok("circulation_pct" not in r, "rate has no learned normal circulation", r)
+    for k in ("flow_param", "cap_factor_ms", "f_factor_pa05"):
+        ok(k not in r, f"L407 has no {k} (a countercurrent vapour-load term)", r)
 
 rc, r, err = rate("P405")
 ok(rc == 0 and r is not None, "rate P405 runs", err)
@@ -79,6 +83,34 @@ if r:
     # per column volume = voidage x per free volume (the tap holdup is used)
     ok(abs(r["gas_holdup_column_frac"] / r["gas_holdup_dp_frac"] - 0.95) < 0.05,
        "P405 column-volume holdup is the voidage times the free-volume one", r)
+
+
+
+def no_nonfinite(const):
+    raise ValueError("non-finite number " + const)
+
+
+# Zero gas, zero speed, empty vessel and out-of-range readings (each tag in its
+# own unit): the JSON must stay strict (no NaN or Infinity) and the CSV-style
+# table must hold no nan/inf text.
+for section, tagset in (("P405", "P405_FI_AIR=0"), ("P405", "P405_PDI_TAPS=0"),
+                        ("P405", "P405_PDI_TAPS=500"), ("P405", "P405_LI=0"),
+                        ("P405", "P405_FI_AIR=1e6"), ("M406", "M406_FI_AIR=0"),
+                        ("M406", "M406_SI=0"), ("M406", "M406_JI=0"),
+                        ("M406", "M406_SI=1e5"), ("M406", "M406_FI_AIR=1e6"),
+                        ("L407", "L407_FI_AIR=0"), ("L407", "L407_PDI_RISER=0"),
+                        ("L407", "L407_PDI_DOWNCOMER=0"), ("L407", "L407_PDI_RISER=5000"),
+                        ("L407", "L407_PDI_RISER=980"), ("L407", "L407_FI_AIR=1e6")):
+    rc, so, se = fg("rate", "-c", CFG, "--section", section, "--set", tagset, "--json")
+    try:
+        json.loads(so, parse_constant=no_nonfinite)
+        strict = rc == 0
+    except ValueError as e:
+        strict, se = False, se + str(e)
+    ok(strict, f"rate {section} {tagset}: strict JSON, every number finite", so + se)
+    rc, so, se = fg("rate", "-c", CFG, "--section", section, "--set", tagset)
+    ok(rc == 0 and not re.search(r"\b(nan|inf)\b", so, re.I),
+       f"rate {section} {tagset}: table has no nan/inf", so + se)
 
 rc, out, err = fg("rate", "-c", CFG, "--section", "L407")
 ok(rc == 0 and "circulation_velocity_ms" in out and "advisory" in out,

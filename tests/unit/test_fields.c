@@ -71,6 +71,17 @@ static void test_type_tables_keep_types_apart(void **state)
 	assert_true(section_type_has_field(SECTION_PACKED_BUBBLE, RF_GAS_HOLDUP_COLUMN_FRAC));
 	assert_false(section_type_has_field(SECTION_BUBBLE, RF_GAS_HOLDUP_COLUMN_FRAC));
 	assert_true(section_type_has_field(SECTION_TRAY, RF_WEEP_PCT));
+	/* The countercurrent vapour-load terms: not for an impeller-loaded vessel
+	 * or a loop, which have no liquid through-flow. */
+	assert_false(section_type_has_field(SECTION_STIRRED, RF_FLOW_PARAM));
+	assert_false(section_type_has_field(SECTION_STIRRED, RF_CAP_FACTOR));
+	assert_false(section_type_has_field(SECTION_STIRRED, RF_F_FACTOR));
+	assert_false(section_type_has_field(SECTION_LOOP, RF_FLOW_PARAM));
+	assert_false(section_type_has_field(SECTION_LOOP, RF_CAP_FACTOR));
+	assert_false(section_type_has_field(SECTION_LOOP, RF_F_FACTOR));
+	assert_true(section_type_has_field(SECTION_STIRRED, RF_GAS_VELOCITY));
+	assert_true(section_type_has_field(SECTION_TRAY, RF_FLOW_PARAM));
+	assert_true(section_type_has_field(SECTION_PACKED_BUBBLE, RF_F_FACTOR));
 	assert_false(section_type_has_field(SECTION_TRAY, -1));
 	assert_false(section_type_has_field(SECTION_TRAY, RF_COUNT));
 }
