@@ -25,8 +25,8 @@
 #define BISECT_STEPS 48   /* 2^-48 of the bracket: far below any plotted pixel */
 #define EXPAND_STEPS 40   /* 1.5^40 = 1e7 times the recorded gas load at most */
 
-static double field_at(const struct fg_config *cfg, unsigned si, double *vals, int gi, int xi,
-		       double g, double x, int field)
+static double field_at(const struct fg_config *cfg, unsigned si, const struct section_geom *geom,
+		       double *vals, int gi, int xi, double g, double x, int field)
 {
 	const struct section_cfg *s = &cfg->sections[si];
 	vals[gi] = g;
@@ -35,19 +35,19 @@ static double field_at(const struct fg_config *cfg, unsigned si, double *vals, i
 	point_from_tags(cfg, si, vals, &p);
 	p.dp_pa = NAN; /* the limits are the model's, not the measured DP's */
 	struct section_result r;
-	section_eval(&s->geom, &s->props, &p, &r);
+	section_eval(geom, &s->props, &p, &r);
 	return r.v[field];
 }
 
 /* The gas load (tag unit) at which field reaches target at x, NAN when it
  * does not within reach. */
-static double gas_at(const struct fg_config *cfg, unsigned si, double *vals, int gi, int xi,
-		     double x, double g_ref, int field, double target)
+static double gas_at(const struct fg_config *cfg, unsigned si, const struct section_geom *geom,
+		     double *vals, int gi, int xi, double x, double g_ref, int field, double target)
 {
 	double lo = 0.0, hi = g_ref > 0.0 ? g_ref : 1.0;
 	int n = 0;
 	for (; n < EXPAND_STEPS; n++) {
-		double v = field_at(cfg, si, vals, gi, xi, hi, x, field);
+		double v = field_at(cfg, si, geom, vals, gi, xi, hi, x, field);
 		if (isfinite(v) && v >= target)
 			break;
 		lo = hi;
@@ -57,7 +57,7 @@ static double gas_at(const struct fg_config *cfg, unsigned si, double *vals, int
 		return NAN;
 	for (int i = 0; i < BISECT_STEPS; i++) {
 		double mid = 0.5 * (lo + hi);
-		double v = field_at(cfg, si, vals, gi, xi, mid, x, field);
+		double v = field_at(cfg, si, geom, vals, gi, xi, mid, x, field);
 		if (isfinite(v) && v >= target)
 			hi = mid;
 		else
@@ -82,25 +82,40 @@ int opwindow_compute(const struct fg_config *cfg, unsigned si, const double *ref
 	static double vals[FG_TAGS_MAX];
 	memcpy(vals, ref_values, cfg->tag_count * sizeof(vals[0]));
 	const bool tray = s->geom.type == SECTION_TRAY;
+	/* the model's limit is the uncalibrated one; the calibrated limit uses the
+	 * section's capacity_factor (which section_eval applies) */
+	static struct section_geom model;
+	model = s->geom;
+	model.capacity_factor = 1.0;
+	const double cf = section_capacity_factor(&s->geom);
+	const bool cal = cf != 1.0;
 	const bool level_x = s->signal[SIGNAL_LIQUID_FLOW] < 0;
 	for (unsigned i = 0; i < REPORT_WINDOW_POINTS; i++) {
 		/* a level of zero has no column to flood: start one step up */
 		double x = x_max * (double)(level_x ? i + 1 : i) /
 			   (double)(REPORT_WINDOW_POINTS - (level_x ? 0 : 1));
 		w->x[i] = x;
-		w->y_flood[i] = gas_at(cfg, si, vals, gi, xi, x, ref_values[gi], RF_FLOOD_PCT, 100.0);
-		w->y_weep[i] = tray ? gas_at(cfg, si, vals, gi, xi, x, ref_values[gi], RF_WEEP_PCT,
-					     100.0)
+		w->y_flood[i] = gas_at(cfg, si, &model, vals, gi, xi, x, ref_values[gi], RF_FLOOD_PCT,
+				       100.0);
+		w->y_weep[i] = tray ? gas_at(cfg, si, &s->geom, vals, gi, xi, x, ref_values[gi],
+					     RF_WEEP_PCT, 100.0)
 				    : NAN;
-		w->y_cal[i] = NAN;
+		w->y_cal[i] = cal ? gas_at(cfg, si, &s->geom, vals, gi, xi, x, ref_values[gi],
+					   RF_FLOOD_PCT, 100.0)
+				  : NAN;
 	}
 	w->has_weep = tray;
-	/* No capacity_factor key in this version: the model limit is the only flood
-	 * limit. Where the key exists, y_cal is the same search with it applied. */
-	w->has_cal = false;
-	snprintf(w->note, sizeof(w->note),
-		 "Limits from the models at the recorded pressure, temperature and properties "
-		 "of the row named above (the highest flood_index of the replay); no calibrated "
-		 "limit drawn: the section has no capacity_factor.");
+	w->has_cal = cal;
+	if (cal)
+		snprintf(w->note, sizeof(w->note),
+			 "Limits from the models at the recorded pressure, temperature and "
+			 "properties of the row named above (the highest flood_index of the "
+			 "replay); calibrated limit with capacity_factor %.3g.", cf);
+	else
+		snprintf(w->note, sizeof(w->note),
+			 "Limits from the models at the recorded pressure, temperature and "
+			 "properties of the row named above (the highest flood_index of the "
+			 "replay); no calibrated limit drawn: capacity_factor is 1 (not "
+			 "calibrated; floodgauge calibrate fits it).");
 	return 0;
 }

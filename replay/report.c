@@ -57,6 +57,10 @@ const int report_series_field[REPORT_SERIES_COUNT] = {
 	[REPORT_SERIES_TYPE_A] = -1,
 	[REPORT_SERIES_TYPE_B] = -1,
 	[REPORT_SERIES_TYPE_C] = -1,
+	[REPORT_SERIES_ALARM0] = -1, /* per section: pick_alarm_fields() */
+	[REPORT_SERIES_ALARM1] = -1,
+	[REPORT_SERIES_ALARM2] = -1,
+	[REPORT_SERIES_ALARM3] = -1,
 };
 
 /* The type series of the high-holdup types: what their own charts draw. */
@@ -73,12 +77,33 @@ int report_type_series_field(const char *type, unsigned s)
 {
 	assert(type != NULL);
 	assert(s < REPORT_SERIES_COUNT);
-	if (s < REPORT_SERIES_TYPE_A)
+	if (s < REPORT_SERIES_TYPE_A || s >= REPORT_SERIES_ALARM0)
 		return report_series_field[s];
 	for (size_t i = 0; i < sizeof type_series / sizeof type_series[0]; i++)
 		if (strcmp(type_series[i].type, type) == 0)
 			return type_series[i].field[s - REPORT_SERIES_TYPE_A];
 	return -1;
+}
+
+/* Every alarm's watched field is charted: the fields the section type's
+ * charts do not show get a series of their own (the first
+ * REPORT_ALARM_SERIES of them). */
+static void pick_alarm_fields(struct report *rp)
+{
+	for (unsigned k = 0; k < rp->layout.section_count; k++) {
+		unsigned n = 0;
+		for (unsigned a = 0; a < rp->layout.alarm_count; a++) {
+			const struct report_alarm *al = &rp->layout.alarms[a];
+			if ((unsigned)al->section_index != k || al->field < 0 ||
+			    report_svg_type_shows(rp->layout.sections[k].type, al->field))
+				continue;
+			bool dup = false;
+			for (unsigned j = 0; j < n; j++)
+				dup = dup || rp->series_field[k][REPORT_SERIES_ALARM0 + j] == al->field;
+			if (!dup && n < REPORT_ALARM_SERIES)
+				rp->series_field[k][REPORT_SERIES_ALARM0 + n++] = al->field;
+		}
+	}
 }
 
 /* ---------------------------------------------------------------- helpers */
@@ -159,6 +184,7 @@ int report_init(struct report *rp, const struct report_layout *layout)
 	for (size_t k = 0; k < nsec; k++)
 		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++)
 			rp->series_field[k][s] = report_type_series_field(layout->sections[k].type, s);
+	pick_alarm_fields(rp);
 	rp->slots = calloc(REPORT_BUCKETS_MAX, sizeof *rp->slots);
 	rp->cells = calloc(nsec * REPORT_SERIES_COUNT * REPORT_BUCKETS_MAX, sizeof *rp->cells);
 	rp->marks = calloc(nsec * REPORT_BUCKETS_MAX, sizeof *rp->marks);

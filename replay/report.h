@@ -163,8 +163,16 @@ enum report_series {
 	REPORT_SERIES_TYPE_A,
 	REPORT_SERIES_TYPE_B,
 	REPORT_SERIES_TYPE_C,
+	/* Up to REPORT_ALARM_SERIES fields the section's alarms watch that its
+	 * type's charts do not show, each on a chart of its own. */
+	REPORT_SERIES_ALARM0,
+	REPORT_SERIES_ALARM1,
+	REPORT_SERIES_ALARM2,
+	REPORT_SERIES_ALARM3,
 	REPORT_SERIES_COUNT
 };
+
+#define REPORT_ALARM_SERIES 4
 
 /* One bucket of one series. Only finite values enter first/min/max/last. */
 struct report_cell {

@@ -209,12 +209,14 @@ static const char page_css[] =
 	"svg .grid{stroke:#e3e0d9;stroke-width:1}\n"
 	"svg .axis{stroke:#8d948f;stroke-width:1;fill:none}\n"
 	"svg .s0,svg .s1,svg .s2,svg .s3,svg .s4,svg .s5,svg .s6,svg .s7,svg .s8,svg .s9,"
-	"svg .s10,svg .s11,svg .s12,svg .s13,svg .s14{fill:none;stroke-width:1.6;stroke-linejoin:round;stroke-linecap:round}\n"
+	"svg .s10,svg .s11,svg .s12,svg .s13,svg .s14,svg .s15,svg .s16,svg .s17,svg .s18{"
+	"fill:none;stroke-width:1.6;stroke-linejoin:round;stroke-linecap:round}\n"
 	"svg .s0{stroke:#1b4f9c}svg .s1{stroke:#e0761b}svg .s2{stroke:#0d8a80}"
 	"svg .s3{stroke:#8e3fb0}svg .s4{stroke:#3c8d2f}svg .s5{stroke:#b5446e}"
 	"svg .s6{stroke:#7b5e2a}svg .s7{stroke:#b07d00}svg .s8{stroke:#6a4c93}"
 	"svg .s9{stroke:#d35400}svg .s10{stroke:#0d8a80}svg .s11{stroke:#2e86ab}\n"
 	"svg .s12{stroke:#0d8a80}svg .s13{stroke:#e0761b}svg .s14{stroke:#1b4f9c}\n"
+	"svg .s15,svg .s16,svg .s17,svg .s18{stroke:#8c564b}\n"
 	"svg .over{fill:#c0392b}svg .overl{fill:#a5281c;font-size:10.5px;paint-order:stroke;"
 	"stroke:#fff;stroke-width:3px}\n"
 	"svg .ref{stroke:#4b5358;stroke-width:1.2;stroke-dasharray:2 3;fill:none}"
@@ -377,6 +379,8 @@ static void write_legend(FILE *f)
 	for (unsigned s = 0; s < REPORT_SERIES_TYPE_A; s++)
 		fprintf(f, "<span class=\"i\"><span class=\"ln\" style=\"border-color:%s\"></span>"
 			   "%s</span>", lines[s][0], lines[s][1]);
+	fputs("<span class=\"i\"><span class=\"ln\" style=\"border-color:#8c564b\"></span>"
+	      "a field an alarm watches (its own chart)</span>", f);
 	fputs("<span class=\"i\"><span class=\"ln\" style=\"border-top:2px dashed #c0392b\">"
 	      "</span>alarm setpoint</span><br>\n", f);
 	fputs("Shaded: alarm active (unacknowledged or acknowledged), by priority ", f);

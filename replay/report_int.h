@@ -104,6 +104,9 @@ void report_perf_write(FILE *f, const struct report *rp, const struct report_sum
  * not set. */
 void report_window_write(FILE *f, const struct report *rp, unsigned k);
 
+/* Does the chart list of section type `type` show result field `field`? */
+bool report_svg_type_shows(const char *type, int field);
+
 void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg_frame *fr,
 			     unsigned k);
 

@@ -175,11 +175,22 @@ static const struct type_charts *charts_of(const char *type)
 	return &type_charts[i];
 }
 
+bool report_svg_type_shows(const char *type, int field)
+{
+	const struct type_charts *tc = charts_of(type);
+	for (unsigned c = 0; c < tc->count; c++)
+		for (unsigned i = 0; i < tc->charts[c]->series_count; i++)
+			if (report_type_series_field(type, tc->charts[c]->series[i]) == field)
+				return true;
+	return false;
+}
+
 static const char *const series_label[REPORT_SERIES_COUNT] = {
 	"flood_index", "flood_pct", "dp (measured)", "dp_model (model)",
 	"liquid_holdup_frac", "gas flow", "liquid flow", "weep_pct", "carryover_frac",
 	"gas_holdup_frac (correlation)", "gas_holdup_dp_frac (taps)", "expanded_level_m",
 	"", "", "", /* the type series: label_of() names their field */
+	"", "", "", "", /* and so for the alarm series */
 };
 
 /* The legend name of series s in section k: a type series is its field. */
@@ -532,9 +543,10 @@ static unsigned write_setpoints(FILE *f, const struct report *rp, const struct r
 		if (!mine)
 			continue;
 		const double y = frame_y(fr, al->setpoint);
+		/* in the chart's unit: a DP setpoint on an mbar axis reads in mbar */
+		const double sp = al->setpoint * fr->scale;
 		char val[40];
-		report_format_fixed(al->setpoint, report_html_auto_decimals(al->setpoint), val,
-				    sizeof val);
+		report_format_fixed(sp, report_html_auto_decimals(sp), val, sizeof val);
 		const double w = CHAR_W * (double)(strlen(al->name) + strlen(val) + 6 +
 						   strlen(report_html_alarm_field_name(al->field)));
 		double right = PLOT_X1 - 4.0;
@@ -548,7 +560,9 @@ static unsigned write_setpoints(FILE *f, const struct report *rp, const struct r
 		report_html_put_fixed(f, y - 4.0 < fr->y_top + 10.0 ? y + 12.0 : y - 4.0, 1);
 		fputs("\">", f);
 		report_html_put_escaped(f, al->name);
-		const char *unit = result_fields[al->field].unit;
+		const struct report_section *sec = &rp->layout.sections[k];
+		const char *unit = c->unit == CHART_UNIT_DP && fr->scale != 1.0 ? sec->dp_unit
+										 : result_fields[al->field].unit;
 		fprintf(f, ": %s %s%s%s</text>\n", report_html_alarm_field_name(al->field), val,
 			strcmp(unit, "-") == 0 ? "" : " ", strcmp(unit, "-") == 0 ? "" : unit);
 		used_y[used] = y;
@@ -830,7 +844,21 @@ void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg
 	/* A type with charts of its own and no dp signal (every loop, most
 	 * stirred vessels) skips the empty DP chart. */
 	const bool own = tc->own_charts && !series_has_values(rp, k, REPORT_SERIES_DP);
+	unsigned extra = 0;
+	while (extra < REPORT_ALARM_SERIES && rp->series_field[k][REPORT_SERIES_ALARM0 + extra] >= 0)
+		extra++;
 	for (unsigned c = 0; c < tc->count; c++)
 		if (!(own && tc->charts[c] == &chart_dp))
-			write_chart(f, rp, fr, k, tc->charts[c], c + 1 == tc->count);
+			write_chart(f, rp, fr, k, tc->charts[c], c + 1 == tc->count && extra == 0);
+	/* a field an alarm watches that the type's charts do not show */
+	for (unsigned j = 0; j < extra; j++) {
+		const int fld = rp->series_field[k][REPORT_SERIES_ALARM0 + j];
+		char title[FG_NAME_MAX + 40], y_title[FG_NAME_MAX + 24];
+		snprintf(title, sizeof title, "Watched by an alarm: %s", result_fields[fld].name);
+		snprintf(y_title, sizeof y_title, "%s, %s", result_fields[fld].name,
+			 result_fields[fld].unit);
+		const struct chart c = {title, y_title, {REPORT_SERIES_ALARM0 + j, 0}, 1, 0.0,
+					110.0, 0.0, CHART_UNIT_FIXED, false};
+		write_chart(f, rp, fr, k, &c, j + 1 == extra);
+	}
 }

@@ -82,6 +82,30 @@ static void test_tray_limits_are_where_the_model_says_100(void **state)
 	assert_true(vals[gi] > w.y_weep[mid]);
 }
 
+/* With a capacity_factor the calibrated flood limit is drawn too: there the
+ * calibrated model says 100 %; the model's own limit stays uncalibrated, so
+ * a factor above 1 (more capacity than the handbook's) puts the calibrated
+ * limit above it. */
+static void test_calibrated_limit_with_capacity_factor(void **state)
+{
+	(void)state;
+	int si = config_section_index(&cfg, "C401");
+	struct section_cfg *s = &cfg.sections[si];
+	const double keep = s->geom.capacity_factor;
+	s->geom.capacity_factor = 1.2;
+	int gi = s->signal[SIGNAL_GAS_FLOW], xi = s->signal[SIGNAL_LIQUID_FLOW];
+	struct report_window w;
+	memset(&w, 0, sizeof w);
+	assert_int_equal(opwindow_compute(&cfg, (unsigned)si, vals, 2.0 * vals[xi], &w), 0);
+	assert_true(w.has_cal);
+	for (unsigned i = 1; i < REPORT_WINDOW_POINTS; i += 10) {
+		assert_true(fabs(eval((unsigned)si, gi, xi, w.y_cal[i], w.x[i], RF_FLOOD_PCT) -
+				 100.0) < 1e-6);
+		assert_true(w.y_cal[i] > w.y_flood[i]);
+	}
+	s->geom.capacity_factor = keep;
+}
+
 static void test_bubble_column_uses_its_level(void **state)
 {
 	(void)state;
@@ -123,6 +147,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_tray_limits_are_where_the_model_says_100),
+		cmocka_unit_test(test_calibrated_limit_with_capacity_factor),
 		cmocka_unit_test(test_bubble_column_uses_its_level),
 		cmocka_unit_test(test_section_without_gas_flow_is_refused),
 	};

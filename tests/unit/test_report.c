@@ -886,6 +886,77 @@ static void test_event_markers_and_alarm_performance(void **state)
 	free(page);
 }
 
+/* Every alarm's watched signal is charted: a high alarm on dp_slope of a
+ * tray (a field no tray chart shows) gets a chart of its own with its
+ * setpoint; a second alarm on the same field shares it; a diagnostic alarm
+ * (quality) gets none. */
+static void test_alarm_on_an_uncharted_field_gets_its_own_chart(void **state)
+{
+	(void)state;
+	struct report_layout l;
+	small_layout(&l, "K7");
+	add_alarm(&l, "K7_SLOPE_HI", 0, RF_DP_SLOPE, "high", "medium", 4.0);
+	add_alarm(&l, "K7_SLOPE_HH", 0, RF_DP_SLOPE, "high-high", "high", 6.0);
+	add_alarm(&l, "K7_DIAG", 0, -1, "diagnostic", "low", NAN);
+	struct report rp;
+	assert_int_equal(report_init(&rp, &l), 0);
+	struct section_result r;
+	for (int i = 0; i < 600; i += 10) {
+		fill_result(&r, 70.0);
+		r.v[RF_DP_SLOPE] = 2.0 + i / 200.0;
+		assert_int_equal(report_add_row(&rp, T0_MS + i * 1000, &r), 0);
+	}
+	struct report_summary sum;
+	report_summary_clear(&sum);
+	char path[128];
+	tmp_path(path, sizeof path, "slope.html");
+	assert_int_equal(report_write(&rp, path, &sum), 0);
+	report_fini(&rp);
+	char *page = slurp(path, NULL);
+	assert_int_equal(count_of(page, ">Watched by an alarm: dp_slope</text>"), 1);
+	assert_int_equal(count_of(page, "<svg"), 6 + 1); /* the tray's six and dp_slope's */
+	assert_non_null(strstr(page, ">K7_SLOPE_HI: dp_slope 4.00</text>"));
+	assert_non_null(strstr(page, ">K7_SLOPE_HH: dp_slope 6.00</text>"));
+	assert_int_equal(count_of(page, "<path class=\"s15\" d=\"M"), 2); /* legend + line */
+	free(page);
+}
+
+/* DP in the DP tag's unit: values, axis and setpoint label in mbar
+ * (100 Pa per mbar); the loads' axes name their tags' units. */
+static void test_dp_in_its_tags_unit(void **state)
+{
+	(void)state;
+	struct report_layout l;
+	small_layout(&l, "K7");
+	snprintf(l.sections[0].dp_unit, sizeof l.sections[0].dp_unit, "mbar");
+	l.sections[0].dp_pa_per_unit = 100.0;
+	snprintf(l.sections[0].load_y_tag, sizeof l.sections[0].load_y_tag, "K7_FI_GAS");
+	snprintf(l.sections[0].load_y_unit, sizeof l.sections[0].load_y_unit, "t/h");
+	add_alarm(&l, "K7_DP_HI", 0, RF_DP_PA, "high", "medium", 1900.0);
+	struct report rp;
+	assert_int_equal(report_init(&rp, &l), 0);
+	struct section_result r;
+	double loads[2] = {24.0, NAN};
+	for (int i = 0; i < 600; i += 10) {
+		fill_result(&r, 70.0); /* dp_pa 400 + 6 x 70 = 820 Pa = 8.2 mbar */
+		assert_int_equal(report_add_row_loads(&rp, T0_MS + i * 1000, &r, loads), 0);
+	}
+	struct report_summary sum;
+	report_summary_clear(&sum);
+	char path[128];
+	tmp_path(path, sizeof path, "dpunit.html");
+	assert_int_equal(report_write(&rp, path, &sum), 0);
+	report_fini(&rp);
+	char *page = slurp(path, NULL);
+	assert_non_null(strstr(page, "rotate(-90)\">DP, mbar</text>"));
+	assert_non_null(strstr(page, ">K7_DP_HI: dp_pa 19.0 mbar</text>"));
+	assert_non_null(strstr(page, "rotate(-90)\">gas, t/h</text>"));
+	assert_non_null(strstr(page, ">K7_FI_GAS</text>"));
+	/* the DP axis spans the data and the setpoint in mbar: 0..20 */
+	assert_non_null(strstr(page, ">20</text>"));
+	free(page);
+}
+
 /* With FG_REPORT_OUT set, the demo page also goes there, for the render
  * test (tests/integration/report_render.sh) to look at. */
 static void test_demo_page_for_render_check(void **state)
@@ -947,6 +1018,8 @@ int main(void)
 		cmocka_unit_test(test_events_beyond_limit_are_counted),
 		cmocka_unit_test(test_bad_quality_and_extrapolation_show_in_strip),
 		cmocka_unit_test(test_event_markers_and_alarm_performance),
+		cmocka_unit_test(test_alarm_on_an_uncharted_field_gets_its_own_chart),
+		cmocka_unit_test(test_dp_in_its_tags_unit),
 		cmocka_unit_test(test_demo_page_for_render_check),
 	};
 	return cmocka_run_group_tests_name("report", tests, group_setup, group_teardown);
