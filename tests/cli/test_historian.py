@@ -162,6 +162,20 @@ ok(all(rc == 0 for rc, so in tune_out) and tune_out[0][1] == tune_out[1][1] == t
    and '"first_activation":"2026-10-25T00:31:50Z"' in tune_out[0][1],
    "tune gives the same candidates from the three forms", tune_out)
 
+# --- calibrate reads through the same reader too, and --flood-at in the zone
+cal = []
+for cfgp, data, extra in ((DEMO, path("utc.csv"), []),
+                          (SITE, path("wide.csv"), ["--tz", "Europe/Berlin"]),
+                          (SITE, path("long.csv"), [])):
+    rc, so, se = fg("calibrate", "-c", cfgp, data, "--section", "C401", "--json", *extra)
+    cal.append((rc, so))
+ok(all(rc == 0 for rc, so in cal) and cal[0][1] == cal[1][1] == cal[2][1],
+   "calibrate gives the same fit from the three forms", cal)
+rc, so, se = fg("calibrate", "-c", SITE, path("wide.csv"), "--tz", "Europe/Berlin", "--section",
+                "C401", "--flood-at", "2026-10-25 02:30", "--json")
+ok(rc == 0 and '"flood_onset":"2026-10-25T00:30:00Z"' in so and '"onset_method":"given"' in so,
+   "calibrate --flood-at 02:30 local (first pass) is 00:30Z", so + se)
+
 # --- a long file with a tag that never appears: warned at the end
 long_lines = [x for x in open(path("long.csv")).read().splitlines()
               if not x.startswith("U40.R404.TI.PV,")]
