@@ -18,12 +18,20 @@
  * setter call changes atomically for readers, so write a float32 (two
  * registers) or a whole export block in one call.
  *
- * Up to MBSERVER_CLIENTS_MAX clients are served side by side (one request at
- * a time); more are accepted and closed at once. A client that disconnects,
- * stalls in mid-frame for longer than the byte timeout, or stops reading its
- * replies is dropped, and the others go on. Garbage is answered with an
- * exception after a short flush (MBSERVER_FLUSH_WAIT_MS), or drops the client
- * when it leaves a frame incomplete. The listening address is the caller's: pass
+ * Hostile clients. Up to MBSERVER_CLIENTS_MAX clients are served side by
+ * side, at most limits.per_address of them from one client address, so that
+ * nobody can take every slot from the control system's poller (existing
+ * clients are never evicted; a newcomer over a limit is accepted and closed
+ * at once, and counted). Each client has its own receive buffer: the thread
+ * reads whatever has arrived from each client without waiting, and answers
+ * a request only when its frame is complete (the MBAP length says how long
+ * it is), so a client sending a byte at a time delays nobody else. A client
+ * is dropped when a request is not complete limits.request_timeout_ms after
+ * its first byte, when it has sent nothing for limits.idle_timeout_ms, when
+ * its MBAP header is not Modbus (protocol id not 0, length outside 2..254),
+ * when it disconnects, or when it stops reading its replies. A well-framed
+ * request with a function code we do not serve is answered with exception 1
+ * and the client stays in step. The listening address is the caller's: pass
  * "127.0.0.1" unless the control system must reach it from outside.
  *
  * read_only: every write function code (5, 6, 15, 16, 22, 23) is answered
@@ -39,18 +47,19 @@
 
 #include <modbus.h>
 
-/* Clients served at once: the control system, a second HMI, an engineer's
- * tool, with room to spare. */
-#define MBSERVER_CLIENTS_MAX 8
+/* Clients served at once: the control system's pollers (often a redundant
+ * pair), HMIs, an engineer's tool, with room to spare; at most
+ * limits.per_address from one address. */
+#define MBSERVER_CLIENTS_MAX 32
 
-/* A client stalled in mid-frame is dropped after this long, ms. */
-#define MBSERVER_BYTE_TIMEOUT_MS 200
-
-/* After a request with an unknown function code (garbage, most often)
- * libmodbus waits this long for the rest of the junk, throws away whatever
- * has arrived, and answers exception 1; the client then stays connected and
- * in step. The thread serves nobody else meanwhile, so it is short, ms. */
-#define MBSERVER_FLUSH_WAIT_MS 50
+/* Defaults of struct mbserver_limits (mbserver_open uses them). A poller asks
+ * every second or few: a minute of silence is a forgotten client holding a
+ * slot. A request is at most 260 bytes, sent at once by any real client: a
+ * second from its first byte to its last is generous. Four connections per
+ * address leave room for a redundant poller pair and a reconnect overlap. */
+#define MBSERVER_IDLE_TIMEOUT_MS 60000
+#define MBSERVER_REQUEST_TIMEOUT_MS 1000
+#define MBSERVER_PER_ADDRESS 4
 
 /* Kernel send buffer per client, bytes (Linux doubles it): about 600 short
  * replies. A client that lets more pile up unread is dropped. */
@@ -67,12 +76,31 @@ struct mbserver_map_cfg {
 	uint16_t discrete_count;
 };
 
+struct mbserver_limits {
+	unsigned idle_timeout_ms;      /* drop a client silent this long (> 0) */
+	unsigned request_timeout_ms;   /* drop a client whose request is not complete this
+					  long after its first byte (> 0) */
+	unsigned per_address;          /* connections one client address may hold,
+					  1..MBSERVER_CLIENTS_MAX */
+};
+
 struct mbserver_stats {
 	unsigned long requests;         /* requests answered (with data or an exception) */
 	unsigned long writes_refused;   /* write requests refused because read-only */
 	unsigned long clients_accepted;
-	unsigned long clients_dropped;  /* disconnected, garbage, stalled, or not reading */
-	unsigned long clients_refused;  /* over MBSERVER_CLIENTS_MAX */
+	unsigned long clients_dropped;  /* disconnected, garbage, timed out, or not reading */
+	unsigned long clients_timed_out;/* of the dropped: idle or request too slow */
+	unsigned long clients_refused;  /* over MBSERVER_CLIENTS_MAX or per_address */
+};
+
+/* One client slot (private). */
+struct mbserver_client {
+	int fd;                                /* -1 = free slot */
+	unsigned char addr[16];                /* peer address (IPv4 mapped into 16 bytes) */
+	unsigned have;                         /* bytes of the current request in buf */
+	int64_t first_byte_mono_ms;            /* when the current request began */
+	int64_t last_seen_mono_ms;             /* accept or last byte received */
+	uint8_t buf[MODBUS_TCP_MAX_ADU_LENGTH];
 };
 
 /* Private: use the functions below. */
@@ -82,13 +110,13 @@ struct mbserver {
 	int port;
 	int listen_fd;
 	int wake_fd[2];                        /* close writes wake_fd[1] to stop the thread */
-	int client_fd[MBSERVER_CLIENTS_MAX];   /* -1 = free slot */
+	struct mbserver_limits limits;
+	struct mbserver_client client[MBSERVER_CLIENTS_MAX];
 	modbus_t *ctx;                         /* framing only, never connected */
 	modbus_mapping_t *map;                 /* guarded by lock */
 	struct mbserver_stats stats;           /* guarded by lock */
 	pthread_mutex_t lock;
 	pthread_t thread;
-	uint8_t query[MODBUS_TCP_MAX_ADU_LENGTH];
 };
 
 /*
@@ -97,9 +125,14 @@ struct mbserver {
  * Returns 0, -EINVAL (bad map or port), -ENOMEM, or the socket error
  * (-EADDRINUSE, -EADDRNOTAVAIL, ...; -ENOENT when host does not resolve).
  * On failure nothing is left open and mbserver_close(s) is harmless.
+ * mbserver_open uses the default limits (MBSERVER_*_MS, MBSERVER_PER_ADDRESS);
+ * mbserver_open_limits takes them (-EINVAL when one is out of range).
  */
 int mbserver_open(struct mbserver *s, const char *host, int port,
 		  const struct mbserver_map_cfg *map, bool read_only);
+int mbserver_open_limits(struct mbserver *s, const char *host, int port,
+			 const struct mbserver_map_cfg *map, bool read_only,
+			 const struct mbserver_limits *limits);
 
 /* The port listened on, or -1 when not open. */
 int mbserver_port(const struct mbserver *s);

@@ -30,7 +30,12 @@ int export_open(struct export *x, const struct fg_config *cfg)
 		.discrete_start = 0,
 		.discrete_count = (uint16_t)(2u * cfg->alarm_count),
 	};
-	int rc = mbserver_open(&x->srv, cfg->exp.host, cfg->exp.port, &map, true);
+	const struct mbserver_limits lim = {
+		.idle_timeout_ms = (unsigned)(cfg->exp.idle_timeout_s * 1000.0),
+		.request_timeout_ms = (unsigned)(cfg->exp.request_timeout_s * 1000.0),
+		.per_address = cfg->exp.clients_per_address,
+	};
+	int rc = mbserver_open_limits(&x->srv, cfg->exp.host, cfg->exp.port, &map, true, &lim);
 	if (rc == 0)
 		x->opened = true;
 	return rc;

@@ -244,8 +244,10 @@ static void test_serves_several_clients_in_turn_and_at_once(void **state)
 
 static void test_survives_garbage_and_abrupt_disconnects(void **state)
 {
-	/* 8 bytes that parse as an MBAP header with the unknown function 0x20 */
+	/* Not an MBAP header: protocol id "ve", length "l " (27680 > 254) */
 	static const char junk[] = "level 3 trip?\xff\xff\xff";
+	/* A well-framed request with the unknown function 0x20, transaction 0x0304 */
+	static const uint8_t unknown[8] = {3, 4, 0, 0, 0, 2, 0xFF, 0x20};
 	/* FC 3, read 1 holding register from 0, transaction 0x0102, unit 255 */
 	static const uint8_t req[12] = {1, 2, 0, 0, 0, 6, 0xFF, 3, 0, 0, 0, 1};
 	uint8_t rsp[64];
@@ -256,11 +258,16 @@ static void test_survives_garbage_and_abrupt_disconnects(void **state)
 
 	int fd = raw_connect();
 	assert_true(send(fd, junk, sizeof junk - 1, MSG_NOSIGNAL) > 0);
-	/* exception 1 to the first 8 bytes; the rest is flushed (libmodbus) */
-	assert_int_equal(recv(fd, rsp, sizeof rsp, 0), 9);
+	assert_true(wait_closed_by_server(fd)); /* not Modbus: dropped at once */
+	close(fd);
+
+	fd = raw_connect();
+	assert_int_equal(send(fd, unknown, sizeof unknown, MSG_NOSIGNAL), 8);
+	assert_int_equal(recv(fd, rsp, sizeof rsp, 0), 9); /* exception 1, at once */
+	assert_int_equal(rsp[0], 3);
 	assert_int_equal(rsp[7], 0x20 | 0x80);
 	assert_int_equal(rsp[8], MODBUS_EXCEPTION_ILLEGAL_FUNCTION);
-	/* and the same connection is in step again */
+	/* and the same connection is in step */
 	assert_int_equal(send(fd, req, sizeof req, MSG_NOSIGNAL), (ssize_t)sizeof req);
 	assert_int_equal(recv(fd, rsp, sizeof rsp, 0), 11);
 	assert_int_equal(rsp[0], 1);
@@ -278,8 +285,105 @@ static void test_survives_garbage_and_abrupt_disconnects(void **state)
 	client_done(late);
 	client_done(good);
 	mbserver_get_stats(&srv, &st);
-	assert_true(st.clients_dropped >= 1);
-	assert_int_equal(st.clients_accepted, 4);
+	assert_true(st.clients_dropped >= 2);
+	assert_int_equal(st.clients_accepted, 5);
+}
+
+/* A client sending a request a byte every 150 ms (the attack that used to
+ * make the server unreachable) holds up nobody, and is dropped when its
+ * request is not complete a second after its first byte. */
+static void test_byte_at_a_time_client_delays_nobody(void **state)
+{
+	static const uint8_t req[12] = {0, 9, 0, 0, 0, 6, 0xFF, 3, 0, 0, 0, 1};
+	uint16_t r;
+	struct mbserver_stats st;
+	(void)state;
+	int fd = raw_connect();
+	modbus_t *c = client();
+	bool dropped = false;
+	for (unsigned i = 0; i < sizeof req && !dropped; i++) {
+		if (send(fd, &req[i], 1, MSG_NOSIGNAL) != 1)
+			dropped = true;
+		/* the good client is answered between the dribbled bytes */
+		assert_int_equal(modbus_read_registers(c, 0, 1, &r), 1);
+		struct timespec ts = {.tv_sec = 0, .tv_nsec = 150 * 1000 * 1000};
+		nanosleep(&ts, NULL);
+	}
+	assert_true(wait_closed_by_server(fd)); /* 12 x 150 ms > the 1 s request limit */
+	close(fd);
+	client_done(c);
+	mbserver_get_stats(&srv, &st);
+	assert_int_equal(st.clients_timed_out, 1);
+}
+
+/* Connections from one address beyond the limit are refused; another
+ * address (127.0.0.2, also loopback on Linux) is still served. */
+static void test_per_address_limit_keeps_a_slot_for_others(void **state)
+{
+	int fds[MBSERVER_PER_ADDRESS + 2];
+	uint16_t r;
+	struct mbserver_stats st;
+	(void)state;
+	for (unsigned i = 0; i < MBSERVER_PER_ADDRESS + 2; i++)
+		fds[i] = raw_connect(); /* idle connections from 127.0.0.1 */
+	assert_true(wait_closed_by_server(fds[MBSERVER_PER_ADDRESS]));
+	assert_true(wait_closed_by_server(fds[MBSERVER_PER_ADDRESS + 1]));
+	struct sockaddr_in from = {.sin_family = AF_INET};
+	from.sin_addr.s_addr = htonl(0x7f000002); /* 127.0.0.2 */
+	struct sockaddr_in to = {.sin_family = AF_INET};
+	to.sin_port = htons((uint16_t)mbserver_port(&srv));
+	to.sin_addr.s_addr = htonl(INADDR_LOOPBACK);
+	int other = socket(AF_INET, SOCK_STREAM, 0);
+	assert_int_equal(bind(other, (struct sockaddr *)&from, sizeof from), 0);
+	assert_int_equal(connect(other, (struct sockaddr *)&to, sizeof to), 0);
+	modbus_t *ctx = modbus_new_tcp("127.0.0.1", mbserver_port(&srv));
+	modbus_set_socket(ctx, other);
+	modbus_set_response_timeout(ctx, 1, 0);
+	assert_int_equal(modbus_read_registers(ctx, 0, 1, &r), 1);
+	modbus_free(ctx);
+	close(other);
+	for (unsigned i = 0; i < MBSERVER_PER_ADDRESS + 2; i++)
+		close(fds[i]);
+	mbserver_get_stats(&srv, &st);
+	assert_int_equal(st.clients_refused, 2);
+}
+
+/* An idle client is dropped after the idle timeout (200 ms here). */
+static void test_idle_client_is_dropped(void **state)
+{
+	struct mbserver s2;
+	struct mbserver_stats st;
+	const struct mbserver_limits lim = {
+		.idle_timeout_ms = 200, .request_timeout_ms = 100, .per_address = 2};
+	(void)state;
+	assert_int_equal(mbserver_open_limits(&s2, "127.0.0.1", 0, &map, true, &lim), 0);
+	struct sockaddr_in a = {.sin_family = AF_INET};
+	a.sin_port = htons((uint16_t)mbserver_port(&s2));
+	a.sin_addr.s_addr = htonl(INADDR_LOOPBACK);
+	int fd = socket(AF_INET, SOCK_STREAM, 0);
+	assert_int_equal(connect(fd, (struct sockaddr *)&a, sizeof a), 0);
+	assert_true(wait_closed_by_server(fd));
+	close(fd);
+	mbserver_get_stats(&s2, &st);
+	assert_int_equal(st.clients_timed_out, 1);
+	mbserver_close(&s2);
+	const struct mbserver_limits bad = {.idle_timeout_ms = 0, .request_timeout_ms = 1,
+					    .per_address = 1};
+	assert_int_equal(mbserver_open_limits(&s2, "127.0.0.1", 0, &map, true, &bad), -EINVAL);
+}
+
+static void test_request_with_a_wrong_length_gets_exception_3(void **state)
+{
+	/* FC 3 with an MBAP length of 8 (two stray bytes): illegal data value */
+	static const uint8_t req[14] = {0, 7, 0, 0, 0, 8, 0xFF, 3, 0, 0, 0, 1, 0, 0};
+	uint8_t rsp[64];
+	(void)state;
+	int fd = raw_connect();
+	assert_int_equal(send(fd, req, sizeof req, MSG_NOSIGNAL), (ssize_t)sizeof req);
+	assert_int_equal(recv(fd, rsp, sizeof rsp, 0), 9);
+	assert_int_equal(rsp[7], 3 | 0x80);
+	assert_int_equal(rsp[8], MODBUS_EXCEPTION_ILLEGAL_DATA_VALUE);
+	close(fd);
 }
 
 static void test_client_stalled_mid_frame_is_dropped_and_others_served(void **state)
@@ -390,6 +494,10 @@ int main(void)
 		T_RO(test_serves_several_clients_in_turn_and_at_once),
 		T_RO(test_survives_garbage_and_abrupt_disconnects),
 		T_RO(test_client_stalled_mid_frame_is_dropped_and_others_served),
+		T_RO(test_byte_at_a_time_client_delays_nobody),
+		T_RO(test_per_address_limit_keeps_a_slot_for_others),
+		T_RO(test_idle_client_is_dropped),
+		T_RO(test_request_with_a_wrong_length_gets_exception_3),
 		T_RO(test_setters_do_not_wait_for_a_client_that_does_not_read),
 		T_RO(test_open_refuses_a_bad_map_and_a_busy_port),
 		T_RO(test_close_stops_listening_and_is_idempotent),
