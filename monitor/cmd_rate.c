@@ -9,6 +9,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "check_run.h"
 #include "commands.h"
 #include "config.h"
 #include "jsonw.h"
@@ -79,6 +80,10 @@ int cmd_check(int argc, char **argv)
 	struct fg_config *cfg = load_or_report(path);
 	if (cfg == NULL)
 		return EXIT_USAGE;
+	if (check_run(cfg, stderr, NULL) > 0) {
+		free(cfg);
+		return EXIT_USAGE;
+	}
 	unsigned by_type[SECTION_TYPE_COUNT] = {0};
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		by_type[cfg->sections[i].geom.type]++;

@@ -20,6 +20,10 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include <fcntl.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
 #include <ini.h>
 #include "suggest.h"
 
@@ -415,16 +419,59 @@ static bool header_of(const char *line, char *out, size_t cap)
 	return true;
 }
 
+/* One line into str (at most num - 1 bytes), as fgets would, but a NUL byte
+ * is seen (fgets would hide the rest of the line behind it) and a lone CR
+ * ends a line too, so a file with old Mac line ends is reported once, by
+ * line, instead of as one over-long line. Returns the byte count (0 at the
+ * end of the file); *nul and *lone_cr report what was met. */
+static size_t read_line(FILE *in, char *str, size_t num, bool *nul, bool *lone_cr)
+{
+	size_t n = 0;
+	int ch = 0;
+	while (n + 1 < num && (ch = fgetc(in)) != EOF) {
+		if (ch == '\0') {
+			*nul = true;
+			ch = ' ';
+		}
+		if (ch == '\r') {
+			int next = fgetc(in);
+			if (next != '\n') {
+				*lone_cr = true;
+				if (next != EOF)
+					ungetc(next, in);
+			}
+			ch = '\n';
+		}
+		str[n++] = (char)ch;
+		if (ch == '\n')
+			break;
+	}
+	str[n] = '\0';
+	return n;
+}
+
 static char *reader(char *str, int num, void *stream)
 {
 	struct config_ctx *c = stream;
-	if (fgets(str, num, c->in) == NULL)
+	bool nul = false, lone_cr = false;
+	size_t n = read_line(c->in, str, (size_t)num, &nul, &lone_cr);
+	if (n == 0)
 		return NULL;
 	c->line++;
-	size_t n = strlen(str);
+	if (lone_cr && !c->lone_cr_said) {
+		config_error(c, c->line, "line ends with a lone CR (old Mac line ends): save the file "
+					 "with LF or CRLF line ends");
+		c->lone_cr_said = true;
+	}
+	if (nul) {
+		config_error(c, c->line, "NUL byte in the line: is this a text file?");
+		str[0] = ';'; /* hand inih a comment instead */
+		str[1] = '\0';
+		return str;
+	}
 	if (n > 0 && str[n - 1] != '\n' && !feof(c->in)) {
 		int ch;
-		while ((ch = fgetc(c->in)) != EOF && ch != '\n')
+		while ((ch = fgetc(c->in)) != EOF && ch != '\n' && ch != '\r')
 			;
 		config_error(c, c->line, "line longer than %d characters", num - 2);
 		str[0] = ';'; /* hand inih a comment instead */
@@ -453,6 +500,47 @@ static char *reader(char *str, int num, void *stream)
 	return str;
 }
 
+/* Opens path for reading if it is a regular file of a sane size: a device
+ * (/dev/zero), a FIFO or a directory would hang or make no sense, and no
+ * config is anywhere near CONFIG_FILE_MAX. O_NONBLOCK so that opening a FIFO
+ * does not wait for a writer. Returns 0, or -errno / -EINVAL after saying why
+ * on errf. */
+static int config_open_file(const char *path, FILE *errf, FILE **out)
+{
+	int fd = open(path, O_RDONLY | O_NONBLOCK | O_CLOEXEC);
+	if (fd < 0) {
+		int e = errno;
+		if (errf)
+			fprintf(errf, "%s: cannot open: %s\n", path, strerror(e));
+		return -e;
+	}
+	struct stat st;
+	const char *why = NULL;
+	if (fstat(fd, &st) != 0)
+		why = "cannot stat it";
+	else if (!S_ISREG(st.st_mode))
+		why = S_ISDIR(st.st_mode) ? "is a directory, not a config file"
+					  : "is not a regular file (a device, FIFO or socket)";
+	else if (st.st_size > CONFIG_FILE_MAX)
+		why = "is larger than any config (limit 1 MiB): is it the right file?";
+	if (why != NULL) {
+		if (errf)
+			fprintf(errf, "%s: %s\n", path, why);
+		close(fd);
+		return -EINVAL;
+	}
+	int fl = fcntl(fd, F_GETFL);
+	if (fl >= 0)
+		(void)fcntl(fd, F_SETFL, fl & ~O_NONBLOCK);
+	*out = fdopen(fd, "r");
+	if (*out == NULL) {
+		int e = errno;
+		close(fd);
+		return -e;
+	}
+	return 0;
+}
+
 int config_load(struct fg_config *cfg, const char *path, FILE *errf)
 {
 	assert(cfg != NULL);
@@ -469,13 +557,9 @@ int config_load(struct fg_config *cfg, const char *path, FILE *errf)
 	c->path = path;
 	c->errf = errf;
 	int rc = 0;
-	c->in = fopen(path, "r");
-	if (c->in == NULL) {
-		rc = -errno;
-		if (errf)
-			fprintf(errf, "%s: cannot open: %s\n", path, strerror(errno));
+	rc = config_open_file(path, errf, &c->in);
+	if (rc != 0)
 		goto out_free;
-	}
 	int ir = ini_parse_stream(reader, c, handler, c);
 	if (ir > 0 && c->error_count == 0)
 		config_error(c, ir, "not a valid INI line");

@@ -64,6 +64,7 @@ struct config_ctx {
 	char export_fields[4096];
 	int export_fields_line;
 	uint32_t monitor_keys_set, mqtt_keys_set, export_keys_set, replay_keys_set;
+	bool lone_cr_said;          /* the lone-CR line ends were reported */
 	unsigned seen_count;
 	struct pending_name seen[CONFIG_HEADERS_MAX]; /* headers seen, for duplicates */
 };
@@ -77,6 +78,9 @@ void config_warn(struct config_ctx *c, int line, const char *fmt, ...)
 void config_collect_warnings(struct config_ctx *c);
 /* The line of the [alarm.NAME] header, 0 when unknown. */
 int config_alarm_header_line(struct config_ctx *c, const char *name);
+
+/* Largest config file read, bytes (the demo is about 12 KiB). */
+#define CONFIG_FILE_MAX (1024 * 1024)
 /* Defaults of the daemon's robustness keys (events rotation, command age,
  * export timeouts), set before the file is read. */
 void config_runtime_defaults(struct fg_config *cfg);

@@ -34,6 +34,9 @@ static int64_t wall_ms(void)
 	return (int64_t)ts.tv_sec * 1000 + ts.tv_nsec / 1000000;
 }
 
+/* How often a listen address that did not resolve is tried again, ms. */
+#define DAEMON_EXPORT_RETRY_MS 5000
+
 /* Longest sleep between looks at the MQTT link, ms. */
 #define DAEMON_LINK_SLICE_MS 100
 
@@ -257,6 +260,33 @@ static void mqtt_housekeeping(struct daemon *d, int64_t now_mono, int64_t t_ms)
 	}
 }
 
+/* Starts the export server. A listen address that does not resolve or is not
+ * configured yet (DNS or the interface late at boot) is retried every
+ * DAEMON_EXPORT_RETRY_MS from the loop, said once; other errors (the port in
+ * use, say) are fatal at start. Returns 0, or -1 when run must stop. */
+static int open_export(struct daemon *d, bool first)
+{
+	int rc = export_open(&d->exp, d->cfg);
+	const char *host = d->cfg->exp.host;
+	if (rc == 0) {
+		log_msg(LOG_INFO, "export: serving on %s:%d", host, d->cfg->exp.port);
+		d->export_waiting = false;
+		return 0;
+	}
+	if (rc == -ENOENT || rc == -EADDRNOTAVAIL) {
+		if (!d->export_waiting)
+			log_msg(LOG_WARNING, "export: cannot listen on %s:%d: %s; retrying every %d s",
+				host, d->cfg->exp.port,
+				rc == -ENOENT ? "the host name does not resolve" : strerror(-rc),
+				DAEMON_EXPORT_RETRY_MS / 1000);
+		d->export_waiting = true;
+		return 0;
+	}
+	log_msg(LOG_ERROR, "export: cannot listen on %s:%d: %s", host, d->cfg->exp.port,
+		strerror(-rc));
+	return first ? -1 : 0;
+}
+
 /* Opens the plant, the export and MQTT for d->cfg. Returns 0 or an exit code. */
 static int open_links(struct daemon *d)
 {
@@ -274,15 +304,8 @@ static int open_links(struct daemon *d)
 		log_msg(LOG_WARNING, "a poll of every source may block %.2f s when devices time "
 				     "out, more than period_s %.2f s: cycles will overrun then",
 			worst_s, d->cfg->monitor.period_s);
-	if (d->cfg->exp.enabled) {
-		int rc = export_open(&d->exp, d->cfg);
-		if (rc != 0) {
-			log_msg(LOG_ERROR, "export: cannot listen on %s:%d: %s", d->cfg->exp.host,
-				d->cfg->exp.port, strerror(-rc));
-			return EXIT_RUNTIME;
-		}
-		log_msg(LOG_INFO, "export: serving on %s:%d", d->cfg->exp.host, d->cfg->exp.port);
-	}
+	if (d->cfg->exp.enabled && open_export(d, true) != 0)
+		return EXIT_RUNTIME;
 	d->mqtt_connects = 0; /* a new link counts from 0 */
 	d->cmd_full_seen = d->cmd_bad_seen = d->cmd_retained_seen = 0;
 	if (publish_open(&d->pub, d->cfg) != 0)
@@ -352,6 +375,10 @@ static void cycle(struct daemon *d, int64_t now_mono)
 	mqtt_housekeeping(d, now_mono, t_ms);
 	commands(d, t_ms);
 	publish_states(d, t_ms, now_mono);
+	if (d->export_waiting && now_mono - d->export_tried_mono_ms >= DAEMON_EXPORT_RETRY_MS) {
+		d->export_tried_mono_ms = now_mono;
+		open_export(d, false);
+	}
 	export_update(&d->exp, d->eng);
 	save_state(d, t_ms);
 	if (d->view) {

@@ -33,7 +33,9 @@ struct daemon {
 	struct evlog events;
 	bool events_on;            /* [monitor] events_file given and opened */
 	bool state_dirty;
-	bool state_failing;        /* saving the state file fails (said once) */
+	bool state_failing;
+	bool export_waiting;       /* the export's address did not resolve: retrying */
+	int64_t export_tried_mono_ms;        /* saving the state file fails (said once) */
 	unsigned mqtt_connects;    /* connects seen: a new one republishes every alarm */
 	uint64_t cmd_full_seen, cmd_bad_seen, cmd_retained_seen; /* drops already replied to */
 	int64_t start_mono_ms;
