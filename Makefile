@@ -6,6 +6,8 @@
 #   make test SAN=1 the same under AddressSanitizer + UndefinedBehaviorSanitizer (build/san/)
 #   make bench      performance figures (printed, never asserted)
 #   make install    PREFIX=/usr/local DESTDIR=
+#   make deb        the Debian package (dpkg-buildpackage), in build/deb/
+#   make fuzz       each libFuzzer target for FUZZ_SECONDS (default 60) s
 #
 # Knobs: CC, SAN=0|1, WERROR=1|0 (0 for packagers on newer compilers), PREFIX, DESTDIR.
 
@@ -30,11 +32,11 @@ WARN += -Werror
 endif
 
 # Recursively expanded on purpose: pkg-config may only exist after `make deps`.
-PKG_CFLAGS = $(shell pkg-config --cflags libmodbus inih libcjson 2>/dev/null)
-PKG_LIBS   = $(shell pkg-config --libs libmodbus inih libcjson 2>/dev/null) -lpaho-mqtt3as
+PKG_CFLAGS = $(shell pkg-config --cflags libmodbus inih libcjson libsystemd 2>/dev/null)
+PKG_LIBS   = $(shell pkg-config --libs libmodbus inih libcjson libsystemd 2>/dev/null) -lpaho-mqtt3as
 
 CPPFLAGS := -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -Imodels -Imonitor -Idrivers -Ireplay
-CFLAGS   := -std=c11 $(OPT) $(WARN) -MMD -MP
+CFLAGS   := -std=c11 $(OPT) $(WARN) -MMD -MP $(EXTRA_CFLAGS)
 LDLIBS    = $(PKG_LIBS) -lm -lpthread
 
 LIB_SRC  := $(wildcard models/*.c drivers/*.c replay/*.c) $(filter-out monitor/main.c,$(wildcard monitor/*.c))
@@ -52,19 +54,20 @@ TEST_BIN := $(TEST_SRC:tests/%.c=$(BUILD)/tests/%)
 REF_OBJ  := $(wildcard models/*.c)
 REF_SO   := build/ref/libfgmodels.so
 
-.PHONY: all bin deps run test tests-bin bench install clean
+.PHONY: all bin deps run test tests-bin bench install install-files deb fuzz clean
 .DEFAULT_GOAL := all
 
 all: deps
 	@$(MAKE) --no-print-directory bin
 
+# tools/deps.sh installs per use: build, run (the demo), test, fuzz, deb.
 deps:
-	@sh tools/deps.sh
+	@sh tools/deps.sh build
 
 bin: $(BIN)
 
 $(BIN): $(MAIN_OBJ) $(BUILD)/libfg.a
-	$(CC) $(CFLAGS) -o $@ $^ $(LDLIBS)
+	$(CC) $(CFLAGS) $(EXTRA_LDFLAGS) -o $@ $^ $(LDLIBS)
 
 $(BUILD)/libfg.a: $(LIB_OBJ)
 	@mkdir -p $(@D)
@@ -88,11 +91,13 @@ $(REF_SO): $(REF_OBJ) $(wildcard models/*.h)
 
 tests-bin: $(BIN) $(TEST_BIN) $(REF_SO)
 
-test: deps
+test:
+	@sh tools/deps.sh test
 	@$(MAKE) --no-print-directory tests-bin
 	@FG_BUILD=$(BUILD) FG_BIN=$(BIN) FG_REF_SO=$(REF_SO) SAN=$(SAN) sh tests/run.sh
 
-run: deps
+run:
+	@sh tools/deps.sh run
 	@$(MAKE) --no-print-directory bin
 	@FG_BIN=$(BIN) sh tools/demo.sh
 
@@ -110,6 +115,12 @@ bench: deps
 	@FG_BIN=$(BIN) FG_TOOLS=$(BUILD)/tools sh tools/bench.sh
 
 install: all
+	@$(MAKE) --no-print-directory install-files
+
+# What `install` copies, without building or installing packages first (the
+# Debian package's rules call this). CONF_DIR and SYSTEMD_UNIT_DIR, when set,
+# also install the site template as CONF_DIR/floodgauge.ini and the unit.
+install-files:
 	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/man/man1 \
 		$(DESTDIR)$(PREFIX)/share/floodgauge
 	install -m 0755 $(BIN) $(DESTDIR)$(PREFIX)/bin/floodgauge
@@ -118,6 +129,21 @@ install: all
 	install -m 0644 configs/site-template.ini $(DESTDIR)$(PREFIX)/share/floodgauge/site-template.ini
 	sed 's|/usr/local|$(PREFIX)|g' configs/floodgauge.service \
 		>$(DESTDIR)$(PREFIX)/share/floodgauge/floodgauge.service
+	if [ -n "$(CONF_DIR)" ]; then install -D -m 0644 configs/site-template.ini \
+		$(DESTDIR)$(CONF_DIR)/floodgauge.ini; fi
+	if [ -n "$(SYSTEMD_UNIT_DIR)" ]; then install -d $(DESTDIR)$(SYSTEMD_UNIT_DIR) && \
+		sed 's|/usr/local|$(PREFIX)|g' configs/floodgauge.service \
+		>$(DESTDIR)$(SYSTEMD_UNIT_DIR)/floodgauge.service; fi
+
+# The Debian package, built by dpkg-buildpackage (debhelper) from a copy of
+# the tree in build/deb/src; the .deb lands in build/deb/, checked by lintian.
+deb:
+	@sh tools/deps.sh deb
+	rm -rf build/deb && mkdir -p build/deb/src
+	tar --exclude=./build --exclude=./.git -cf - . | tar -xf - -C build/deb/src
+	cd build/deb/src && dpkg-buildpackage -us -uc -b
+	lintian --info build/deb/floodgauge_*.deb || true
+	@ls build/deb/*.deb
 
 clean:
 	rm -rf build

@@ -73,8 +73,10 @@ int cmd_check(int argc, char **argv)
 		default: return EXIT_USAGE;
 		}
 	}
-	if (path == NULL || optind != argc) {
-		fprintf(stderr, "usage: floodgauge check -c FILE\n");
+	if (path == NULL)
+		path = FG_DEFAULT_CONFIG;
+	if (optind != argc) {
+		fprintf(stderr, "usage: floodgauge check [-c FILE]\n");
 		return EXIT_USAGE;
 	}
 	struct fg_config *cfg = load_or_report(path);

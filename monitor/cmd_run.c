@@ -11,12 +11,13 @@
 
 static void run_usage(FILE *f)
 {
-	fprintf(f, "usage: floodgauge run -c FILE [--once] [--no-view]\n\n"
+	fprintf(f, "usage: floodgauge run [-c FILE] [--once] [--no-view]\n\n"
 		   "Polls the plant over Modbus, evaluates every section each period, raises\n"
 		   "alarms, publishes over MQTT and serves the Modbus export, until SIGTERM or\n"
 		   "SIGINT. SIGHUP reloads FILE (an invalid file is refused and the running\n"
-		   "config kept). --once runs one cycle and exits. On a terminal it shows a\n"
-		   "live view (--no-view for plain log lines).\n");
+		   "config kept); SIGUSR1 reopens the events file. --once runs one cycle and\n"
+		   "exits. On a terminal it shows a live view (--no-view for plain log lines).\n"
+		   "FILE defaults to " FG_DEFAULT_CONFIG ".\n");
 }
 
 int cmd_run(int argc, char **argv)
@@ -40,7 +41,9 @@ int cmd_run(int argc, char **argv)
 		default: run_usage(stderr); return EXIT_USAGE;
 		}
 	}
-	if (d.cfg_path == NULL || optind != argc) {
+	if (d.cfg_path == NULL)
+		d.cfg_path = FG_DEFAULT_CONFIG;
+	if (optind != argc) {
 		run_usage(stderr);
 		return EXIT_USAGE;
 	}

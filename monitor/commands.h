@@ -19,6 +19,12 @@ int cmd_tune(int argc, char **argv);
 int cmd_calibrate(int argc, char **argv);
 int cmd_run(int argc, char **argv);
 int cmd_feed(int argc, char **argv);
+int cmd_map(int argc, char **argv);
+
+/* The config read when -c is not given (the Debian package's conffile). */
+#ifndef FG_DEFAULT_CONFIG
+#define FG_DEFAULT_CONFIG "/etc/floodgauge/floodgauge.ini"
+#endif
 
 /* The advisory caution every human-facing output carries. */
 extern const char *const fg_caution;

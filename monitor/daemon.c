@@ -15,6 +15,7 @@
 #include "jsonw.h"
 #include "liveview.h"
 #include "log.h"
+#include "notify.h"
 #include "sig.h"
 #include "timefmt.h"
 
@@ -393,6 +394,7 @@ static void cycle(struct daemon *d, int64_t now_mono)
 			l.sources_up += mbclient_connected(&d->plant.src[i].client);
 		liveview_draw(stdout, d->eng, &l, t_ms);
 	}
+	notify_watchdog(now_mono);
 	d->cycle++;
 }
 
@@ -423,6 +425,7 @@ static void run_loop(struct daemon *d)
 			 * republished) within a fraction of a second, not a period. */
 			sleep_until(due < now + DAEMON_LINK_SLICE_MS ? due : now + DAEMON_LINK_SLICE_MS);
 			mqtt_housekeeping(d, mono_ms(), wall_ms());
+			notify_watchdog(mono_ms()); /* the loop is alive, whatever period_s is */
 			continue; /* woken early by a signal: look at the flags first */
 		}
 		cycle(d, now);
@@ -435,7 +438,9 @@ static void run_loop(struct daemon *d)
 		}
 		if (sig_reload) {
 			sig_reload = 0;
+			notify_reloading();
 			reload(d);
+			notify_ready("running (reloaded)");
 			period_ms = (int64_t)llround(d->cfg->monitor.period_s * 1000.0);
 			d->start_mono_ms = mono_ms();
 			n = 0;
@@ -482,9 +487,11 @@ int daemon_main(struct daemon *d)
 	log_msg(LOG_INFO, "running %s: %u section(s), %u alarm(s), period %.3g s",
 		d->cfg->monitor.name, d->cfg->section_count, d->cfg->alarm_count,
 		d->cfg->monitor.period_s);
+	notify_ready("running");
 	if (d->view)
 		log_to_ring(true);
 	run_loop(d);
+	notify_stopping();
 	if (d->view)
 		log_to_ring(false);
 	d->state_dirty = true;

@@ -5,6 +5,7 @@
 #include <string.h>
 
 #include "commands.h"
+#include "version.h"
 
 struct command {
 	const char *name;
@@ -21,11 +22,13 @@ static const struct command commands[] = {
 	{"tune", cmd_tune, "try alarm settings on recorded data: figures per candidate, pareto marked"},
 	{"calibrate", cmd_calibrate, "fit a section's capacity_factor and dp_factor to recorded data"},
 	{"simulate", cmd_simulate, "write synthetic plant data with an injected upset"},
+	{"map", cmd_map, "print the Modbus export's register map (CSV or Markdown)"},
 };
 
 static void usage(FILE *f)
 {
-	fprintf(f, "usage: floodgauge COMMAND [options]   (floodgauge COMMAND --help for more)\n\n"
+	fprintf(f, "usage: floodgauge COMMAND [options]   (floodgauge COMMAND --help for more)\n"
+		   "       floodgauge --version\n\n"
 		   "Online monitor of column hydraulics: percent approach to flooding, holdup and\n"
 		   "alarms for tray, packed, spray and bubble-column sections.\n\ncommands:\n");
 	for (size_t i = 0; i < sizeof(commands) / sizeof(commands[0]); i++)
@@ -39,6 +42,10 @@ int main(int argc, char **argv)
 	if (argc < 2) {
 		usage(stderr);
 		return EXIT_USAGE;
+	}
+	if (!strcmp(argv[1], "--version") || !strcmp(argv[1], "-V")) {
+		printf("floodgauge %s\n", FG_VERSION);
+		return 0;
 	}
 	if (!strcmp(argv[1], "--help") || !strcmp(argv[1], "-h") || !strcmp(argv[1], "help")) {
 		usage(stdout);

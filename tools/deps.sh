@@ -1,13 +1,35 @@
 #!/bin/sh
 # deps.sh - install the Debian packages floodgauge needs, when they are missing.
 #
+#   deps.sh [build|run|test|fuzz|deb]    (default build)
+#
+#   build  what compiling needs (make, make bin)
+#   run    build + mosquitto: what `make run` (the demo) needs, nothing more
+#   test   run + the test tools: cmocka, mosquitto-clients, openssl (TLS test
+#          certificates), python3 with python3-fluids (reference values),
+#          chromium (the report rendering check)
+#   fuzz   build + clang (libFuzzer)
+#   deb    build + the Debian packaging tools
+#
 # As root: runs apt-get (update once, then install) for whatever is missing.
 # Otherwise: prints the one apt-get line to run and exits 0 when nothing is
 # missing, 1 when something is (so `make` stops with a clear message).
 set -eu
 
-PKGS="gcc make pkg-config libmodbus-dev libpaho-mqtt-dev libinih-dev libcjson-dev \
-libcmocka-dev mosquitto mosquitto-clients openssl python3 python3-fluids chromium"
+BUILD="gcc make pkg-config libmodbus-dev libpaho-mqtt-dev libinih-dev libcjson-dev \
+libsystemd-dev"
+case "${1:-build}" in
+build) PKGS="$BUILD" ;;
+run) PKGS="$BUILD mosquitto" ;;
+test) PKGS="$BUILD mosquitto libcmocka-dev mosquitto-clients openssl python3 python3-fluids \
+chromium" ;;
+fuzz) PKGS="$BUILD clang" ;;
+deb) PKGS="$BUILD debhelper dpkg-dev fakeroot lintian" ;;
+*)
+	echo "usage: $0 [build|run|test|fuzz|deb]" >&2
+	exit 2
+	;;
+esac
 
 missing=""
 for p in $PKGS; do
