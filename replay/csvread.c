@@ -908,8 +908,14 @@ static int slot_of_name(const struct csvread *r, const char *s, size_t len)
 		unsigned mid = lo + (hi - lo) / 2;
 		const char *name = r->bound_names[r->name_order[mid]];
 		int c = strncmp(name, s, len);
-		if (c == 0 && name[len] != '\0')
-			c = 1;
+		if (c == 0) {
+			/* Equal so far. strncmp also stops at a NUL inside s (a NUL
+			 * byte in the data): then name is shorter than len and must
+			 * not be read past its end. */
+			size_t name_len = strnlen(name, len + 1);
+			if (name_len != len)
+				c = name_len < len ? -1 : 1;
+		}
 		if (c == 0)
 			return (int)r->name_order[mid];
 		if (c < 0)

@@ -845,6 +845,19 @@ static void test_long_form_rows_statuses_and_order(void **state)
 	assert_int_equal(st->problems[0].line, 9);
 }
 
+/* A NUL byte inside a long-form tag cell matches no bound name (it used to
+ * read past the end of the name being compared: found by fuzz_csvread). */
+static void test_long_form_nul_in_tag_matches_nothing(void **state)
+{
+	struct fixture *fx = *state;
+	const char *const names[] = { "U40.PDI401.PV", "U40.FI401.PV" };
+	open_bound(fx, "long_nul_in_tag.csv", names, 2);
+	expect_row2(fx, T0_MS, NAN, 1500);
+	expect_row2(fx, T0_MS + 1000, 13, 1510);
+	expect_end(fx, 2);
+	assert_int_equal(csvread_stats(&fx->r)->samples_unbound, 1);
+}
+
 static void test_status_words(void **state)
 {
 	(void)state;
@@ -960,6 +973,7 @@ int main(void)
 		T(test_configured_time_column),
 		T(test_local_zone_autumn_order_and_spring_gap),
 		T(test_long_form_rows_statuses_and_order),
+		T(test_long_form_nul_in_tag_matches_nothing),
 		T(test_status_words),
 		T(test_bind_some_reports_missing_columns),
 		T(test_long_file_across_buffer_refills),
