@@ -145,6 +145,36 @@ deb:
 	lintian --info build/deb/floodgauge_*.deb || true
 	@ls build/deb/*.deb
 
+# libFuzzer targets (tests/fuzz/fuzz_NAME.c, seeds in tests/fuzz/corpus/NAME):
+# clang with ASan and UBSan; the library is built for them in build/fuzz.
+# Each runs FUZZ_SECONDS; new inputs go to build/fuzz/corpus/NAME (the
+# committed seeds are only read), a crash leaves build/fuzz/crash-* and fails.
+FUZZ_TARGETS := csvread config command regcodec alarmstate
+FUZZ_SECONDS ?= 60
+FUZZ_SAN := -fsanitize=address,undefined -fno-sanitize-recover=all
+FUZZ_BIN := $(FUZZ_TARGETS:%=build/fuzz/fuzz_%)
+
+fuzz:
+	@sh tools/deps.sh fuzz
+	@$(MAKE) --no-print-directory CC=clang BUILD=build/fuzz \
+		EXTRA_CFLAGS="-O1 -fno-omit-frame-pointer -fsanitize=fuzzer-no-link $(FUZZ_SAN)" \
+		build/fuzz/libfg.a
+	@$(MAKE) --no-print-directory CC=clang BUILD=build/fuzz $(FUZZ_BIN)
+	@for t in $(FUZZ_TARGETS); do \
+		mkdir -p build/fuzz/corpus/$$t; \
+		echo "fuzz: $$t for $(FUZZ_SECONDS) s"; \
+		build/fuzz/fuzz_$$t -max_total_time=$(FUZZ_SECONDS) -timeout=10 -rss_limit_mb=1024 \
+			-artifact_prefix=build/fuzz/ -print_final_stats=1 \
+			build/fuzz/corpus/$$t tests/fuzz/corpus/$$t 2>build/fuzz/$$t.log \
+			|| { tail -40 build/fuzz/$$t.log; exit 1; }; \
+		grep -E '^stat::number_of_executed_units|^stat::new_units_added' build/fuzz/$$t.log \
+			| sed "s/^/fuzz: $$t /"; \
+	done
+
+build/fuzz/fuzz_%: tests/fuzz/fuzz_%.c build/fuzz/libfg.a
+	clang $(CPPFLAGS) -D_GNU_SOURCE $(PKG_CFLAGS) -std=c11 -g -O1 -fsanitize=fuzzer $(FUZZ_SAN) \
+		-o $@ $< build/fuzz/libfg.a $(LDLIBS)
+
 clean:
 	rm -rf build
 
