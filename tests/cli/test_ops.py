@@ -106,6 +106,42 @@ try:
             break
     ok(stopping and d.wait(timeout=20) == 0, "STOPPING=1 at a clean stop, exit 0")
     ns.close()
+
+    # --- the events file: SIGUSR1 reopens it, events_max_bytes rotates it ---------
+    # No plant (port 1): the three diagnostic alarms go off after their 3 s
+    # delay: three events, each longer than the 100-byte limit, so each
+    # starts a new file.
+    evp = os.path.join(tmp, "ev.jsonl")
+    rot = (cfg.replace("build/demo/events.jsonl", evp).replace("build/demo/", tmp + "/")
+           .replace("port = 15020", "port = 1").replace("on_delay_s = 10", "on_delay_s = 3")
+           .replace("[monitor]\n", "[monitor]\nevents_max_bytes = 100\nevents_keep = 5\n", 1))
+    rotp = os.path.join(tmp, "rot.ini")
+    open(rotp, "w").write(rot)
+    logp = os.path.join(tmp, "rot.log")
+    with open(logp, "w") as lf:
+        d = subprocess.Popen([FG, "run", "-c", rotp, "--no-view"], stdout=subprocess.DEVNULL,
+                             stderr=lf)
+    end = time.time() + 10
+    while time.time() < end and not os.path.exists(evp):
+        time.sleep(0.05)
+    os.rename(evp, evp + ".moved")  # as logrotate does, before any event
+    d.send_signal(signal.SIGUSR1)
+    end = time.time() + 10
+    while time.time() < end and "reopened" not in open(logp).read():
+        time.sleep(0.05)
+    ok("events file " + evp + " reopened" in open(logp).read(), "SIGUSR1 reopens the events file")
+    end = time.time() + 20
+    count = lambda: sum(len(open(f).read().splitlines()) for f in
+                        (evp, evp + ".1", evp + ".2", evp + ".3") if os.path.exists(f))
+    while time.time() < end and count() < 3:
+        time.sleep(0.1)
+    d.send_signal(signal.SIGTERM)
+    d.wait(timeout=20)
+    ok(count() == 3 and open(evp + ".moved").read() == "",
+       "the events go to the new file, none to the moved one", count())
+    ok(os.path.exists(evp + ".1") and os.path.exists(evp + ".2") and not os.path.exists(evp + ".3"),
+       "events_max_bytes = 100 rotates the file after each ~250-byte event (PATH.1, PATH.2)",
+       sorted(os.listdir(tmp)))
 finally:
     shutil.rmtree(tmp, ignore_errors=True)
 done()
