@@ -7,7 +7,8 @@
 #   run    build + mosquitto: what `make run` (the demo) needs, nothing more
 #   test   run + the test tools: cmocka, mosquitto-clients, openssl (TLS test
 #          certificates), python3 with python3-fluids (reference values),
-#          chromium (the report rendering check)
+#          chromium (the report rendering check), the packaging tools (the
+#          test that builds the Debian package)
 #   fuzz   build + clang (libFuzzer)
 #   deb    build + the Debian packaging tools
 #
@@ -22,7 +23,7 @@ case "${1:-build}" in
 build) PKGS="$BUILD" ;;
 run) PKGS="$BUILD mosquitto" ;;
 test) PKGS="$BUILD mosquitto libcmocka-dev mosquitto-clients openssl python3 python3-fluids \
-chromium" ;;
+chromium debhelper dpkg-dev fakeroot lintian" ;;
 fuzz) PKGS="$BUILD clang" ;;
 deb) PKGS="$BUILD debhelper dpkg-dev fakeroot lintian" ;;
 *)
