@@ -64,7 +64,7 @@ static int listen_on(const char *host, int port)
 			continue;
 		}
 		if (setsockopt(fd, SOL_SOCKET, SO_REUSEADDR, &one, sizeof one) == 0 &&
-		    bind(fd, ai->ai_addr, ai->ai_addrlen) == 0 && listen(fd, 8) == 0 &&
+		    bind(fd, ai->ai_addr, ai->ai_addrlen) == 0 && listen(fd, MBSERVER_BACKLOG) == 0 &&
 		    set_flags(fd, true) == 0)
 			break;
 		err = -errno;

@@ -58,6 +58,11 @@
  * second from its first byte to its last is generous. Four connections per
  * address leave room for a redundant poller pair and a reconnect overlap. */
 #define MBSERVER_IDLE_TIMEOUT_MS 60000
+
+/* Pending connections the kernel queues for accept(): room for a burst
+ * twice the client table, so a flood of connects is refused by us (and
+ * counted) rather than left to SYN retries that also delay real clients. */
+#define MBSERVER_BACKLOG (2 * MBSERVER_CLIENTS_MAX)
 #define MBSERVER_REQUEST_TIMEOUT_MS 1000
 #define MBSERVER_PER_ADDRESS 4
 
