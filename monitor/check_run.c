@@ -5,8 +5,9 @@
  * Each check mirrors what run does with the value: where run stops (paho
  * refuses the URI or the client id, the password or CA file cannot be read),
  * check reports an error; where run keeps going and retries (a host name that
- * does not resolve yet, a serial device not plugged in, a state directory
- * missing), check warns. Nothing here connects anywhere: host names are only
+ * does not resolve yet, a serial device not plugged in), check warns. The
+ * state and events files are not looked at: run reports a failed write once
+ * and keeps the events until it can write them. Nothing here connects anywhere: host names are only
  * resolved.
  */
 #include "check_run.h"
@@ -251,23 +252,6 @@ static void check_mqtt(struct tally *t)
 		check_readable(t, m->line, "ca_file", m->ca_file);
 }
 
-/* The directory of path (or ".") must exist and take new files. */
-static void check_dir_writable(struct tally *t, const char *key, const char *path)
-{
-	char dir[FG_PATH_MAX];
-	const char *slash = strrchr(path, '/');
-	if (slash == NULL)
-		snprintf(dir, sizeof dir, ".");
-	else if (slash == path)
-		snprintf(dir, sizeof dir, "/");
-	else
-		snprintf(dir, sizeof dir, "%.*s", (int)(slash - path), path);
-	if (access(dir, W_OK | X_OK) != 0)
-		say(t, false, 0, "[monitor] %s %s: directory %s is not writable now (%s); run "
-				 "starts and reports each failed write", key, path, dir,
-		    strerror(errno));
-}
-
 static void check_sources(struct tally *t)
 {
 	for (unsigned i = 0; i < t->cfg->source_count; i++) {
@@ -295,10 +279,6 @@ int check_run(const struct fg_config *cfg, FILE *out, unsigned *warnings)
 	check_sources(&t);
 	check_mqtt(&t);
 	check_export(&t);
-	if (cfg->monitor.state_file[0] != '\0')
-		check_dir_writable(&t, "state_file", cfg->monitor.state_file);
-	if (cfg->monitor.events_file[0] != '\0')
-		check_dir_writable(&t, "events_file", cfg->monitor.events_file);
 	if (warnings != NULL)
 		*warnings = t.warnings;
 	return (int)t.errors;

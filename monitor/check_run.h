@@ -2,7 +2,7 @@
  * check_run.h - `floodgauge check`'s look at what `run` would trip over:
  * the MQTT URI scheme, UTF-8 of the names paho and the broker take,
  * password and CA files, host names (resolved only), the export listening
- * beyond loopback, serial devices, the state and events directories.
+ * beyond loopback, serial devices.
  */
 #ifndef CHECK_RUN_H
 #define CHECK_RUN_H
