@@ -844,11 +844,16 @@ void report_svg_write_charts(FILE *f, const struct report *rp, struct report_svg
 	/* A type with charts of its own and no dp signal (every loop, most
 	 * stirred vessels) skips the empty DP chart. */
 	const bool own = tc->own_charts && !series_has_values(rp, k, REPORT_SERIES_DP);
+	/* Nor an empty liquid-load chart: batch liquid with no level tag (every
+	 * loop, a stirred vessel without one). */
+	const bool no_load_x =
+		tc->own_charts && !series_has_values(rp, k, REPORT_SERIES_LOAD_X);
 	unsigned extra = 0;
 	while (extra < REPORT_ALARM_SERIES && rp->series_field[k][REPORT_SERIES_ALARM0 + extra] >= 0)
 		extra++;
 	for (unsigned c = 0; c < tc->count; c++)
-		if (!(own && tc->charts[c] == &chart_dp))
+		if (!(own && tc->charts[c] == &chart_dp) &&
+		    !(no_load_x && tc->charts[c] == &chart_load_x))
 			write_chart(f, rp, fr, k, tc->charts[c], c + 1 == tc->count && extra == 0);
 	/* a field an alarm watches that the type's charts do not show */
 	for (unsigned j = 0; j < extra; j++) {

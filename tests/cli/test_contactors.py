@@ -167,6 +167,14 @@ out = run("loop-stall", "replay/data/demo-loop-stall.csv",
 if out:
     html = open(os.path.join(out, "report.html")).read()
     ok("L407" in html and "circulation" in html, "report has the loop's chart")
+    panels = {p.split("<h3>", 1)[1].split(None, 1)[0]: p
+              for p in html.split('<section class="panel">')[1:] if "<h3>" in p}
+    ok(set(panels) >= {"P405", "M406", "L407"}, "report has a panel per section", list(panels))
+    # batch liquid and no level tag: no empty liquid-load chart
+    for name in ("M406", "L407"):
+        ok("Liquid load" not in panels.get(name, "Liquid load"),
+           f"report: no empty liquid-load chart for {name}")
+    ok("Liquid level" in panels.get("P405", ""), "report: P405 keeps its level chart")
 
 csv = os.path.join(tmp, "pb.csv")
 rc, so, se = fg("simulate", "-c", CFG, "--scenario", "flood", "--seed", "1",
