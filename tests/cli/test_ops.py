@@ -18,6 +18,7 @@ import time
 
 sys.path.insert(0, os.path.join(os.path.dirname(__file__), "..", "support"))
 from tap import ok, done, fg  # noqa: E402
+from rig import free_port  # noqa: E402
 
 FG = os.environ.get("FG_BIN", "build/floodgauge")
 tmp = tempfile.mkdtemp(prefix="fg-ops-")
@@ -57,6 +58,11 @@ try:
        "map --format md prints a Markdown table")
     rc, out, err = fg("map", "-c", "configs/demo.ini", "--format", "xml")
     ok(rc == 2 and "csv or md" in err, "an unknown format is a usage error", err)
+
+    # The daemons below must not meet anything else on this machine (a demo
+    # running beside the tests holds the demo's export and broker ports).
+    cfg = (cfg.replace("listen = 127.0.0.1:15021", f"listen = 127.0.0.1:{free_port()}")
+           .replace("tcp://127.0.0.1:18830", f"tcp://127.0.0.1:{free_port()}"))
 
     # --- the journal: syslog priority prefixes --------------------------------------
     cfgp = os.path.join(tmp, "once.ini")
