@@ -7,7 +7,7 @@
  * Where the source is the paper's equation itself (no published table at
  * hand), the check value was evaluated by hand (python, double precision)
  * from the equation as quoted; the tolerance is then rounding only, 1e-9
- * relative, and the check guards against a transcription slip in the C code.
+ * relative, and the check guards against a copying slip in the C code.
  */
 #include <stdarg.h>
 #include <stddef.h>
