@@ -30,6 +30,7 @@
 #include <assert.h>
 #include <math.h>
 #include <stddef.h>
+#include <string.h>
 
 #include "solve.h"
 
@@ -229,11 +230,42 @@ static bool flood_t_newton(const struct stich *s, double *ln_t)
 	return false;
 }
 
+/*
+ * The flooding condition in closed form. With A = 1 - eps + h0, B = eps - h0
+ * and k = 20 h0 (so h_T = h0 + k t), multiplying the condition by
+ * t (A + k t)(B - k t) > 0 leaves the quadratic
+ *     Q(t) = A B + [k (B - A) - 40 p h0 B - 186 h0 A] t + k h0 (40 p - 206) t^2,
+ * which has the sign of the condition on (0, t_lim): Q(0) = A B > 0 and
+ * Q(t_lim) < 0, so exactly one root lies there and it is t_f. For p < 5.15
+ * (always: p = (2 + c)/3 and c = d ln f0/d ln Re lies in [-1, 0] for
+ * positive C1..C3) the t^2 term is negative and the root is the positive one,
+ * taken in the form that does not cancel. Returns NAN when the root is not
+ * inside (0, t_lim) (odd constants): the caller then solves by bracketing.
+ */
+static double stich_flood_t_closed(double p, double h0, double eps)
+{
+	double a = 1.0 - eps + h0, b = eps - h0, k = 20.0 * h0;
+	double c0 = a * b;
+	double c1 = k * (b - a) - 40.0 * p * h0 * b - 186.0 * h0 * a;
+	double c2 = k * h0 * (40.0 * p - 206.0);
+	if (!(c2 < 0.0) || !(c0 > 0.0))
+		return NAN;
+	double sq = sqrt(c1 * c1 - 4.0 * c0 * c2);
+	double t = c1 <= 0.0 ? 2.0 * c0 / (sq - c1) : (c1 + sq) / (-2.0 * c2);
+	double t_lim = b / k;
+	return t > 0.0 && t < t_lim ? t : NAN;
+}
+
 /* stich_flood_t from the guess *ln_t (updated); cold when ln_t is NULL. */
 static double stich_flood_t_w(const struct stich *s, double *ln_t)
 {
 	if (ln_t == NULL)
 		return stich_flood_t(s);
+	double tc = stich_flood_t_closed(s->p, s->h0, s->eps);
+	if (isfinite(tc)) {
+		*ln_t = log(tc);
+		return tc;
+	}
 	if (flood_t_newton(s, ln_t))
 		return exp(*ln_t);
 	double t_lim = (s->eps / s->h0 - 1.0) / 20.0;
@@ -246,6 +278,153 @@ static double stich_flood_t_w(const struct stich *s, double *ln_t)
 	double t = stich_flood_t(s);
 	*ln_t = log(t);
 	return t;
+}
+
+/* ---- Stichlmair: the per-sample solves by Newton's method ---------------
+ *
+ * The warm path solves both Stichlmair problems by Newton's method with
+ * derivatives in closed form, from the last sample's answer, and hands over
+ * to the bracketed solves above when a step leaves the range, a value is
+ * not finite or SOLVE_NEWTON_STEPS pass without convergence:
+ *   - the flood point, on x = ln u_g: R(x) = F(x, t_f(x)) with F the
+ *     residual ln(D Phi) - ln y and t_f its flooding condition (closed
+ *     form). The flooding condition is dF/dt = 0, so dR/dx = dF/dx at fixed
+ *     t: c + 2 + (dp/dx) ln((1 - eps + h_T)/(1 - eps)), with
+ *     dc/dx = (C1/Re + C2/(4 sqrt Re))/f0 - c^2 and p = (2 + c)/3;
+ *   - the irrigated DP at the operating gas rate, on s = ln t:
+ *     dF/ds = t (20 p h0/(1 - eps + h_T) + 93 h0/(eps - h_T)) - 1/2, which is
+ *     negative below t_f; a root is accepted only below t_f (the lower root,
+ *     the operating point), which also says the gas is below flooding.
+ * Converged by solve_newton_done to SOLVE_TOL_LN (1e-12 relative in u or t).
+ */
+
+/* What stays fixed while u_g or t is iterated. */
+struct stich_fast {
+	double eps, h0, c1, c2, c3;
+	double k_re;      /* Re per m/s: rho_g d_p / mu_g */
+	double ln_kd_rlg; /* ln(K_D/(rho_l g)), the dry DP being K_D f0 u^2 */
+	double ln_1me;    /* ln(1 - eps) */
+	double ln_eps;    /* ln eps */
+};
+
+/* The constants of the solves at this packing, liquid rate and fluid: from
+ * w's cache when every input is bitwise the same as last time (the flood
+ * and the DP solve of one sample share them; a packed bed whose liquid rate
+ * and fluids hold still shares them across samples). */
+static bool stich_fast_setup(struct stich_fast *k, const struct packing_constants *c,
+			     double u_l, const struct fluid_state *f, struct solve_warm *w)
+{
+	double key[9] = {c->void_frac, c->area_m2m3, c->stichlmair_c1, c->stichlmair_c2,
+			 c->stichlmair_c3, u_l, f->rho_g_kgm3, f->mu_g_pas, f->rho_l_kgm3};
+	_Static_assert(sizeof key == sizeof w->stich_key, "the Stichlmair cache key");
+	double *v = w->stich_val;
+	if (!w->stich_valid || memcmp(key, w->stich_key, sizeof key) != 0) {
+		double eps = c->void_frac, e465 = pow(eps, 4.65);
+		double dp = 6.0 * (1.0 - eps) / c->area_m2m3;
+		double fr = u_l * u_l * c->area_m2m3 / (PACKED_G_MS2 * e465);
+		v[0] = 0.555 * cbrt(fr);
+		v[1] = f->rho_g_kgm3 * dp / f->mu_g_pas;
+		v[2] = log(0.75 * (1.0 - eps) / e465 * f->rho_g_kgm3 / dp /
+			   (f->rho_l_kgm3 * PACKED_G_MS2));
+		v[3] = log(1.0 - eps);
+		v[4] = log(eps);
+		memcpy(w->stich_key, key, sizeof key);
+		w->stich_valid = true;
+	}
+	k->eps = c->void_frac;
+	k->c1 = c->stichlmair_c1;
+	k->c2 = c->stichlmair_c2;
+	k->c3 = c->stichlmair_c3;
+	k->h0 = v[0];
+	k->k_re = v[1];
+	k->ln_kd_rlg = v[2];
+	k->ln_1me = v[3];
+	k->ln_eps = v[4];
+	return k->h0 > 0.0 && k->h0 < k->eps;
+}
+
+/* The dry-bed terms at u = exp(x): f0, c and dc/dx. False when f0 <= 0. */
+static bool fast_dry(const struct stich_fast *k, double x, double *f0, double *ce, double *dce)
+{
+	double re = exp(x) * k->k_re, sre = sqrt(re);
+	double a = k->c1 / re, b = k->c2 / sre;
+	*f0 = a + b + k->c3;
+	if (!(*f0 > 0.0))
+		return false;
+	*ce = (-a - 0.5 * b) / *f0;
+	*dce = (a + 0.25 * b) / *f0 - *ce * *ce;
+	return true;
+}
+
+/* Newton on ln u_g for the flood point, from *ln_u (updated on success). */
+static bool fast_flood_newton(const struct stich_fast *k, double *ln_u)
+{
+	double x = *ln_u, prev = NAN;
+	if (!isfinite(x))
+		return false;
+	for (int i = 0; i < SOLVE_NEWTON_STEPS; i++) {
+		double f0, ce, dce;
+		if (!fast_dry(k, x, &f0, &ce, &dce))
+			return false;
+		double p = (2.0 + ce) / 3.0;
+		double t = stich_flood_t_closed(p, k->h0, k->eps);
+		if (!isfinite(t))
+			return false;
+		double ht = k->h0 * (1.0 + 20.0 * t);
+		double l1 = log(1.0 - k->eps + ht) - k->ln_1me;
+		double r = k->ln_kd_rlg + log(f0 / sqrt(t)) + 2.0 * x + p * l1 +
+			   4.65 * (k->ln_eps - log(k->eps - ht));
+		double step = r / (ce + 2.0 + dce / 3.0 * l1);
+		x -= step;
+		if (!isfinite(x) || x < log(FLOOD_U_LO_MS) || x > log(FLOOD_U_HI_MS))
+			return false;
+		if (solve_newton_done(step, prev, SOLVE_TOL_LN)) {
+			*ln_u = x;
+			return true;
+		}
+		prev = step;
+	}
+	return false;
+}
+
+/* Newton on ln t for the lower root at ln u_g = x, from *ln_t (updated on
+ * success), below the flood t_f. *t_out gets t. */
+static bool fast_wet_newton(const struct stich_fast *k, double x, double *ln_t, double *t_out)
+{
+	double s = *ln_t, prev = NAN;
+	if (!isfinite(s))
+		return false;
+	double f0, ce, dce;
+	if (!fast_dry(k, x, &f0, &ce, &dce))
+		return false;
+	double p = (2.0 + ce) / 3.0;
+	double t_f = stich_flood_t_closed(p, k->h0, k->eps);
+	if (!isfinite(t_f))
+		return false;
+	double base = k->ln_kd_rlg + log(f0) + 2.0 * x - p * k->ln_1me + 4.65 * k->ln_eps;
+	for (int i = 0; i < SOLVE_NEWTON_STEPS; i++) {
+		double t = exp(s);
+		if (!(t < t_f))
+			return false;
+		double ht = k->h0 * (1.0 + 20.0 * t);
+		double a = 1.0 - k->eps + ht, b = k->eps - ht;
+		double r = base + p * log(a) - 4.65 * log(b) - 0.5 * s;
+		double d = t * (20.0 * p * k->h0 / a + 93.0 * k->h0 / b) - 0.5;
+		double step = r / d;
+		s -= step;
+		if (!isfinite(s))
+			return false;
+		if (solve_newton_done(step, prev, SOLVE_TOL_LN)) {
+			t = exp(s);
+			if (!(t < t_f))
+				return false;
+			*ln_t = s;
+			*t_out = t;
+			return true;
+		}
+		prev = step;
+	}
+	return false;
 }
 
 static bool stich_setup(struct stich *s, const struct packing_constants *c, double u_g,
@@ -314,6 +493,18 @@ double packed_stichlmair_wet_pam_warm(const struct packing_constants *c, double 
 		fg_extrap_note(x, "stichlmair: packing constants C1..C3, a or epsilon missing");
 		return NAN;
 	}
+	if (w != NULL && isfinite(w->stich_wet_ln_y) && u_g_ms > 0.0 && u_l_ms > 0.0) {
+		struct stich_fast k;
+		double rlg = f->rho_l_kgm3 * PACKED_G_MS2, ln_rlg = log(rlg);
+		double ln_t = 2.0 * (w->stich_wet_ln_y - ln_rlg), t;
+		if (stich_fast_setup(&k, c, u_l_ms, f, w) &&
+		    fast_wet_newton(&k, log(u_g_ms), &ln_t, &t)) {
+			w->stich_wet_ln_y = ln_rlg + 0.5 * ln_t;
+			if (holdup != NULL)
+				*holdup = k.h0 * (1.0 + 20.0 * t);
+			return rlg * sqrt(t);
+		}
+	}
 	double h0 = packed_stichlmair_h0(c, u_l_ms);
 	if (u_g_ms == 0.0 || h0 == 0.0) {
 		/* No gas: no DP and no gas effect on the holdup. No liquid: dry bed. */
@@ -364,6 +555,12 @@ double packed_stichlmair_flood_ms_warm(const struct packing_constants *c, double
 	assert(f != NULL);
 	if (w != NULL && nonneg_finite(u_l_ms) && u_l_ms > 0.0 && fluids_ok(f) &&
 	    has_stichlmair(c)) {
+		struct stich_fast k;
+		double ln_u = w->stich_flood_ln_u;
+		if (stich_fast_setup(&k, c, u_l_ms, f, w) && fast_flood_newton(&k, &ln_u)) {
+			w->stich_flood_ln_u = ln_u;
+			return exp(ln_u);
+		}
 		struct flood_ctx fc = {.c = c, .f = f, .u_l = u_l_ms, .ln_t = &w->stich_flood_ln_t};
 		double root;
 		/* The residual's slope barely changes from sample to sample: the
@@ -658,6 +855,8 @@ static double bs_holdup_w(const struct packing_constants *c, double u_g_ms, doub
 
 /* ---- Kister & Gill (1991), Robbins (1991) -------------------------------- */
 
+static const char WHY_KG_RANGE[] = "kister-gill: packing factor outside 9..60 1/ft";
+
 /* dP_flood = 0.12 Fp^0.7 inH2O/ft, Fp in 1/ft (from memory; the handbook
  * quotes a coefficient of 0.115 in places, 4 % lower). Kister & Gill give
  * the same equation for structured packings; we do not change the exponent.
@@ -673,7 +872,7 @@ double packed_kister_gill_flood_pam(double fp_1pm, bool structured, struct fg_ex
 	}
 	double fp_ft = fp_1pm * FT_M;
 	if (fp_ft < 9.0 || fp_ft > 60.0)
-		fg_extrap_note(x, "kister-gill: packing factor outside 9..60 1/ft");
+		fg_extrap_note(x, WHY_KG_RANGE);
 	return 0.12 * pow(fp_ft, 0.7) * PACKED_INH2O_PER_FT_PAM;
 }
 
@@ -808,8 +1007,23 @@ static void eval_dp_flood(struct pe *e, const struct section_geom *g,
 		note_missing(e, r, "packed: packing factor Fp missing, no flood DP");
 		return;
 	}
-	double flood_pam = packed_kister_gill_flood_pam(e->c->packing_factor_1pm,
-							g->packed.structured, &r->extrap);
+	double flood_pam;
+	struct solve_warm *w = e->w;
+	double key[2] = {e->c->packing_factor_1pm, g->packed.structured ? 1.0 : 0.0};
+	if (w != NULL && w->kg_valid && memcmp(key, w->kg_key, sizeof key) == 0) {
+		/* Its range note depends on the key alone: repeat it. */
+		flood_pam = w->kg_flood_pam;
+		double fp_ft = key[0] * FT_M;
+		if (fp_ft < 9.0 || fp_ft > 60.0)
+			fg_extrap_note(&r->extrap, WHY_KG_RANGE);
+	} else {
+		flood_pam = packed_kister_gill_flood_pam(key[0], g->packed.structured, &r->extrap);
+		if (w != NULL) {
+			memcpy(w->kg_key, key, sizeof key);
+			w->kg_flood_pam = flood_pam;
+			w->kg_valid = true;
+		}
+	}
 	r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / e->height_m) / flood_pam;
 }
 

@@ -189,4 +189,22 @@ void solve_warm_clear(struct solve_warm *w)
 	w->spray_crit_ln_re[0] = w->spray_crit_ln_re[1] = NAN;
 	w->bubble_ay_eps = NAN;
 	w->stich_wet_ln_t = NAN;
+	solve_warm_drop_cache(w);
+}
+
+void solve_warm_drop_cache(struct solve_warm *w)
+{
+	assert(w != NULL);
+	w->stich_valid = false;
+	w->kg_valid = false;
+}
+
+bool solve_newton_done(double step, double prev_step, double tol)
+{
+	double a = fabs(step), b = fabs(prev_step);
+	if (a <= tol)
+		return true;
+	if (!(a < 1e-6) || !(a < b))
+		return false;
+	return a / (b * b) * a * a <= 0.1 * tol;
 }

@@ -49,6 +49,22 @@
 /* Absolute tolerance on a logarithm: 1e-12 relative in the quantity. */
 #define SOLVE_TOL_LN 1e-12
 
+/* Steps of the Newton solves (analytic derivatives) before they hand over
+ * to a bracketed solve: from a warm start they need two or three. */
+#define SOLVE_NEWTON_STEPS 8
+
+/*
+ * Has Newton's method converged? Yes when the last step is within tol, or
+ * when the iteration is plainly in its quadratic phase (the step below 1e-6
+ * and smaller than the one before) and the error it leaves, estimated as
+ * K step^2 with K = |step| / prev_step^2 from the last two steps (Newton:
+ * e_{k+1} = K e_k^2), is below tol / 10. The second test saves the last,
+ * confirming evaluation; where convergence is only linear with ratio r it
+ * still holds the error to r/(1-r) times the estimate, under tol for r up to
+ * 0.9. prev_step is NAN for the first step.
+ */
+bool solve_newton_done(double step, double prev_step, double tol);
+
 /* f(x, ctx). May return +-INFINITY where the model has no value (beyond a
  * limit); it must be monotone over the bracket. */
 typedef double (*solve_fn)(double x, const void *ctx);
@@ -104,9 +120,23 @@ struct solve_warm {
 	double spray_crit_ln_re[2];/* critical (carried-over) droplet: ln Re, slope */
 	double bubble_ay_eps;      /* Akita-Yoshida gas holdup, - */
 	double stich_wet_ln_t;     /* Stichlmair flooding condition at the operating gas rate */
+	/* Values that depend only on their key, kept between samples: a key
+	 * is compared bit for bit, so a changed input never reads a stale
+	 * value (and the answer is the one an uncached evaluation gives). */
+	bool stich_valid;
+	double stich_key[9];       /* eps, a, C1, C2, C3, u_l, rho_g, mu_g, rho_l */
+	double stich_val[8];       /* h0, Re per m/s, ln(K_D/rho_l g), ln(1-eps), ln eps,
+				      eps^4.65 */
+	bool kg_valid;
+	double kg_key[2];          /* Fp, structured */
+	double kg_flood_pam;       /* Kister-Gill flood DP per metre */
 };
 
 /* Sets every memory to NAN (cold). */
 void solve_warm_clear(struct solve_warm *w);
+
+/* Forgets the cached values only, keeping the warm starts: the next
+ * evaluation computes them afresh (the tests compare it with a cached one). */
+void solve_warm_drop_cache(struct solve_warm *w);
 
 #endif

@@ -20,6 +20,7 @@
 #include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 
 #include <cmocka.h>
 
@@ -218,6 +219,121 @@ static void test_terminal_velocity_warm_follows_jumps(void **state)
 	}
 }
 
+/* Bitwise the same (NANs alike), not merely close. */
+static void assert_same(double a, double b, const char *what, unsigned step)
+{
+	if (isnan(a) && isnan(b))
+		return;
+	if (memcmp(&a, &b, sizeof a) != 0)
+		fail_msg("%s at step %u: cached %.17g, uncached %.17g", what, step, a, b);
+}
+
+/* The next point of the cache sequence: flows jitter at every step; the
+ * pressure moves every third step and the temperature every fifth (so some
+ * steps keep both, and the caches keyed on them hit); every seventh step
+ * repeats the last point exactly. */
+static void cache_step(const struct section_point *base, struct section_point *p, unsigned i)
+{
+	if (i % 7 == 6)
+		return;
+	double load = 0.7 + 0.3 * uniform();
+	p->gas_kgs = base->gas_kgs * load;
+	p->liquid_kgs = base->liquid_kgs * (0.7 + 0.3 * uniform());
+	p->dp_pa = base->dp_pa * load;
+	p->level_m = base->level_m * (0.95 + 0.1 * uniform());
+	p->agitator_speed_rps = base->agitator_speed_rps * (0.9 + 0.1 * uniform());
+	p->motor_power_w = base->motor_power_w * (0.9 + 0.1 * uniform());
+	p->dp_riser_pa = base->dp_riser_pa * (0.95 + 0.1 * uniform());
+	p->dp_downcomer_pa = base->dp_downcomer_pa * (0.95 + 0.1 * uniform());
+	if (i % 3 == 1)
+		p->pressure_pa = base->pressure_pa * (0.97 + 0.06 * uniform());
+	if (i % 5 == 2)
+		p->temperature_k = base->temperature_k + 4.0 * (uniform() - 0.5);
+}
+
+/* The geometry and property values the caches are keyed on, changed in
+ * place as a config reload into the same memory would. */
+static void change_config(struct section_geom *g, struct section_props *pr)
+{
+	g->diameter_m *= 1.02;
+	g->capacity_factor = 0.95;
+	g->tray.spacing_m *= 1.05;
+	g->tray.hole_area_frac *= 0.9;
+	g->tray.hole_diameter_m *= 1.1;
+	g->tray.weir_height_m *= 1.1;
+	g->tray.deck_thickness_m *= 1.1;
+	g->packed.c.void_frac *= 0.99;
+	g->packed.c.area_m2m3 *= 1.02;
+	g->packed.c.packing_factor_1pm *= 1.1;
+	g->packed.c.stichlmair_c1 *= 1.05;
+	g->spray.design_droplet_m *= 1.1;
+	pr->surface_tension_nm.value[0] *= 1.05;
+	pr->liquid_density_kgm3.value[0] *= 1.01;
+	pr->gas_molar_mass_kgkmol *= 1.02;
+}
+
+/* The caches in struct solve_warm change no bit of any answer: each point
+ * is evaluated with the caches as the last points left them and with them
+ * dropped (the same warm starts), and the two results must be identical, as
+ * must the warm memories they leave. A cache that missed a change of T, P or
+ * configuration would give the answer of the old inputs. */
+static void check_cache_config(const char *path)
+{
+	struct fg_config *cfg = load(path);
+	static double vals[FG_TAGS_MAX];
+	for (unsigned si = 0; si < cfg->section_count; si++) {
+		struct section_geom g = cfg->sections[si].geom;
+		struct section_props pr = cfg->sections[si].props;
+		for (unsigned t = 0; t < cfg->tag_count; t++)
+			vals[t] = cfg->tags[t].source_index < 0 ? cfg->tags[t].fixed_value
+								: cfg->tags[t].nominal;
+		struct section_point base, p;
+		point_from_tags(cfg, si, vals, &base);
+		if (!isfinite(base.temperature_k))
+			base.temperature_k = 300.0;
+		if (!isfinite(base.pressure_pa))
+			base.pressure_pa = 1.2e5;
+		p = base;
+		struct solve_warm w;
+		solve_warm_clear(&w);
+		unsigned finite = 0;
+		for (unsigned i = 0; i < 400; i++) {
+			if (i == 200)
+				change_config(&g, &pr);
+			cache_step(&base, &p, i);
+			struct solve_warm wu = w;
+			solve_warm_drop_cache(&wu);
+			struct section_result rc, ru;
+			section_eval_warm(&g, &pr, &p, &rc, &w);
+			section_eval_warm(&g, &pr, &p, &ru, &wu);
+			for (int k = 0; k < RF_COUNT; k++)
+				assert_same(rc.v[k], ru.v[k], result_fields[k].name, i);
+			assert_int_equal(rc.basis, ru.basis);
+			assert_int_equal(rc.quality, ru.quality);
+			assert_int_equal(rc.regime, ru.regime);
+			assert_int_equal(rc.extrap.count, ru.extrap.count);
+			assert_int_equal(rc.missing.count, ru.missing.count);
+			/* The same warm starts and the same cached values (the
+			 * valid flags aside: wu's were dropped). */
+			struct solve_warm a = w, b = wu;
+			solve_warm_drop_cache(&a);
+			solve_warm_drop_cache(&b);
+			assert_memory_equal(&a, &b, sizeof a);
+			finite += isfinite(rc.v[RF_FLOOD_PCT]);
+		}
+		assert_true(finite > 200);
+	}
+	free(cfg);
+}
+
+static void test_caches_change_no_bit(void **state)
+{
+	(void)state;
+	check_cache_config("configs/demo.ini");
+	check_cache_config("tools/bench.ini");
+	check_cache_config("configs/demo-contactors.ini");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -225,6 +341,7 @@ int main(void)
 		cmocka_unit_test(test_stichlmair_section_warm_equals_cold),
 		cmocka_unit_test(test_stichlmair_flood_warm_follows_jumps),
 		cmocka_unit_test(test_terminal_velocity_warm_follows_jumps),
+		cmocka_unit_test(test_caches_change_no_bit),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
