@@ -1057,6 +1057,37 @@ static bool eval_inputs_ok(const struct section_geom *g, const struct fluid_stat
 	       nonneg_finite(p->gas_kgs) && nonneg_finite(p->liquid_kgs);
 }
 
+/* The operating point in the terms the evaluations use. */
+static void pe_init(struct pe *e, const struct section_geom *g, const struct fluid_state *f,
+		    const struct section_point *p, struct solve_warm *w)
+{
+	*e = (struct pe){.c = &g->packed.c, .f = f, .w = w, .stich_holdup = NAN};
+	/* The tower cross-section, computed here so this file needs only the
+	 * geometry (section_area_m2 gives the same pi d^2/4). */
+	e->area_m2 = section_area_m2(g);
+	e->height_m = g->packed.height_m;
+	e->gas_flux = p->gas_kgs / e->area_m2;
+	e->liq_flux = p->liquid_kgs / e->area_m2;
+	e->u_g = e->gas_flux / f->rho_g_kgm3;
+	e->u_l = e->liq_flux / f->rho_l_kgm3;
+}
+
+double packed_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,
+			  const struct section_point *p, struct solve_warm *w)
+{
+	assert(g != NULL);
+	assert(f != NULL);
+	assert(p != NULL);
+	if (!eval_inputs_ok(g, f, p))
+		return NAN;
+	struct pe e;
+	pe_init(&e, g, f, p, w);
+	struct section_result scratch; /* packed_eval_warm notes this point's range */
+	result_clear(&scratch);
+	eval_dp(&e, &scratch);
+	return scratch.v[RF_DP_MODEL_PA];
+}
+
 void packed_eval(const struct section_geom *g, const struct fluid_state *f,
 		 const struct section_point *p, struct section_result *r)
 {
@@ -1082,15 +1113,8 @@ void packed_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
 		return;
 	}
-	struct pe e = {.c = &g->packed.c, .f = f, .w = w, .stich_holdup = NAN};
-	/* The tower cross-section, computed here so this file needs only the
-	 * geometry (section_area_m2 gives the same pi d^2/4). */
-	e.area_m2 = section_area_m2(g);
-	e.height_m = g->packed.height_m;
-	e.gas_flux = p->gas_kgs / e.area_m2;
-	e.liq_flux = p->liquid_kgs / e.area_m2;
-	e.u_g = e.gas_flux / f->rho_g_kgm3;
-	e.u_l = e.liq_flux / f->rho_l_kgm3;
+	struct pe e;
+	pe_init(&e, g, f, p, w);
 	unsigned before = r->extrap.count;
 	eval_flood(&e, g, r);
 	eval_loading(&e, g, r);

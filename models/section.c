@@ -235,6 +235,29 @@ void section_eval_warm(const struct section_geom *g, const struct section_props 
 	section_fuse(r, NAN);
 }
 
+double section_dp_model_pa(const struct section_geom *g, const struct section_props *props,
+			   const struct section_point *p, struct solve_warm *w)
+{
+	assert(g != NULL);
+	assert(props != NULL);
+	assert(p != NULL);
+	if (g->type != SECTION_TRAY && g->type != SECTION_PACKED)
+		return NAN;
+	struct fg_extrap notes = {0, NULL}; /* section_eval_warm notes the range */
+	double rho_g = p->gas_density_kgm3;
+	if (!(isfinite(rho_g) && rho_g > 0.0))
+		rho_g = gas_density_kgm3(p->pressure_pa, p->temperature_k,
+					 props->gas_molar_mass_kgkmol, props->gas_compressibility,
+					 &notes);
+	struct fluid_state f;
+	section_fluids(props, p->temperature_k, rho_g, &f, &notes);
+	if (!fluids_usable(&f) || !isfinite(p->gas_kgs) || !(p->gas_kgs > 0.0) ||
+	    !isfinite(p->liquid_kgs) || p->liquid_kgs < 0.0 || !(section_area_m2(g) > 0.0))
+		return NAN;
+	return g->type == SECTION_TRAY ? tray_dp_model_pa(g, &f, p)
+				       : packed_dp_model_pa(g, &f, p, w);
+}
+
 void section_fuse(struct section_result *r, double trend_pct)
 {
 	assert(r != NULL);

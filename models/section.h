@@ -205,6 +205,14 @@ void section_eval_warm(const struct section_geom *g, const struct section_props 
 		       const struct section_point *p, struct section_result *r,
 		       struct solve_warm *w);
 
+/* The model pressure drop alone, Pa: the dp_model_pa that section_eval_warm
+ * gives at p (before the engine's learned correction), without the flood,
+ * weep or holdup solves, for the engine's local d ln DP / d ln G. NAN for a
+ * type without a DP model or a point that cannot be evaluated. w as for
+ * section_eval_warm (its DP solve starts from it and updates it). */
+double section_dp_model_pa(const struct section_geom *g, const struct section_props *props,
+			   const struct section_point *p, struct solve_warm *w);
+
 /* Resolves the property tables at temperature t_k (NAN: first point used).
  * Notes a table extrapolation in x. */
 void section_fluids(const struct section_props *props, double t_k, double rho_g_kgm3,
@@ -263,5 +271,11 @@ void spray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 void bubble_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 		      const struct section_point *p, struct section_result *r,
 		      struct solve_warm *w);
+
+/* The model DP alone of a tray or a packed section (section_dp_model_pa). */
+double tray_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,
+			const struct section_point *p);
+double packed_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,
+			  const struct section_point *p, struct solve_warm *w);
 
 #endif

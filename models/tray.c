@@ -460,6 +460,28 @@ static double weep_pct_at(const struct section_geom *g, const struct fluid_state
 	return pct;
 }
 
+/* One tray's pressure drop and the heads it is made of (h's alpha_e, hl,
+ * hd, hr, dp_pa): the part of hydraulics() that tray_dp_model_pa needs. */
+static void dp_heads(const struct section_geom *g, const struct fluid_state *f,
+		     const struct areas *a, double gas_kgs, double liq_kgs, struct hyd *h,
+		     struct fg_extrap *x)
+{
+	const struct tray_geom *t = &g->tray;
+	double ql = liq_kgs / f->rho_l_kgm3;
+	double qg = gas_kgs / f->rho_g_kgm3;
+	h->alpha_e = tray_froth_density(qg / a->active, f->rho_l_kgm3, f->rho_g_kgm3);
+	h->hl = tray_clear_liquid_m(h->alpha_e, t->weir_height_m, ql, t->weir_length_m);
+	double cd = tray_orifice_coefficient(t->hole_area_frac,
+					     t->deck_thickness_m / t->hole_diameter_m, x);
+	h->hd = tray_dry_head_m(qg / a->hole, cd, f->rho_g_kgm3, f->rho_l_kgm3);
+	h->hr = tray_residual_head_m(f->sigma_nm, f->rho_l_kgm3, f->rho_g_kgm3,
+				     t->hole_diameter_m);
+	if (gas_kgs > 0.0)
+		h->dp_pa = tray_total_dp_pa(h->hd, h->hl, h->hr, f->rho_l_kgm3);
+	else
+		h->dp_pa = 0.0;
+}
+
 /* Evaluates one tray at the given flows. Zero gas carries no pressure drop:
  * the tray then drains, so dry, liquid and residual heads are all zero. */
 static void hydraulics(const struct section_geom *g, const struct fluid_state *f,
@@ -475,17 +497,7 @@ static void hydraulics(const struct section_geom *g, const struct fluid_state *f
 
 	h->jet_pct = jet_pct_at(g, f, a, gas_kgs, liq_kgs, x);
 	h->how = tray_weir_crest_m(ql, t->weir_length_m);
-	h->alpha_e = tray_froth_density(qg / a->active, f->rho_l_kgm3, f->rho_g_kgm3);
-	h->hl = tray_clear_liquid_m(h->alpha_e, t->weir_height_m, ql, t->weir_length_m);
-	double cd = tray_orifice_coefficient(t->hole_area_frac,
-					     t->deck_thickness_m / t->hole_diameter_m, x);
-	h->hd = tray_dry_head_m(uh, cd, f->rho_g_kgm3, f->rho_l_kgm3);
-	h->hr = tray_residual_head_m(f->sigma_nm, f->rho_l_kgm3, f->rho_g_kgm3,
-				     t->hole_diameter_m);
-	if (gas_kgs > 0.0)
-		h->dp_pa = tray_total_dp_pa(h->hd, h->hl, h->hr, f->rho_l_kgm3);
-	else
-		h->dp_pa = 0.0;
+	dp_heads(g, f, a, gas_kgs, liq_kgs, h, x);
 	h->ht = h->dp_pa / (f->rho_l_kgm3 * TRAY_G_MS2);
 	h->hdc = tray_apron_head_m(ql, fmin(a->apron, a->dc));
 	h->hb = tray_dc_backup_m(t->weir_height_m, h->how, h->ht, h->hdc);
@@ -664,4 +676,21 @@ void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 	if (h.jet_pct > 100.0)
 		fg_extrap_note(&r->extrap, WHY_ABOVE_FLOOD);
 	check_finite(r);
+}
+
+double tray_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,
+			const struct section_point *p)
+{
+	assert(g != NULL);
+	assert(f != NULL);
+	assert(p != NULL);
+	assert(g->type == SECTION_TRAY);
+	if (!inputs_ok(g, f, p))
+		return NAN;
+	struct areas a = areas_of(g);
+	struct hyd h;
+	struct fg_extrap notes = {0, NULL}; /* tray_eval_warm notes this point's range */
+	dp_heads(g, f, &a, p->gas_kgs, p->liquid_kgs, &h, &notes);
+	double dp = h.dp_pa * (double)g->tray.trays;
+	return isfinite(dp) ? dp : NAN;
 }

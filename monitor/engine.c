@@ -82,11 +82,12 @@ static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
 	return q;
 }
 
-/* The model's local d ln DP / d ln G at point p: one more evaluation at a
- * 2 % higher gas rate (without the measured DP, so no flood-point search).
+/* The model's local d ln DP / d ln G at point p: the model DP alone once
+ * more at a 2 % higher gas rate, its solve started from this sample's
+ * answer (a copy, so the section's own warm starts do not depend on it).
  * NAN when the model has no DP or no measured DP is wired. */
-static double dp_exponent(const struct section_cfg *s, const struct section_point *p,
-			  double dp_model_pa)
+static double dp_exponent(const struct section_cfg *s, const struct engine_section *es,
+			  const struct section_point *p, double dp_model_pa)
 {
 	if (s->signal[SIGNAL_DP] < 0 || !(dp_model_pa > 0.0) || !(p->gas_kgs > 0.0))
 		return NAN;
@@ -94,9 +95,8 @@ static double dp_exponent(const struct section_cfg *s, const struct section_poin
 	struct section_point q = *p;
 	q.gas_kgs *= step;
 	q.dp_pa = NAN;
-	struct section_result r2;
-	section_eval(&s->geom, &s->props, &q, &r2);
-	double dp2 = r2.v[RF_DP_MODEL_PA];
+	struct solve_warm w = es->warm;
+	double dp2 = section_dp_model_pa(&s->geom, &s->props, &q, &w);
 	return dp2 > 0.0 ? log(dp2 / dp_model_pa) / log(step) : NAN;
 }
 
@@ -119,7 +119,7 @@ static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
 		.gas_kgs = p->gas_kgs,
 		.dp_pa = r->v[RF_DP_PA],
 		.dp_model_pa = raw_model,
-		.dp_exponent = dp_exponent(s, p, raw_model),
+		.dp_exponent = dp_exponent(s, es, p, raw_model),
 		.flood_pct = r->v[RF_FLOOD_PCT],
 		.dp_saturated = dp_sat,
 		.f_factor = r->v[RF_F_FACTOR],
