@@ -62,7 +62,7 @@ echo "reading stage alone (times and numbers parsed, nothing evaluated), 5 M row
 
 # 4. the engine from a tight loop over pre-parsed samples
 echo "engine, tight loop over pre-parsed samples:"
-"$TOOLS/benchtool" engine $CFG configs/demo.ini | sed 's/^/  /'
+"$TOOLS/benchtool" engine $CFG configs/demo.ini configs/demo-contactors.ini | sed 's/^/  /'
 echo "  (target: under 500 ns per section-sample on average over the types)"
 
 # 5. peak RSS of replay, 1 M and 5 M rows
