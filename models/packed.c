@@ -30,7 +30,6 @@
 #include <assert.h>
 #include <math.h>
 #include <stddef.h>
-#include <string.h>
 
 #include "solve.h"
 
@@ -316,9 +315,8 @@ static bool stich_fast_setup(struct stich_fast *k, const struct packing_constant
 {
 	double key[9] = {c->void_frac, c->area_m2m3, c->stichlmair_c1, c->stichlmair_c2,
 			 c->stichlmair_c3, u_l, f->rho_g_kgm3, f->mu_g_pas, f->rho_l_kgm3};
-	_Static_assert(sizeof key == sizeof w->stich_key, "the Stichlmair cache key");
-	double *v = w->stich_val;
-	if (!w->stich_valid || memcmp(key, w->stich_key, sizeof key) != 0) {
+	double *v = w->stich.val;
+	if (!solve_memo_hit(&w->stich, key, 9)) {
 		double eps = c->void_frac, e465 = pow(eps, 4.65);
 		double dp = 6.0 * (1.0 - eps) / c->area_m2m3;
 		double fr = u_l * u_l * c->area_m2m3 / (PACKED_G_MS2 * e465);
@@ -328,8 +326,6 @@ static bool stich_fast_setup(struct stich_fast *k, const struct packing_constant
 			   (f->rho_l_kgm3 * PACKED_G_MS2));
 		v[3] = log(1.0 - eps);
 		v[4] = log(eps);
-		memcpy(w->stich_key, key, sizeof key);
-		w->stich_valid = true;
 	}
 	k->eps = c->void_frac;
 	k->c1 = c->stichlmair_c1;
@@ -1010,19 +1006,16 @@ static void eval_dp_flood(struct pe *e, const struct section_geom *g,
 	double flood_pam;
 	struct solve_warm *w = e->w;
 	double key[2] = {e->c->packing_factor_1pm, g->packed.structured ? 1.0 : 0.0};
-	if (w != NULL && w->kg_valid && memcmp(key, w->kg_key, sizeof key) == 0) {
+	if (w != NULL && solve_memo_hit(&w->kg, key, 2)) {
 		/* Its range note depends on the key alone: repeat it. */
-		flood_pam = w->kg_flood_pam;
+		flood_pam = w->kg.val[0];
 		double fp_ft = key[0] * FT_M;
 		if (fp_ft < 9.0 || fp_ft > 60.0)
 			fg_extrap_note(&r->extrap, WHY_KG_RANGE);
 	} else {
 		flood_pam = packed_kister_gill_flood_pam(key[0], g->packed.structured, &r->extrap);
-		if (w != NULL) {
-			memcpy(w->kg_key, key, sizeof key);
-			w->kg_flood_pam = flood_pam;
-			w->kg_valid = true;
-		}
+		if (w != NULL)
+			w->kg.val[0] = flood_pam;
 	}
 	r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / e->height_m) / flood_pam;
 }

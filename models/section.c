@@ -177,6 +177,8 @@ bool section_type_has_field(enum section_type t, int field)
 /* Leaves the common fields that do not apply to the type absent (NAN). */
 static void drop_foreign_fields(enum section_type t, struct section_result *r)
 {
+	if (type_drop[t] == 0)
+		return; /* most types: nothing to drop, and this runs every sample */
 	for (int i = 0; i < RF_COUNT; i++)
 		if (type_drop[t] & B(i))
 			r->v[i] = NAN;
@@ -254,7 +256,7 @@ double section_dp_model_pa(const struct section_geom *g, const struct section_pr
 	if (!fluids_usable(&f) || !isfinite(p->gas_kgs) || !(p->gas_kgs > 0.0) ||
 	    !isfinite(p->liquid_kgs) || p->liquid_kgs < 0.0 || !(section_area_m2(g) > 0.0))
 		return NAN;
-	return g->type == SECTION_TRAY ? tray_dp_model_pa(g, &f, p)
+	return g->type == SECTION_TRAY ? tray_dp_model_pa(g, &f, p, w)
 				       : packed_dp_model_pa(g, &f, p, w);
 }
 

@@ -274,7 +274,7 @@ void bubble_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 
 /* The model DP alone of a tray or a packed section (section_dp_model_pa). */
 double tray_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,
-			const struct section_point *p);
+			const struct section_point *p, struct solve_warm *w);
 double packed_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,
 			  const struct section_point *p, struct solve_warm *w);
 

@@ -7,6 +7,7 @@
 #include <float.h>
 #include <math.h>
 #include <stddef.h>
+#include <string.h>
 
 static bool same_sign(double a, double b)
 {
@@ -195,8 +196,25 @@ void solve_warm_clear(struct solve_warm *w)
 void solve_warm_drop_cache(struct solve_warm *w)
 {
 	assert(w != NULL);
-	w->stich_valid = false;
-	w->kg_valid = false;
+	w->stich.valid = false;
+	w->kg.valid = false;
+	w->tray_geom.valid = false;
+	w->tray_sigma.valid = false;
+	w->tray_hr.valid = false;
+}
+
+bool solve_memo_hit(struct solve_memo *m, const double *key, unsigned n)
+{
+	assert(m != NULL);
+	assert(key != NULL);
+	assert(n >= 1);
+	assert(n <= SOLVE_MEMO_KEYS);
+	size_t size = n * sizeof key[0];
+	if (m->valid && memcmp(m->key, key, size) == 0)
+		return true;
+	memcpy(m->key, key, size);
+	m->valid = true;
+	return false;
 }
 
 bool solve_newton_done(double step, double prev_step, double tol)

@@ -105,6 +105,23 @@ bool solve_secant(solve_fn f, const void *ctx, double lo, double hi, double gues
 double solve_warm(solve_fn f, const void *ctx, double lo, double flo, double hi, double fhi,
 		  bool rising, double guess, double step, double tol, int *evals);
 
+/* A small cache of values computed from a few inputs (the key). A hit needs
+ * every key value bitwise equal to the stored one, so a changed input (T,
+ * P, flows, a reloaded configuration) never reads a stale value, and a hit
+ * returns exactly what recomputing would. */
+#define SOLVE_MEMO_KEYS 10
+#define SOLVE_MEMO_VALS 8
+struct solve_memo {
+	bool valid;
+	double key[SOLVE_MEMO_KEYS];
+	double val[SOLVE_MEMO_VALS];
+};
+
+/* True when m holds the values for these n key values. Otherwise stores
+ * the key, marks m valid and returns false: the caller then fills m->val
+ * before anything else can read m. */
+bool solve_memo_hit(struct solve_memo *m, const double *key, unsigned n);
+
 /* The warm-start memory of one section: the last answer of each solve, NAN
  * when there is none (cold). Owned by the engine, one per section; the
  * models read and update it. */
@@ -120,16 +137,13 @@ struct solve_warm {
 	double spray_crit_ln_re[2];/* critical (carried-over) droplet: ln Re, slope */
 	double bubble_ay_eps;      /* Akita-Yoshida gas holdup, - */
 	double stich_wet_ln_t;     /* Stichlmair flooding condition at the operating gas rate */
-	/* Values that depend only on their key, kept between samples: a key
-	 * is compared bit for bit, so a changed input never reads a stale
-	 * value (and the answer is the one an uncached evaluation gives). */
-	bool stich_valid;
-	double stich_key[9];       /* eps, a, C1, C2, C3, u_l, rho_g, mu_g, rho_l */
-	double stich_val[8];       /* h0, Re per m/s, ln(K_D/rho_l g), ln(1-eps), ln eps,
-				      eps^4.65 */
-	bool kg_valid;
-	double kg_key[2];          /* Fp, structured */
-	double kg_flood_pam;       /* Kister-Gill flood DP per metre */
+	/* Values that depend only on their keys, kept between samples (each
+	 * file says what it keeps). */
+	struct solve_memo stich;   /* Stichlmair solve constants (packed.c) */
+	struct solve_memo kg;      /* Kister-Gill flood DP (packed.c) */
+	struct solve_memo tray_geom; /* tray terms of the geometry alone (tray.c) */
+	struct solve_memo tray_sigma;/* Fair surface-tension factor (tray.c) */
+	struct solve_memo tray_hr;   /* residual head (tray.c) */
 };
 
 /* Sets every memory to NAN (cold). */

@@ -62,6 +62,23 @@ static bool finite_nonneg(double v)
 	return isfinite(v) && v >= 0.0;
 }
 
+/* The tray-spacing term of the Fair fit below, 8.127e-4 TS^0.755 (TS in mm). */
+static double fair_ts_term(double spacing_m)
+{
+	return 8.127e-4 * pow(spacing_m * 1000.0, 0.755);
+}
+
+/* tray_fair_csb_ms with its spacing term ts_term given (a section computes
+ * it once); the same notes and the same arithmetic. */
+static double fair_csb(double flow_param, double spacing_m, double ts_term, struct fg_extrap *x)
+{
+	if (flow_param < 0.01 || flow_param > 1.0)
+		fg_extrap_note(x, WHY_FAIR_FLV);
+	if (spacing_m < 0.15 || spacing_m > 0.91)
+		fg_extrap_note(x, WHY_FAIR_TS);
+	return 0.0105 + ts_term * exp(-1.463 * pow(flow_param, 0.842));
+}
+
 double tray_fair_csb_ms(double flow_param, double spacing_m, struct fg_extrap *x)
 {
 	/* Lygeros, A. I. & Magoulas, K. G., Hydrocarbon Processing 65(12), 43
@@ -72,12 +89,7 @@ double tray_fair_csb_ms(double flow_param, double spacing_m, struct fg_extrap *x
 	 * 0.01, where the chart curves droop (see tests/ref/test_ref_tray.c). */
 	if (!finite_nonneg(flow_param) || !finite_pos(spacing_m))
 		return NAN;
-	if (flow_param < 0.01 || flow_param > 1.0)
-		fg_extrap_note(x, WHY_FAIR_FLV);
-	if (spacing_m < 0.15 || spacing_m > 0.91)
-		fg_extrap_note(x, WHY_FAIR_TS);
-	double ts_mm = spacing_m * 1000.0;
-	return 0.0105 + 8.127e-4 * pow(ts_mm, 0.755) * exp(-1.463 * pow(flow_param, 0.842));
+	return fair_csb(flow_param, spacing_m, fair_ts_term(spacing_m), x);
 }
 
 double tray_sigma_factor(double sigma_nm)
@@ -200,6 +212,14 @@ double tray_weir_crest_m(double liquid_m3s, double weir_length_m)
 	return 0.750 * pow(liquid_m3s / weir_length_m, 2.0 / 3.0);
 }
 
+static void orifice_note(double hole_area_frac, double thickness_over_diameter,
+			 struct fg_extrap *x)
+{
+	if (hole_area_frac < 0.05 || hole_area_frac > 0.20 || thickness_over_diameter < 0.2 ||
+	    thickness_over_diameter > 1.2)
+		fg_extrap_note(x, WHY_CD);
+}
+
 double tray_orifice_coefficient(double hole_area_frac, double thickness_over_diameter,
 				struct fg_extrap *x)
 {
@@ -210,9 +230,7 @@ double tray_orifice_coefficient(double hole_area_frac, double thickness_over_dia
 	 * chart spans Ah/Aa 0.05..0.20 and t/d 0.2..1.2. */
 	if (!finite_pos(hole_area_frac) || !finite_nonneg(thickness_over_diameter))
 		return NAN;
-	if (hole_area_frac < 0.05 || hole_area_frac > 0.20 || thickness_over_diameter < 0.2 ||
-	    thickness_over_diameter > 1.2)
-		fg_extrap_note(x, WHY_CD);
+	orifice_note(hole_area_frac, thickness_over_diameter, x);
 	return 0.74 * hole_area_frac + exp(0.29 * thickness_over_diameter - 0.56);
 }
 
@@ -240,6 +258,24 @@ double tray_froth_density(double active_velocity_ms, double rho_l_kgm3, double r
 	return exp(-12.55 * pow(ks, 0.91));
 }
 
+/* C of the clear-liquid equation below. */
+static double crest_coefficient(double weir_height_m)
+{
+	return 0.501 + 0.438 * exp(-137.8 * weir_height_m);
+}
+
+/* tray_clear_liquid_m with C given (a section computes it once). */
+static double clear_liquid(double alpha_e, double weir_height_m, double liquid_m3s,
+			   double weir_length_m, double c)
+{
+	if (!isfinite(alpha_e) || alpha_e <= 0.0 || alpha_e > 1.0 ||
+	    !finite_nonneg(weir_height_m) || !finite_nonneg(liquid_m3s) ||
+	    !finite_pos(weir_length_m))
+		return NAN;
+	double crest = c * pow(liquid_m3s / (weir_length_m * alpha_e), 0.67);
+	return alpha_e * (weir_height_m + crest);
+}
+
 double tray_clear_liquid_m(double alpha_e, double weir_height_m, double liquid_m3s,
 			   double weir_length_m)
 {
@@ -247,13 +283,8 @@ double tray_clear_liquid_m(double alpha_e, double weir_height_m, double liquid_m
 	 * hL = alpha_e [hw + C (QL/(lw alpha_e))^0.67], C = 0.501 + 0.438 exp(-137.8 hw),
 	 * SI (m, m3/s), with the exponent 0.67 as the paper prints it (not 2/3:
 	 * the correlation was fitted with 0.67). */
-	if (!isfinite(alpha_e) || alpha_e <= 0.0 || alpha_e > 1.0 ||
-	    !finite_nonneg(weir_height_m) || !finite_nonneg(liquid_m3s) ||
-	    !finite_pos(weir_length_m))
-		return NAN;
-	double c = 0.501 + 0.438 * exp(-137.8 * weir_height_m);
-	double crest = c * pow(liquid_m3s / (weir_length_m * alpha_e), 0.67);
-	return alpha_e * (weir_height_m + crest);
+	return clear_liquid(alpha_e, weir_height_m, liquid_m3s, weir_length_m,
+			    crest_coefficient(weir_height_m));
 }
 
 double tray_residual_head_m(double sigma_nm, double rho_l_kgm3, double rho_g_kgm3,
@@ -412,9 +443,62 @@ static struct areas areas_of(const struct section_geom *g)
 	return a;
 }
 
+/* The terms of one evaluation that do not depend on the flows. With warm
+ * memory w they are kept between samples, each group keyed bitwise on what
+ * it is computed from (solve.h's solve_memo): the geometry terms, the
+ * surface-tension factor and the residual head. Without w, computed afresh:
+ * the same numbers either way. */
+struct tray_k {
+	double ts_term;   /* Fair: 8.127e-4 TS^0.755 */
+	double cd;        /* orifice coefficient */
+	double c_crest;   /* Bennett et al. crest coefficient */
+	double sigma_f;   /* Fair: (sigma/20 mN/m)^0.2 */
+	double hr;        /* residual head, m */
+};
+
+static void tray_k_fill(const struct section_geom *g, const struct fluid_state *f,
+			struct solve_warm *w, struct tray_k *k)
+{
+	const struct tray_geom *t = &g->tray;
+	double tod = t->deck_thickness_m / t->hole_diameter_m;
+	double gkey[3] = {t->spacing_m, t->hole_area_frac, t->weir_height_m};
+	if (w == NULL || !solve_memo_hit(&w->tray_geom, (double[4]){gkey[0], gkey[1], gkey[2],
+								  tod}, 4)) {
+		k->ts_term = fair_ts_term(t->spacing_m);
+		k->cd = tray_orifice_coefficient(t->hole_area_frac, tod, NULL);
+		k->c_crest = crest_coefficient(t->weir_height_m);
+		if (w != NULL) {
+			w->tray_geom.val[0] = k->ts_term;
+			w->tray_geom.val[1] = k->cd;
+			w->tray_geom.val[2] = k->c_crest;
+		}
+	} else {
+		k->ts_term = w->tray_geom.val[0];
+		k->cd = w->tray_geom.val[1];
+		k->c_crest = w->tray_geom.val[2];
+	}
+	if (w == NULL || !solve_memo_hit(&w->tray_sigma, &f->sigma_nm, 1)) {
+		k->sigma_f = tray_sigma_factor(f->sigma_nm);
+		if (w != NULL)
+			w->tray_sigma.val[0] = k->sigma_f;
+	} else {
+		k->sigma_f = w->tray_sigma.val[0];
+	}
+	double hkey[4] = {f->sigma_nm, f->rho_l_kgm3, f->rho_g_kgm3, t->hole_diameter_m};
+	if (w == NULL || !solve_memo_hit(&w->tray_hr, hkey, 4)) {
+		k->hr = tray_residual_head_m(f->sigma_nm, f->rho_l_kgm3, f->rho_g_kgm3,
+					     t->hole_diameter_m);
+		if (w != NULL)
+			w->tray_hr.val[0] = k->hr;
+	} else {
+		k->hr = w->tray_hr.val[0];
+	}
+}
+
 /* Flooding velocity on the net area, m/s, by the section's method. */
 static double flood_velocity(const struct section_geom *g, const struct fluid_state *f,
-			     double gas_kgs, double liq_kgs, struct fg_extrap *x)
+			     const struct tray_k *k, double gas_kgs, double liq_kgs,
+			     struct fg_extrap *x)
 {
 	const struct tray_geom *t = &g->tray;
 	double c;
@@ -424,8 +508,9 @@ static double flood_velocity(const struct section_geom *g, const struct fluid_st
 	} else {
 		assert(gas_kgs > 0.0);
 		double flv = liq_kgs / gas_kgs * sqrt(f->rho_g_kgm3 / f->rho_l_kgm3);
-		c = tray_fair_csb_ms(flv, t->spacing_m, x) * tray_sigma_factor(f->sigma_nm) *
-		    tray_hole_area_factor(t->hole_area_frac, x);
+		/* tray_fair_csb_ms with the section's spacing term */
+		c = finite_nonneg(flv) ? fair_csb(flv, t->spacing_m, k->ts_term, x) : NAN;
+		c *= k->sigma_f * tray_hole_area_factor(t->hole_area_frac, x);
 	}
 	/* The calibrated plant capacity scales the capacity factor (C_sb). */
 	return tray_flood_velocity_ms(c * section_capacity_factor(g), f->rho_l_kgm3,
@@ -433,13 +518,13 @@ static double flood_velocity(const struct section_geom *g, const struct fluid_st
 }
 
 static double jet_pct_at(const struct section_geom *g, const struct fluid_state *f,
-			 const struct areas *a, double gas_kgs, double liq_kgs,
-			 struct fg_extrap *x)
+			 const struct tray_k *k, const struct areas *a, double gas_kgs,
+			 double liq_kgs, struct fg_extrap *x)
 {
 	if (gas_kgs <= 0.0)
 		return 0.0;
 	double un = gas_kgs / f->rho_g_kgm3 / a->net;
-	return tray_jet_flood_pct(un, flood_velocity(g, f, gas_kgs, liq_kgs, x));
+	return tray_jet_flood_pct(un, flood_velocity(g, f, k, gas_kgs, liq_kgs, x));
 }
 
 /* Weep % at the operating point; NAN for bubble caps, whose risers keep the
@@ -460,22 +545,22 @@ static double weep_pct_at(const struct section_geom *g, const struct fluid_state
 	return pct;
 }
 
-/* One tray's pressure drop and the heads it is made of (h's alpha_e, hl,
- * hd, hr, dp_pa): the part of hydraulics() that tray_dp_model_pa needs. */
-static void dp_heads(const struct section_geom *g, const struct fluid_state *f,
-		     const struct areas *a, double gas_kgs, double liq_kgs, struct hyd *h,
-		     struct fg_extrap *x)
+/* Froth density, clear liquid and DP of one tray (the part of hydraulics()
+ * the flood point needs). */
+static void tray_dp(const struct section_geom *g, const struct fluid_state *f,
+		    const struct tray_k *k, const struct areas *a, double gas_kgs, double liq_kgs,
+		    struct hyd *h)
 {
 	const struct tray_geom *t = &g->tray;
 	double ql = liq_kgs / f->rho_l_kgm3;
 	double qg = gas_kgs / f->rho_g_kgm3;
+	double uh = qg / a->hole;
 	h->alpha_e = tray_froth_density(qg / a->active, f->rho_l_kgm3, f->rho_g_kgm3);
-	h->hl = tray_clear_liquid_m(h->alpha_e, t->weir_height_m, ql, t->weir_length_m);
-	double cd = tray_orifice_coefficient(t->hole_area_frac,
-					     t->deck_thickness_m / t->hole_diameter_m, x);
-	h->hd = tray_dry_head_m(qg / a->hole, cd, f->rho_g_kgm3, f->rho_l_kgm3);
-	h->hr = tray_residual_head_m(f->sigma_nm, f->rho_l_kgm3, f->rho_g_kgm3,
-				     t->hole_diameter_m);
+	h->hl = clear_liquid(h->alpha_e, t->weir_height_m, ql, t->weir_length_m, k->c_crest);
+	h->hd = tray_dry_head_m(uh, finite_nonneg(t->deck_thickness_m / t->hole_diameter_m)
+					    ? k->cd : NAN,
+				f->rho_g_kgm3, f->rho_l_kgm3);
+	h->hr = k->hr;
 	if (gas_kgs > 0.0)
 		h->dp_pa = tray_total_dp_pa(h->hd, h->hl, h->hr, f->rho_l_kgm3);
 	else
@@ -485,8 +570,8 @@ static void dp_heads(const struct section_geom *g, const struct fluid_state *f,
 /* Evaluates one tray at the given flows. Zero gas carries no pressure drop:
  * the tray then drains, so dry, liquid and residual heads are all zero. */
 static void hydraulics(const struct section_geom *g, const struct fluid_state *f,
-		       const struct areas *a, double gas_kgs, double liq_kgs, struct hyd *h,
-		       struct fg_extrap *x)
+		       const struct tray_k *k, const struct areas *a, double gas_kgs,
+		       double liq_kgs, struct hyd *h, struct fg_extrap *x)
 {
 	assert(gas_kgs >= 0.0);
 	assert(liq_kgs >= 0.0);
@@ -495,9 +580,10 @@ static void hydraulics(const struct section_geom *g, const struct fluid_state *f
 	double qg = gas_kgs / f->rho_g_kgm3;
 	double uh = qg / a->hole;
 
-	h->jet_pct = jet_pct_at(g, f, a, gas_kgs, liq_kgs, x);
+	h->jet_pct = jet_pct_at(g, f, k, a, gas_kgs, liq_kgs, x);
 	h->how = tray_weir_crest_m(ql, t->weir_length_m);
-	dp_heads(g, f, a, gas_kgs, liq_kgs, h, x);
+	orifice_note(t->hole_area_frac, t->deck_thickness_m / t->hole_diameter_m, x);
+	tray_dp(g, f, k, a, gas_kgs, liq_kgs, h);
 	h->ht = h->dp_pa / (f->rho_l_kgm3 * TRAY_G_MS2);
 	h->hdc = tray_apron_head_m(ql, fmin(a->apron, a->dc));
 	h->hb = tray_dc_backup_m(t->weir_height_m, h->how, h->ht, h->hdc);
@@ -509,12 +595,12 @@ static void hydraulics(const struct section_geom *g, const struct fluid_state *f
  * near proportional to the gas rate, so doubling brackets the root quickly;
  * bisection then closes it to 1e-10 relative. NAN if no bracket is found. */
 static double flood_gas_kgs(const struct section_geom *g, const struct fluid_state *f,
-			    const struct areas *a, double liq_kgs)
+			    const struct tray_k *k, const struct areas *a, double liq_kgs)
 {
 	double lo = 0.0;
 	double hi = f->rho_g_kgm3 * a->net * 0.05;
 	int i;
-	for (i = 0; i < 200 && !(jet_pct_at(g, f, a, hi, liq_kgs, NULL) >= 100.0); i++) {
+	for (i = 0; i < 200 && !(jet_pct_at(g, f, k, a, hi, liq_kgs, NULL) >= 100.0); i++) {
 		lo = hi;
 		hi *= 2.0;
 	}
@@ -522,7 +608,7 @@ static double flood_gas_kgs(const struct section_geom *g, const struct fluid_sta
 		return NAN;
 	for (i = 0; i < 200 && hi - lo > 1e-10 * hi; i++) {
 		double mid = 0.5 * (lo + hi);
-		if (jet_pct_at(g, f, a, mid, liq_kgs, NULL) >= 100.0)
+		if (jet_pct_at(g, f, k, a, mid, liq_kgs, NULL) >= 100.0)
 			hi = mid;
 		else
 			lo = mid;
@@ -533,6 +619,7 @@ static double flood_gas_kgs(const struct section_geom *g, const struct fluid_sta
 struct jet_ctx {
 	const struct section_geom *g;
 	const struct fluid_state *f;
+	const struct tray_k *k;
 	const struct areas *a;
 	double liq_kgs;
 };
@@ -540,29 +627,89 @@ struct jet_ctx {
 static double jet_resid_ln(double ln_gas, const void *ctx)
 {
 	const struct jet_ctx *j = ctx;
-	return jet_pct_at(j->g, j->f, j->a, exp(ln_gas), j->liq_kgs, NULL) - 100.0;
+	return jet_pct_at(j->g, j->f, j->k, j->a, exp(ln_gas), j->liq_kgs, NULL) - 100.0;
 }
 
-/* flood_gas_kgs from the guess *ln_gas (updated), warm-started by solve.h's
- * bracketed Brent solve on ln G to 1e-12 relative; the cold doubling and
- * bisection when ln_gas is NULL or the guess brackets nothing. */
+#define LN_GAS_LO (-27.631021115928547) /* ln 1e-12 */
+#define LN_GAS_HI 27.631021115928547    /* ln 1e12 */
+
+/*
+ * Fair's flood gas rate by Newton's method on x = ln G, from *ln_gas
+ * (updated on success). With jet % = 100 G / (rho_g A_net C_SB K) (K the
+ * rest of the flood velocity, fixed at this liquid rate), the residual
+ * ln(jet/100) = x - ln(rho_g A_net K) - ln C_SB has the derivative
+ * 1 - d ln C_SB/dx, where C_SB = 0.0105 + T exp(-1.463 F^0.842) and the flow
+ * parameter F falls as 1/G: d ln C_SB/dx = 1.463 * 0.842 F^0.842 (C_SB - 0.0105)/C_SB.
+ * F^0.842 = exp(0.842 (ln(L s) - x)) with s = sqrt(rho_g/rho_l). Converged
+ * by solve_newton_done to SOLVE_TOL_LN; false hands over to the bracketed
+ * solve.
+ */
+static bool fair_flood_newton(const struct section_geom *g, const struct fluid_state *f,
+			      const struct tray_k *k, const struct areas *a, double liq_kgs,
+			      double *ln_gas)
+{
+	const struct tray_geom *t = &g->tray;
+	double x = *ln_gas, prev = NAN;
+	if (!isfinite(x) || !(liq_kgs > 0.0))
+		return false;
+	double hole_f = tray_hole_area_factor(t->hole_area_frac, NULL);
+	double dens = sqrt((f->rho_l_kgm3 - f->rho_g_kgm3) / f->rho_g_kgm3);
+	double ln_k = log(f->rho_g_kgm3 * a->net * k->sigma_f * hole_f *
+			  section_capacity_factor(g) * dens);
+	double ln_ls = log(liq_kgs * sqrt(f->rho_g_kgm3 / f->rho_l_kgm3));
+	if (!isfinite(ln_k) || !isfinite(ln_ls))
+		return false;
+	for (int i = 0; i < SOLVE_NEWTON_STEPS; i++) {
+		double fp = exp(0.842 * (ln_ls - x));
+		double e = k->ts_term * exp(-1.463 * fp);
+		double csb = 0.0105 + e;
+		double step = (x - ln_k - log(csb)) / (1.0 - 1.231846 * fp * e / csb);
+		x -= step;
+		if (!isfinite(x) || x < LN_GAS_LO || x > LN_GAS_HI)
+			return false;
+		if (solve_newton_done(step, prev, SOLVE_TOL_LN)) {
+			*ln_gas = x;
+			return true;
+		}
+		prev = step;
+	}
+	return false;
+}
+
+/* flood_gas_kgs from the guess *ln_gas (updated), by Newton (Fair) or in
+ * closed form (Kister-Haas: its C_SB does not depend on the gas rate, so
+ * the flood gas rate is rho_g A_net u_flood), then solve.h's bracketed
+ * Brent solve on ln G to 1e-12 relative; the cold doubling and bisection
+ * when ln_gas is NULL or the guess brackets nothing. The first guess, when
+ * there is no last answer, is the operating gas rate scaled to 100 % jet. */
 static double flood_gas_kgs_w(const struct section_geom *g, const struct fluid_state *f,
-			      const struct areas *a, double liq_kgs, double *ln_gas, double *slope)
+			      const struct tray_k *k, const struct areas *a, double liq_kgs,
+			      double *ln_gas, double *slope, double gas_at_100)
 {
 	if (ln_gas != NULL) {
-		struct jet_ctx j = {.g = g, .f = f, .a = a, .liq_kgs = liq_kgs};
+		if (!isfinite(*ln_gas) && isfinite(gas_at_100) && gas_at_100 > 0.0)
+			*ln_gas = log(gas_at_100);
+		if (g->tray.flood_method == TRAY_FLOOD_KISTER_HAAS && isfinite(gas_at_100) &&
+		    gas_at_100 > 0.0) {
+			*ln_gas = log(gas_at_100);
+			return gas_at_100;
+		}
+		if (g->tray.flood_method == TRAY_FLOOD_FAIR &&
+		    fair_flood_newton(g, f, k, a, liq_kgs, ln_gas))
+			return exp(*ln_gas);
+		struct jet_ctx j = {.g = g, .f = f, .k = k, .a = a, .liq_kgs = liq_kgs};
 		double root;
 		/* The bounds are never reached from a guess (12 doubling steps
 		 * from 1e-3 span a factor of e^8). */
-		if (solve_secant(jet_resid_ln, &j, log(1e-12), log(1e12), *ln_gas, slope, 1e-3,
+		if (solve_secant(jet_resid_ln, &j, LN_GAS_LO, LN_GAS_HI, *ln_gas, slope, 1e-3,
 				 SOLVE_TOL_LN, &root) ||
-		    solve_near(jet_resid_ln, &j, log(1e-12), log(1e12), true, *ln_gas, 1e-3,
+		    solve_near(jet_resid_ln, &j, LN_GAS_LO, LN_GAS_HI, true, *ln_gas, 1e-3,
 			       SOLVE_TOL_LN, &root, NULL)) {
 			*ln_gas = root;
 			return exp(root);
 		}
 	}
-	double gf = flood_gas_kgs(g, f, a, liq_kgs);
+	double gf = flood_gas_kgs(g, f, k, a, liq_kgs);
 	if (ln_gas != NULL)
 		*ln_gas = isfinite(gf) && gf > 0.0 ? log(gf) : NAN;
 	return gf;
@@ -642,9 +789,11 @@ void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 		return;
 	}
 	struct areas a = areas_of(g);
+	struct tray_k k;
+	tray_k_fill(g, f, w, &k);
 	struct hyd h;
 	kind_notes(g, &r->extrap);
-	hydraulics(g, f, &a, p->gas_kgs, p->liquid_kgs, &h, &r->extrap);
+	hydraulics(g, f, &k, &a, p->gas_kgs, p->liquid_kgs, &h, &r->extrap);
 
 	double trays = (double)g->tray.trays;
 	r->v[RF_JET_FLOOD_PCT] = h.jet_pct;
@@ -664,12 +813,12 @@ void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 		 * flow parameter): its range notes describe that point, not this
 		 * one, so they go to a scratch record and are dropped. */
 		struct hyd hf;
-		struct fg_extrap flood_notes = {0, NULL};
-		double gf = flood_gas_kgs_w(g, f, &a, p->liquid_kgs,
+		double at_100 = p->gas_kgs * 100.0 / h.jet_pct;
+		double gf = flood_gas_kgs_w(g, f, &k, &a, p->liquid_kgs,
 					    w != NULL ? &w->tray_flood_ln_gas : NULL,
-					    w != NULL ? &w->tray_flood_slope : NULL);
+					    w != NULL ? &w->tray_flood_slope : NULL, at_100);
 		if (isfinite(gf)) {
-			hydraulics(g, f, &a, gf, p->liquid_kgs, &hf, &flood_notes);
+			tray_dp(g, f, &k, &a, gf, p->liquid_kgs, &hf);
 			r->v[RF_DP_FLOOD_PCT] = 100.0 * (p->dp_pa / trays) / hf.dp_pa;
 		}
 	}
@@ -679,7 +828,7 @@ void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 }
 
 double tray_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,
-			const struct section_point *p)
+			const struct section_point *p, struct solve_warm *w)
 {
 	assert(g != NULL);
 	assert(f != NULL);
@@ -688,9 +837,11 @@ double tray_dp_model_pa(const struct section_geom *g, const struct fluid_state *
 	if (!inputs_ok(g, f, p))
 		return NAN;
 	struct areas a = areas_of(g);
+	struct tray_k k;
+	tray_k_fill(g, f, w, &k); /* from the cache the sample's evaluation filled */
 	struct hyd h;
-	struct fg_extrap notes = {0, NULL}; /* tray_eval_warm notes this point's range */
-	dp_heads(g, f, &a, p->gas_kgs, p->liquid_kgs, &h, &notes);
+	/* tray_eval_warm notes this point's range; tray_dp makes no notes */
+	tray_dp(g, f, &k, &a, p->gas_kgs, p->liquid_kgs, &h);
 	double dp = h.dp_pa * (double)g->tray.trays;
 	return isfinite(dp) ? dp : NAN;
 }
