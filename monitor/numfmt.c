@@ -14,152 +14,273 @@
 /*
  * The fast path of numfmt_full, without printf: exact integer arithmetic in
  * 128 bits (a GCC and clang extension) gives the same text as the printf
- * loop below for values in [2^-18, 1e14) (about 3.8e-6 to 1e14), where
- * results live; anything else returns -1 and takes the printf loop.
+ * loop below for |v| in [1e-16, 1e17), where results live; anything else
+ * (zero, subnormals, tiny and huge values) returns -1 and takes the printf
+ * loop, which defines the text.
  *
- * v = M 2^-s exactly (M the 53-bit significand, 1 <= s <= 70). For P
- * significant digits and decimal exponent e, the digits are the integer
- * q = round(M 10^k / 2^s), k = P - 1 - e (0 <= k <= 22), rounded half to
- * even on the exact value, as glibc's printf rounds it: one product gives
- * the 17 digits truncated and the exact rest below them, from which the
- * 15- and 16-digit roundings follow with 64-bit division.
- * q reads back as v when the decimal q 10^-k lies within half an ulp of v:
- * |2 q 2^s - 2 M 10^k| <= 10^k (strictly when M is odd, ties going to the
- * even significand). Bounds: M 10^22 < 2^127, 2 q 2^s < 2^126 for P <= 16.
- * A significand of exactly 2^52 (an ulp below it half as wide) takes the
- * printf loop too.
+ * The double is taken apart by its bits: |v| = M 2^E2 with M the 53-bit
+ * significand. For the decimal exponent e (10^e <= |v| < 10^(e+1)) and
+ * k = 16 - e (0 <= k <= 32), the scaled value X = |v| 10^k lies in
+ * [10^16, 10^17) and is exactly N / 2^sh with N = M 5^k (< 2^53 5^32 < 2^128)
+ * and sh = -(E2 + k): its integer part t17 (the 17 digits truncated) and
+ * the exact rest r = N mod 2^sh give every rounding that %.15g, %.16g and
+ * %.17g make, half to even on the exact value as glibc's printf rounds.
+ * e is estimated from E2 (floor(x log10 2) = (x 78913) >> 18 for
+ * |x| <= 1650, as in Ryu) and is that or one more; t17 tells which.
+ *
+ * A P-digit candidate Q (in units of X: t17 + D with |D| <= 100) reads back
+ * as v when it lies within half an ulp of v, H = 5^k 2^(-sh-1) in units of
+ * X: 2 |D 2^sh - r| <= 5^k, strictly when M is odd (strtod's ties go to the
+ * even significand). Below a power of two (M = 2^52) the gap to the next
+ * double down is half as wide, and so is the bound on that side.
+ * Bounds: sh <= 75, so |D 2^sh - r| < 2^83.
  */
 typedef unsigned __int128 u128;
 
-static const uint64_t POW10[23] = {
+static const uint64_t POW10[20] = {
 	1u, 10u, 100u, 1000u, 10000u, 100000u, 1000000u, 10000000u, 100000000u, 1000000000u,
 	10000000000u, 100000000000u, 1000000000000u, 10000000000000u, 100000000000000u,
 	1000000000000000u, 10000000000000000u, 100000000000000000u, 1000000000000000000u,
-	10000000000000000000u, 0, 0, 0, /* 10^20.. do not fit 64 bits: see pow10_128 */
+	10000000000000000000u,
 };
 
-static u128 pow10_128(int k)
+/* 5^0..5^27, the powers of five that fit 64 bits (5^28 > 2^64). */
+static const uint64_t POW5[28] = {
+	1u, 5u, 25u, 125u, 625u, 3125u, 15625u, 78125u, 390625u, 1953125u, 9765625u,
+	48828125u, 244140625u, 1220703125u, 6103515625u, 30517578125u, 152587890625u,
+	762939453125u, 3814697265625u, 19073486328125u, 95367431640625u, 476837158203125u,
+	2384185791015625u, 11920928955078125u, 59604644775390625u, 298023223876953125u,
+	1490116119384765625u, 7450580596923828125u,
+};
+
+#define FAST_K_MAX 32 /* M 5^32 < 2^128 */
+
+static u128 pow5_128(int k)
 {
-	assert(k >= 0 && k <= 22);
-	if (k <= 19)
-		return POW10[k];
-	return (u128)POW10[19] * POW10[k - 19];
+	assert(k >= 0);
+	assert(k <= FAST_K_MAX);
+	if (k <= 27)
+		return POW5[k];
+	return (u128)POW5[27] * POW5[k - 27];
 }
 
-static bool reads_back(uint64_t m, int s, uint64_t q, int k)
+/* "00".."99": two digits at a time. */
+static const char DIGIT_PAIRS[201] = "00010203040506070809101112131415161718192021222324252627282930"
+				     "31323334353637383940414243444546474849505152535455565758596061"
+				     "62636465666768697071727374757677787980818283848586878889909192"
+				     "939495969798" "99";
+
+/*
+ * The 8 digits of x < 10^8 as the bytes of a 64-bit word, first digit in
+ * the lowest byte, each byte the digit's value (add '0' to each for text):
+ * x splits into two halves of 4 digits, each into two pairs, each pair into
+ * two digits, all halves side by side in one word (division by 100 as
+ * multiplication by 10486 / 2^20, by 10 as 103 / 2^10, exact in these
+ * ranges: all 10^8 values were checked against printf once, test_numfmt
+ * checks those below 10^6 and a sample above).
+ */
+static uint64_t digits8(uint32_t x)
 {
-	u128 a = ((u128)q << 1) << s;
-	u128 b = ((u128)m << 1) * pow10_128(k);
-	u128 d = a > b ? a - b : b - a, lim = pow10_128(k);
-	return (m & 1u) ? d < lim : d <= lim;
+	assert(x < 100000000u);
+	uint64_t merged = (uint64_t)(x / 10000u) | ((uint64_t)(x % 10000u) << 32);
+	uint64_t top = ((merged * 10486u) >> 20) & (((uint64_t)0x7f << 32) | 0x7fu);
+	uint64_t bot = merged - 100u * top;
+	uint64_t hundreds = (bot << 16) + top;
+	uint64_t tens = (hundreds * 103u) >> 10;
+	tens &= ((uint64_t)0xf << 48) | ((uint64_t)0xf << 32) | ((uint64_t)0xf << 16) | 0xfu;
+	tens += (hundreds - 10u * tens) << 8;
+	return tens;
 }
 
-/* "%.Pg" layout of the P digits q (value q 10^(e - P + 1)). */
+#define ASCII_ZEROS8 0x3030303030303030u
+#if !defined(__BYTE_ORDER__) || __BYTE_ORDER__ != __ORDER_LITTLE_ENDIAN__
+#error "numfmt.c stores digit words in little-endian byte order"
+#endif
+
+void numfmt_digits8(uint32_t x, char out[9])
+{
+	uint64_t w = digits8(x) + ASCII_ZEROS8;
+	memcpy(out, &w, 8);
+	out[8] = '\0';
+}
+
+/*
+ * "%.Pg" layout of the P digits q (value q 10^(e - P + 1)), 15 <= P <= 17,
+ * trailing zeros dropped. The text is put together in a scratch buffer
+ * with copies of fixed length (no calls, no byte loops), then copied out
+ * whole: the caller's buffer holds NUMFMT_FULL_SIZE bytes.
+ */
 static int layout(char *buf, bool neg, uint64_t q, int p, int e)
 {
-	char d[20];
-	for (int i = p - 1; i >= 0; i--) {
-		d[i] = (char)('0' + q % 10);
-		q /= 10;
-	}
-	int n = p;
-	while (n > 1 && d[n - 1] == '0')
-		n--;
-	char *o = buf;
-	if (neg)
-		*o++ = '-';
+	assert(p >= 15);
+	assert(p <= 17);
+	char d[40], t[64];
+	/* The 17 digits of q zero-padded, so the P digits start at d + 17 - P:
+	 * the first, then two words of eight (byte order as in memory on a
+	 * little-endian machine: see digits8). */
+	d[0] = (char)('0' + q / 10000000000000000u);
+	uint64_t low = q % 10000000000000000u;
+	uint64_t w1 = digits8((uint32_t)(low / 100000000u));
+	uint64_t w2 = digits8((uint32_t)(low % 100000000u));
+	uint64_t a1 = w1 + ASCII_ZEROS8, a2 = w2 + ASCII_ZEROS8;
+	memcpy(d + 1, &a1, 8);
+	memcpy(d + 9, &a2, 8);
+	memset(d + 17, '0', 16);
+	const char *dg = d + 17 - p;
+	/* Trailing zeros: the zero bytes at the top of the words. At least the
+	 * first of the P digits is not zero (q >= 10^(P-1)). */
+	int tz = w2 != 0 ? __builtin_clzll(w2) / 8
+			 : 8 + (w1 != 0 ? __builtin_clzll(w1) / 8 : 8);
+	int n = p - tz;
+	assert(n >= 1);
+	t[0] = '-';
+	char *o = t + (neg ? 1 : 0);
+	int len;
 	if (e < -4 || e >= p) {
-		*o++ = d[0];
-		if (n > 1) {
-			*o++ = '.';
-			memcpy(o, d + 1, (size_t)(n - 1));
-			o += n - 1;
-		}
-		*o++ = 'e';
-		*o++ = e < 0 ? '-' : '+';
+		o[0] = dg[0];
+		o[1] = '.';
+		memcpy(o + 2, dg + 1, 16);
+		len = n > 1 ? n + 1 : 1;
+		o[len++] = 'e';
+		o[len++] = e < 0 ? '-' : '+';
 		int a = e < 0 ? -e : e;
 		if (a >= 100)
-			*o++ = (char)('0' + a / 100);
-		*o++ = (char)('0' + a / 10 % 10);
-		*o++ = (char)('0' + a % 10);
+			o[len++] = (char)('0' + a / 100);
+		memcpy(o + len, DIGIT_PAIRS + 2 * (a % 100), 2);
+		len += 2;
 	} else if (e >= 0) {
-		memcpy(o, d, (size_t)e + 1);
-		o += e + 1;
-		if (n > e + 1) {
-			*o++ = '.';
-			memcpy(o, d + e + 1, (size_t)(n - e - 1));
-			o += n - e - 1;
-		}
+		memcpy(o, dg, 17);
+		o[e + 1] = '.';
+		memcpy(o + e + 2, dg + e + 1, 16);
+		len = n > e + 1 ? n + 1 : e + 1;
 	} else {
-		*o++ = '0';
-		*o++ = '.';
-		for (int i = 0; i < -e - 1; i++)
-			*o++ = '0';
-		memcpy(o, d, (size_t)n);
-		o += n;
+		memcpy(o, "0.0000", 6);
+		memcpy(o + 1 - e, dg, 17);
+		len = 1 - e + n;
 	}
-	*o = '\0';
-	return (int)(o - buf);
+	len += (int)(o - t);
+	assert(len < NUMFMT_FULL_SIZE);
+	t[len] = '\0';
+	memcpy(buf, t, NUMFMT_FULL_SIZE);
+	return len;
 }
 
-/* The P-digit rounding of the exact value t17 + frac (t17 its 17 digits
- * truncated, inexact: the fraction below them is not zero), half to even. */
-static uint64_t round_from_17(uint64_t t17, bool inexact, int p)
+/* The P digits q, rounded up to 10^P or not, laid out. */
+static int put_digits(char *buf, bool neg, uint64_t q, int p, int e)
 {
-	assert(p >= 15 && p < 17);
-	uint64_t div = POW10[17 - p], q = t17 / div, r = t17 % div, half = div / 2;
-	if (r > half || (r == half && (inexact || (q & 1u))))
-		q++;
-	return q;
+	if (q == POW10[p]) { /* rounded up to the next power of ten */
+		q = POW10[p - 1];
+		e++;
+	}
+	assert(q >= POW10[p - 1]);
+	assert(q < POW10[p]);
+	return layout(buf, neg, q, p, e);
+}
+
+/* The exact scaled value X = t17 + r / 2^sh of one double (see above). */
+struct scaled {
+	uint64_t t17; /* the 17 digits truncated, 10^16 <= t17 < 10^17 */
+	u128 r;       /* the rest below them, in units of 2^-sh (0 when sh <= 0) */
+	int sh;       /* binary point of N: X = N 2^-sh */
+	u128 p5;      /* 5^k: twice the half-ulp, in the same units as r */
+};
+
+static bool scale(uint64_t m, int e2, int k, struct scaled *x)
+{
+	if (k < 0 || k > FAST_K_MAX)
+		return false;
+	u128 n = (u128)m * pow5_128(k);
+	int sh = -(e2 + k);
+	x->p5 = pow5_128(k);
+	x->sh = sh;
+	if (sh > 0) {
+		assert(sh < 128);
+		u128 t = n >> sh;
+		if (t >= POW10[18]) /* caller retries with another k */
+			t = POW10[18];
+		x->t17 = (uint64_t)t;
+		x->r = n & (((u128)1 << sh) - 1);
+	} else {
+		assert(-sh < 8);
+		x->t17 = (uint64_t)(n << -sh);
+		x->r = 0;
+	}
+	return true;
+}
+
+/* Does t17 + d (in units of X) read back as the double M 2^E2 of x? */
+static bool reads_back(const struct scaled *x, int64_t d, bool m_odd, bool m_pow2)
+{
+	/* a = |candidate - X| in units of 2^-sh, below: is it under X? */
+	u128 lim = x->p5, a;
+	bool below;
+	if (x->sh > 0) {
+		u128 dd = (u128)(uint64_t)(d < 0 ? -d : d) << x->sh;
+		if (d < 0) {
+			a = dd + x->r;
+			below = true;
+		} else {
+			below = dd < x->r;
+			a = below ? x->r - dd : dd - x->r;
+		}
+	} else {
+		a = (u128)(uint64_t)(d < 0 ? -d : d);
+		below = d < 0;
+		lim <<= -x->sh;
+	}
+	a <<= below && m_pow2 ? 2 : 1; /* the gap below a power of two is narrower */
+	return m_odd ? a < lim : a <= lim;
 }
 
 static int full_fast(double v, char *buf)
 {
-	int ex;
-	double f = frexp(fabs(v), &ex); /* |v| = f 2^ex, 0.5 <= f < 1 */
-	uint64_t m = (uint64_t)ldexp(f, 53);
-	int s = 53 - ex;
-	if (s < 1 || s > 70 || m == (uint64_t)1 << 52)
+	uint64_t bits;
+	memcpy(&bits, &v, sizeof bits);
+	int be = (int)((bits >> 52) & 0x7ffu);
+	if (be == 0 || be == 0x7ff) /* zero, subnormal, not finite */
 		return -1;
-	/* The exact decimal exponent: 10^e <= |v| < 10^(e+1), checked on the
-	 * 17 digits truncated (log10 may be one off either way). */
-	int e = (int)floor(log10(fabs(v)));
-	u128 n = 0, t = 0;
-	for (int tries = 0;; tries++) {
-		int k = 16 - e;
-		if (k < 0 || k > 22 || tries > 2)
+	uint64_t m = (bits & (((uint64_t)1 << 52) - 1)) | ((uint64_t)1 << 52);
+	int e2 = be - 1075; /* |v| = m 2^e2, 2^52 <= m < 2^53 */
+	int lg = e2 + 52;   /* 2^lg <= |v| < 2^(lg+1) */
+	assert(lg > -1650 && lg < 1650);
+	/* floor(lg log10 2); >> of a negative int is arithmetic in GCC and clang */
+	int e = (int)(((int64_t)lg * 78913) >> 18);
+	struct scaled x;
+	if (!scale(m, e2, 16 - e, &x))
+		return -1;
+	if (x.t17 >= POW10[17] || x.t17 < POW10[16]) { /* e was one off */
+		e += x.t17 >= POW10[17] ? 1 : -1;
+		if (!scale(m, e2, 16 - e, &x))
 			return -1;
-		n = (u128)m * pow10_128(k);
-		t = n >> s;
-		if (t < POW10[16])
-			e--;
-		else if (t >= POW10[17])
-			e++;
-		else
-			break;
 	}
-	if (e > 13) /* keeps k = p - 1 - e >= 0 below, a carry included */
-		return -1;
-	/* The 17 digits truncated and the exact rest give every rounding. */
-	u128 rem = n & (((u128)1 << s) - 1), half = (u128)1 << (s - 1);
-	for (int p = 15; p <= 17; p++) {
-		int ep = e;
-		uint64_t q;
-		if (p == 17) {
-			q = (uint64_t)t;
-			if (rem > half || (rem == half && (q & 1u)))
-				q++;
-		} else {
-			q = round_from_17((uint64_t)t, rem != 0, p);
-		}
-		if (q == POW10[p]) { /* rounded up to the next power of ten */
-			q = POW10[p - 1];
-			ep++;
-		}
-		assert(q >= POW10[p - 1] && q < POW10[p]);
-		if (p == 17 || reads_back(m, s, q, p - 1 - ep))
-			return layout(buf, v < 0.0, q, p, ep);
+	assert(x.t17 >= POW10[16]);
+	assert(x.t17 < POW10[17]);
+	bool m_odd = (m & 1u) != 0, m_pow2 = m == (uint64_t)1 << 52;
+	/* %.15g and %.16g: t17 rounded at 100 and at 10 (constant divisors,
+	 * so no division instruction), half to even on the exact value. */
+	bool inexact = x.r != 0;
+	/* floor(H), H = 5^k 2^(-sh-1) the half-ulp in units of X: 0.55 < H < 11.2
+	 * (X < 10^17, M >= 2^52) */
+	uint64_t h_floor = (uint64_t)(x.sh >= 0 ? x.p5 >> (x.sh + 1) : (x.p5 << -x.sh) >> 1);
+	for (int p = 15; p <= 16; p++) {
+		uint64_t div = p == 15 ? 100u : 10u;
+		uint64_t q = p == 15 ? x.t17 / 100u : x.t17 / 10u;
+		uint64_t rest = x.t17 - q * div, half = div / 2;
+		q += rest > half || (rest == half && (inexact || (q & 1u)));
+		int64_t d = (int64_t)(q * div) - (int64_t)x.t17;
+		/* |D - r / 2^sh| is within 1 of |D|: most candidates are decided
+		 * against floor(H) without the 128-bit test. */
+		uint64_t ad = (uint64_t)(d < 0 ? -d : d);
+		if (ad > h_floor + 1)
+			continue;
+		if ((ad + 1 < h_floor && !m_pow2) || reads_back(&x, d, m_odd, m_pow2))
+			return put_digits(buf, v < 0.0, q, p, e);
 	}
+	/* %.17g always reads back */
+	u128 half = x.sh > 0 ? (u128)1 << (x.sh - 1) : 0;
+	uint64_t q = x.t17;
+	q += x.sh > 0 && (x.r > half || (x.r == half && (q & 1u)));
+	return put_digits(buf, v < 0.0, q, 17, e);
 	return -1;
 }
 

@@ -4,7 +4,7 @@
  * Machine files (results.csv, events.jsonl, summary.json, --json output) keep
  * every bit of a double: numfmt_full writes the shortest of %.15g, %.16g and
  * %.17g that reads back to the same double, so 0.1 stays "0.1" and 1/3 keeps the 16
- * digits it needs. Values from about 3.8e-6 to 1e14 take an exact
+ * digits it needs. Values from 1e-16 to 1e17 take an exact
  * printf-free path (128-bit integers, see numfmt.c) that gives the same
  * text several times faster; a replay writes millions of them. What a
  * person reads (tables, the live view, the report, the printed summary) is
@@ -15,6 +15,7 @@
 #define NUMFMT_H
 
 #include <stddef.h>
+#include <stdint.h>
 
 /* Enough for "-1.2345678901234567e-308" and a NUL. */
 #define NUMFMT_FULL_SIZE 32
@@ -29,6 +30,10 @@ int numfmt_full(double v, char *buf, size_t buf_size);
 /* The same text by printf alone (%.15g, %.16g, %.17g and strtod): the
  * definition numfmt_full's printf-free fast path is tested against. */
 int numfmt_full_printf(double v, char *buf, size_t buf_size);
+
+/* The 8 digits of x < 10^8, zero-padded and NUL-terminated, by the
+ * word-at-a-time conversion numfmt_full uses (exposed for its test). */
+void numfmt_digits8(uint32_t x, char out[9]);
 
 /* Writes v for a person to read: a percentage (unit "%") to 0.1, anything
  * else to 4 significant figures (%.4g: 1235, 3.457, 0.04231), "-" when not

@@ -156,6 +156,120 @@ static void test_full_edge_values_match_printf(void **state)
 	assert_string_equal(out, "1.5e-05");
 }
 
+/* Every double of the whole exponent range, not only the results' range:
+ * a random exponent (uniform over the binades, so tiny and huge values are
+ * as common as ordinary ones) and a random significand. */
+static void test_full_matches_printf_across_the_exponent_range(void **state)
+{
+	(void)state;
+	for (int i = 0; i < 150000; i++) {
+		uint64_t exp = next_u64() % 2046u + 1u; /* normal binades 1..2046 */
+		uint64_t bits = (next_u64() & ((1ull << 52) - 1)) | (exp << 52);
+		if (i & 1)
+			bits |= 1ull << 63;
+		double v;
+		memcpy(&v, &bits, sizeof v);
+		same_as_printf(v);
+	}
+}
+
+/* Subnormals (below DBL_MIN), every power of two with its neighbours (the
+ * narrower gap below a power of two), and the edges of the fast path
+ * (1e-16 and 1e17, where numfmt_full hands over to printf). */
+static void test_full_subnormals_and_powers_of_two_match_printf(void **state)
+{
+	(void)state;
+	for (int i = 0; i < 100000; i++) {
+		uint64_t bits = next_u64() & ((1ull << 52) - 1); /* exponent field 0 */
+		double v;
+		memcpy(&v, &bits, sizeof v);
+		same_as_printf(v);
+		same_as_printf(-v);
+	}
+	for (int b = -1074; b <= 1023; b++) {
+		double v = ldexp(1.0, b);
+		same_as_printf(v);
+		same_as_printf(nextafter(v, 0.0));
+		same_as_printf(nextafter(v, INFINITY));
+		same_as_printf(-v);
+	}
+	const char *edges[] = {"1e-16", "1e17", "9.999999999999999e-17", "9.99999999999999e16",
+			       "1e16", "1e-5", "1e-4", "0.0001", "1e15"};
+	for (size_t i = 0; i < sizeof edges / sizeof edges[0]; i++) {
+		double v = strtod(edges[i], NULL);
+		for (int k = 0; k < 40; k++) {
+			same_as_printf(v);
+			v = nextafter(v, INFINITY);
+		}
+		v = strtod(edges[i], NULL);
+		for (int k = 0; k < 40; k++) {
+			same_as_printf(v);
+			v = nextafter(v, 0.0);
+		}
+	}
+}
+
+/* Values next to the rounding boundaries: a short decimal (15 or 16 digits)
+ * read as a double and its neighbours a few ulps away, where the 15- or
+ * 16-digit text just stops (or just starts) reading back; and doubles whose
+ * exact value has 18 digits ending in 5 (odd multiples of 1/8 near 2^52),
+ * where %.17g rounds a tie half to even. */
+static void test_full_rounding_boundaries_match_printf(void **state)
+{
+	(void)state;
+	for (int i = 0; i < 60000; i++) {
+		char text[40];
+		int digits = 15 + (int)(next_u64() % 2u);
+		uint64_t lo = 1, hi;
+		for (int k = 1; k < digits; k++)
+			lo *= 10u;
+		hi = lo * 10u;
+		uint64_t mant = lo + next_u64() % (hi - lo);
+		int e10 = (int)(next_u64() % 40u) - 25;
+		snprintf(text, sizeof text, "%llue%d", (unsigned long long)mant, e10);
+		double v = strtod(text, NULL);
+		double up = v, down = v;
+		for (int k = 0; k < 3; k++) {
+			up = nextafter(up, INFINITY);
+			down = nextafter(down, -INFINITY);
+			same_as_printf(up);
+			same_as_printf(down);
+		}
+		same_as_printf(v);
+	}
+	for (int i = 0; i < 50000; i++) {
+		uint64_t m = (1ull << 52) + (next_u64() & ((1ull << 52) - 1));
+		for (int s = 1; s <= 4; s++) /* 2^52..2^53 times 1/2..1/16 */
+			same_as_printf(ldexp((double)m, -s));
+	}
+	/* hand-checked ties: 2^50 + 0.25 and + 0.75 (ulp 0.25) need 17 digits,
+	 * and their 18th is a 5 with nothing after it: half to even */
+	char out[NUMFMT_FULL_SIZE];
+	numfmt_full(1125899906842624.25, out, sizeof out);
+	assert_string_equal(out, "1125899906842624.2");
+	numfmt_full(1125899906842624.75, out, sizeof out);
+	assert_string_equal(out, "1125899906842624.8");
+}
+
+/* The word-at-a-time digits agree with printf's %08u: every value below
+ * 10^6, the ends of the range, and random values (all 10^8 were checked
+ * once by hand, which takes too long for every test run). */
+static void test_digits8_matches_printf(void **state)
+{
+	(void)state;
+	char a[9], b[16];
+	for (uint32_t x = 0; x < 100000000u; x = x < 1000000u ? x + 1u : x + 1u + (uint32_t)(next_u64() % 200u)) {
+		numfmt_digits8(x, a);
+		snprintf(b, sizeof b, "%08u", x);
+		if (strcmp(a, b) != 0)
+			fail_msg("%u: \"%s\"", x, a);
+	}
+	numfmt_digits8(99999999u, a);
+	assert_string_equal(a, "99999999");
+	numfmt_digits8(10000000u, a);
+	assert_string_equal(a, "10000000");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -165,6 +279,10 @@ int main(void)
 		cmocka_unit_test(test_full_fast_path_matches_printf_on_random_bits),
 		cmocka_unit_test(test_full_fast_path_matches_printf_on_result_sized_values),
 		cmocka_unit_test(test_full_edge_values_match_printf),
+		cmocka_unit_test(test_full_matches_printf_across_the_exponent_range),
+		cmocka_unit_test(test_full_subnormals_and_powers_of_two_match_printf),
+		cmocka_unit_test(test_full_rounding_boundaries_match_printf),
+		cmocka_unit_test(test_digits8_matches_printf),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
