@@ -124,6 +124,147 @@ static double solve_re(double target_ln, bool per_cd)
 	return exp(0.5 * (lo + hi));
 }
 
+/* group_ln of piece k - 1 at its upper joint PIECE_LO[k] (index [per_cd][k]),
+ * as group_ln computes it, printed to 17 digits: the test that a warm root
+ * is the first crossing compares the target with it. Where the target lies
+ * within 1e-9 of one, the test calls group_ln itself, so the table's last
+ * digit can never decide it. */
+static const double JOINT_LN[2][PIECE_COUNT] = {
+	{NAN, -1.4270382336917444, 6.9901344567874926, 10.746474956607786, 13.808054558409712,
+	 17.915153399968702, 20.620486710285917},
+	{NAN, -12.388472324272529, 1.9970623638744802, 5.9355699364387977, 8.1316066028611935,
+	 10.262832386341712, 11.45534802841528},
+};
+
+/* ln PIECE_LO[k] and the ends of the search, to 17 digits. */
+static const double PIECE_LN[PIECE_COUNT + 1] = {
+	-27.631021115928547, -4.6051701859880909, 2.9957322735539909, 5.5606816310155276,
+	7.3132203870903014, 9.3926619287701367, 10.691944912900398, 20.72326583694641};
+
+static bool first_crossing(int k, bool per_cd, double target_ln)
+{
+	if (k == 0)
+		return true;
+	double j = JOINT_LN[per_cd][k];
+	if (fabs(target_ln - j) > 1e-9 * (1.0 + fabs(j)))
+		return j < target_ln;
+	return group_ln(k - 1, PIECE_LO[k], per_cd) < target_ln;
+}
+
+/*
+ * The group of piece k at s = ln Re and its derivative d/ds, in closed form:
+ * pieces 3..6 are ln Cd = ln 10 P(w), w = s/ln 10, so d ln Cd/ds = P'(w)
+ * and no logarithm or power is needed; pieces 0..2 are 24/Re (1 + a Re^b)
+ * forms (piece 0: 24/Re + 3/16) with one exp and one log.
+ */
+static double group_d(int k, double s, bool per_cd, double *dg)
+{
+	const double ln10 = 2.302585092994045684;
+	double w = s / ln10, ln_cd, d;
+	switch (k) {
+	case 0: {
+		double re = exp(s), cd = 24.0 / re + 3.0 / 16.0;
+		ln_cd = log(cd);
+		d = -24.0 / (re * cd);
+		break;
+	}
+	case 1: {
+		/* Re^(0.82 - 0.05 w): its log (0.82 - 0.05 w) s rises at 0.82 - 0.1 w */
+		double q = 0.1315 * exp((0.82 - 0.05 * w) * s);
+		ln_cd = log(24.0 * (1.0 + q)) - s;
+		d = -1.0 + q * (0.82 - 0.1 * w) / (1.0 + q);
+		break;
+	}
+	case 2: {
+		double q = 0.1935 * exp(0.6305 * s);
+		ln_cd = log(24.0 * (1.0 + q)) - s;
+		d = -1.0 + q * 0.6305 / (1.0 + q);
+		break;
+	}
+	case 3:
+		ln_cd = ln10 * (1.6435 - 1.1242 * w + 0.1558 * w * w);
+		d = -1.1242 + 0.3116 * w;
+		break;
+	case 4:
+		ln_cd = ln10 * (-2.4571 + 2.5558 * w - 0.9295 * w * w + 0.1049 * w * w * w);
+		d = 2.5558 - 1.859 * w + 0.3147 * w * w;
+		break;
+	case 5:
+		ln_cd = ln10 * (-1.9181 + 0.6370 * w - 0.0636 * w * w);
+		d = 0.6370 - 0.1272 * w;
+		break;
+	default:
+		ln_cd = ln10 * (-4.3390 + 1.5809 * w - 0.1546 * w * w);
+		d = 1.5809 - 0.3092 * w;
+		break;
+	}
+	*dg = per_cd ? 1.0 - d : 2.0 + d;
+	return per_cd ? s - ln_cd : ln_cd + 2.0 * s;
+}
+
+/* Newton on ln Re inside piece k from *s (updated on success), to
+ * SOLVE_TOL_LN by solve_newton_done. 0 on success; +1 or -1 when a step
+ * leaves the piece upwards or downwards; 2 when it does not converge. */
+static int piece_newton(int k, bool per_cd, double target_ln, double *s)
+{
+	double x = *s, prev = NAN;
+	for (int i = 0; i < SOLVE_NEWTON_STEPS; i++) {
+		double dg, g = group_d(k, x, per_cd, &dg);
+		double step = (g - target_ln) / dg;
+		x -= step;
+		if (!isfinite(x))
+			return 2;
+		if (!(x > PIECE_LN[k]))
+			return -1;
+		if (!(x < PIECE_LN[k + 1]))
+			return 1;
+		if (solve_newton_done(step, prev, SOLVE_TOL_LN)) {
+			*s = x;
+			return 0;
+		}
+		prev = step;
+	}
+	return 2;
+}
+
+/* solve_re by Newton from ln Re = *s (updated): in the guess's piece k, and
+ * when a step leaves it, in the next piece up or down from the joint (a
+ * droplet near a joint crosses it from sample to sample). Gives the answer
+ * solve_re defines: the root in the first piece that reaches the target, or
+ * the joint itself when the target falls in the drop there. False after
+ * three pieces or when Newton fails: the caller then solves by bracketing. */
+static bool newton_re(int k, bool per_cd, double target_ln, double *s)
+{
+	double x = *s;
+	for (int tries = 0; tries < 3; tries++) {
+		int rc = piece_newton(k, per_cd, target_ln, &x);
+		if (rc == 0) {
+			if (!first_crossing(k, per_cd, target_ln))
+				return false;
+			*s = x;
+			return true;
+		}
+		if (rc == 1 && k < PIECE_COUNT - 1) {
+			k++;
+			x = PIECE_LN[k];
+		} else if (rc == -1 && k > 0) {
+			if (first_crossing(k, per_cd, target_ln)) {
+				/* Piece k - 1 does not reach the target; piece k starts
+				 * above it: the target is in the drop at the joint. */
+				if (!(group_ln(k, PIECE_LO[k], per_cd) >= target_ln))
+					return false;
+				*s = log(PIECE_LO[k]);
+				return true;
+			}
+			x = PIECE_LN[k];
+			k--;
+		} else {
+			return false;
+		}
+	}
+	return false;
+}
+
 /* solve_re from the guess ln_re[0] (updated; ln_re[1] keeps the slope of
  * the group at the answer for the next secant), cold when ln_re is NULL or
  * the guess brackets nothing. The warm solve stays inside the guess's piece and
@@ -131,12 +272,24 @@ static double solve_re(double target_ln, bool per_cd)
  * (so it is the first crossing, as solve_re defines it). */
 static double solve_re_w(double target_ln, bool per_cd, double *ln_re)
 {
-	if (ln_re != NULL && isfinite(*ln_re) && *ln_re > log(RE_LO) && *ln_re < log(RE_HI)) {
-		int k = piece_of(exp(*ln_re));
+	if (ln_re != NULL && isfinite(*ln_re) && *ln_re > PIECE_LN[0] &&
+	    *ln_re < PIECE_LN[PIECE_COUNT]) {
+		int k = 0;
+		while (k < PIECE_COUNT - 1 && *ln_re >= PIECE_LN[k + 1])
+			k++;
+		double x = *ln_re;
+		/* The piece of the guess, as piece_of(exp(guess)) would say,
+		 * away from a joint; at a joint piece_of decides. */
+		if (fabs(x - PIECE_LN[k]) < 1e-12 || fabs(x - PIECE_LN[k + 1]) < 1e-12)
+			k = piece_of(exp(x));
+		if (newton_re(k, per_cd, target_ln, &x)) {
+			*ln_re = x;
+			return exp(x);
+		}
 		struct group_target gt = {.ln = target_ln, .per_cd = per_cd, .piece = k};
 		double root, lo = piece_ln_lo(k), hi = piece_ln_hi(k);
 		double guess = fmin(fmax(*ln_re, lo), hi);
-		bool first = k == 0 || group_ln(k - 1, PIECE_LO[k], per_cd) < target_ln;
+		bool first = first_crossing(k, per_cd, target_ln);
 		if (first && (solve_secant(group_resid, &gt, lo, hi, guess, &ln_re[1], 1e-3,
 					   SOLVE_TOL_LN, &root) ||
 			      solve_near(group_resid, &gt, lo, hi, true, guess, 1e-3, SOLVE_TOL_LN,

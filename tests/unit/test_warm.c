@@ -229,6 +229,44 @@ static void test_terminal_velocity_warm_follows_jumps(void **state)
 	}
 }
 
+/* The critical droplet over gas velocities from 1 cm/s to 30 m/s (droplet
+ * Re from below 0.01 to above 4.4e4, every piece of the drag table), in
+ * random order, then creeping back and forth across each joint of the table
+ * (where the warm solve moves to the next piece, or lands on the joint in
+ * the drop between two pieces). */
+static void test_critical_droplet_warm_follows_jumps(void **state)
+{
+	(void)state;
+	double ln_re[2] = {NAN, NAN};
+	for (unsigned i = 0; i < 500; i++) {
+		double ug = 0.01 * pow(10.0, 3.5 * uniform());
+		double cold = spray_critical_droplet_m(ug, 985.0, 1.1, 2.5e-5, NULL);
+		double warm = spray_critical_droplet_m_warm(ug, 985.0, 1.1, 2.5e-5, NULL, ln_re);
+		assert_close(cold, warm, "critical droplet", i);
+	}
+	/* Re = ug d rho_g/mu_g at each joint Re_j: sweep ug by +-2 % around
+	 * the velocity whose critical droplet has Re_j, in 0.02 % steps. */
+	static const double joints[] = {0.01, 20.0, 260.0, 1500.0, 1.2e4, 4.4e4};
+	for (unsigned j = 0; j < sizeof joints / sizeof joints[0]; j++) {
+		double lo = 0.001, hi = 100.0;
+		for (int b = 0; b < 100; b++) { /* ug with Re(d_crit) = Re_j */
+			double mid = sqrt(lo * hi);
+			double d = spray_critical_droplet_m(mid, 985.0, 1.1, 2.5e-5, NULL);
+			if (mid * d * 1.1 / 2.5e-5 < joints[j])
+				lo = mid;
+			else
+				hi = mid;
+		}
+		for (unsigned i = 0; i < 400; i++) {
+			double ug = lo * (1.0 + 0.02 * sin((double)i / 20.0));
+			double cold = spray_critical_droplet_m(ug, 985.0, 1.1, 2.5e-5, NULL);
+			double warm = spray_critical_droplet_m_warm(ug, 985.0, 1.1, 2.5e-5, NULL,
+								    ln_re);
+			assert_close(cold, warm, "critical droplet at a joint", i);
+		}
+	}
+}
+
 /* Bitwise the same (NANs alike), not merely close. */
 static void assert_same(double a, double b, const char *what, unsigned step)
 {
@@ -351,6 +389,7 @@ int main(void)
 		cmocka_unit_test(test_stichlmair_section_warm_equals_cold),
 		cmocka_unit_test(test_stichlmair_flood_warm_follows_jumps),
 		cmocka_unit_test(test_terminal_velocity_warm_follows_jumps),
+		cmocka_unit_test(test_critical_droplet_warm_follows_jumps),
 		cmocka_unit_test(test_caches_change_no_bit),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
