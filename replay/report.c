@@ -446,12 +446,14 @@ int report_add_row_loads(struct report *rp, int64_t t_ms, const struct section_r
 		const struct section_result *r = &results[k];
 		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++) {
 			const int fld = rp->series_field[k][s];
-			double v = NAN;
+			double v;
 			if (fld >= 0)
 				v = r->v[fld];
 			else if (loads != NULL &&
 				 (s == REPORT_SERIES_LOAD_Y || s == REPORT_SERIES_LOAD_X))
 				v = loads[2 * k + (s == REPORT_SERIES_LOAD_X)];
+			else
+				continue; /* a series the section does not have: never drawn */
 			cell_add(&rp->cells[cell_at(k, s, b)], v);
 		}
 		struct report_mark *m = &rp->marks[mark_at(k, b)];
