@@ -403,7 +403,11 @@ static void slot_add(struct report *rp, size_t b, int64_t t_ms)
 	sl->t_last_ms = t_ms;
 	sl->row_count++;
 	if (dt > 0) {
-		const unsigned bin = dt_bin(dt);
+		if (dt != rp->last_dt_ms) { /* steps are nearly always the same length */
+			rp->last_dt_bin = dt_bin(dt);
+			rp->last_dt_ms = dt;
+		}
+		const unsigned bin = rp->last_dt_bin;
 		if (rp->dt_hist[bin] == 0 || dt < rp->dt_bin_min_ms[bin])
 			rp->dt_bin_min_ms[bin] = dt;
 		if (rp->dt_hist[bin] == 0 || dt > rp->dt_bin_max_ms[bin])

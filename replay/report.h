@@ -229,6 +229,8 @@ struct report {
 	struct report_cell *cells;     /* [section][series][bucket] */
 	struct report_mark *marks;     /* [section][bucket] */
 	uint64_t dt_hist[REPORT_DT_BINS];
+	int64_t last_dt_ms;         /* the last step and its bin (dt_bin once per step length) */
+	unsigned last_dt_bin;
 	int64_t dt_bin_min_ms[REPORT_DT_BINS]; /* shortest and longest interval in each bin */
 	int64_t dt_bin_max_ms[REPORT_DT_BINS];
 	uint64_t sec_rows_bad[FG_SECTIONS_MAX];
