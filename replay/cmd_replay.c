@@ -10,7 +10,8 @@
  *
  * The stages, each in its own file: reader (histread.c, run in a thread of
  * its own, rows handed over through rowqueue.c) -> engine (engine.c) ->
- * writers (results.c, the events lines here, alarmperf.c, report.c). This
+ * writers (results.c, formatting and writing in a thread of its own; the
+ * events lines here, alarmperf.c, report.c). This
  * file wires them: the command line, the outputs, the loops, the summary.
  */
 #include <assert.h>
@@ -47,7 +48,7 @@ struct replay {
 	uint64_t bytes_before, bytes_all; /* progress over every file */
 	uint64_t rows_overlap;            /* rows not after the previous file's last */
 	struct csvread_stats all;         /* counters summed over the files */
-	unsigned threads;                 /* --threads: 2 (reader apart) or 1 */
+	unsigned threads;                 /* --threads: 2 (reader and results writer apart) or 1 */
 	struct rowq q;                    /* reader -> engine, with 2 threads */
 	uint64_t bytes_seen;              /* reader progress as the engine last saw it */
 	int reader_rc;                    /* the reader thread's exit status */
@@ -62,6 +63,7 @@ struct replay {
 	struct engine *eng;
 	struct histread hist;
 	FILE *results, *events;
+	struct results_writer rw;         /* results.csv rows, when written */
 	struct report rp;
 	struct report_summary sum;
 	struct alarmperf perf;
@@ -100,8 +102,9 @@ static void replay_usage(FILE *f)
 		   "more (at most %d). Its time is read like --from, in the --tz zone.\n"
 		   "Several files are one series, taken in the time order of their first\n"
 		   "rows (rows where they overlap are skipped and counted).\n"
-		   "--threads 1 reads and evaluates in one thread (default 2: the reader\n"
-		   "apart; the output is the same byte for byte).\n"
+		   "--threads 1 reads, evaluates and writes in one thread (default 2: the\n"
+		   "reader apart, and the results.csv writer in a thread of its own; the\n"
+		   "output is the same byte for byte).\n"
 		   "--no-results skips results.csv (events, summary and report are still\n"
 		   "written; an old results.csv in DIR is removed); --results-every S writes\n"
 		   "one results row per S seconds of data, the last sample of each interval.\n"
@@ -465,7 +468,7 @@ static int flush_pending(struct replay *rp)
 	for (unsigned s = 0; s < rp->cfg->section_count; s++)
 		res[s] = &pending_res[s];
 	rp->pending = false;
-	return results_write_row(rp->results, rp->cfg, rp->pending_t_ms, res);
+	return results_writer_row(&rp->rw, rp->pending_t_ms, res);
 }
 
 /* One row of results.csv: every row, none (--no-results), or the last row
@@ -477,7 +480,7 @@ static int write_results(struct replay *rp, int64_t t_ms,
 	if (rp->no_results)
 		return 0;
 	if (rp->results_every_ms == 0)
-		return results_write_row(rp->results, rp->cfg, t_ms, res);
+		return results_writer_row(&rp->rw, t_ms, res);
 	int64_t slot = floor_div_ms(t_ms, rp->results_every_ms);
 	if (rp->pending && slot != rp->pending_slot && flush_pending(rp) != 0)
 		return -EIO;
@@ -983,6 +986,14 @@ static int replay_run(struct replay *rp)
 		return EXIT_RUNTIME;
 	if (rp->results != NULL && results_write_header(rp->results, rp->cfg) != 0)
 		return EXIT_RUNTIME;
+	/* With two threads, results.csv is formatted and written in a third:
+	 * on two cores the engine and the formatter then run side by side
+	 * (the reader is light), and the bytes are the same. */
+	if (rp->results != NULL &&
+	    results_writer_start(&rp->rw, rp->results, rp->cfg, rp->threads == 2) != 0) {
+		fprintf(stderr, "floodgauge replay: cannot set up the results writer\n");
+		return EXIT_RUNTIME;
+	}
 	rc = run_rows(rp);
 	if (rc != 0)
 		return rc;
@@ -990,7 +1001,8 @@ static int replay_run(struct replay *rp)
 	rp->sum.rows_malformed = rp->all.rows_malformed;
 	rp->sum.rows_unsorted = rp->all.rows_unsorted + rp->rows_overlap;
 	rp->sum.rows_duplicate = rp->all.rows_duplicate;
-	if ((rp->results != NULL && (flush_pending(rp) != 0 || fflush(rp->results) != 0)) ||
+	if ((rp->results != NULL && (flush_pending(rp) != 0 || results_writer_finish(&rp->rw) != 0 ||
+				     fflush(rp->results) != 0)) ||
 	    fflush(rp->events) != 0) {
 		fprintf(stderr, "floodgauge replay: writing %s: %s\n", rp->out_dir, strerror(errno));
 		return EXIT_RUNTIME;
@@ -1037,6 +1049,7 @@ int cmd_replay(int argc, char **argv)
 	}
 	rc = replay_run(&rp);
 out_free:
+	results_writer_finish(&rp.rw); /* after an error: ends its thread */
 	if (rp.results)
 		fclose(rp.results);
 	if (rp.events)

@@ -1,14 +1,19 @@
 /*
  * results.c - see results.h.
  *
- * A row is built in one buffer and handed to fwrite once (number text from
- * numfmt_full, names copied).
+ * results_write_row builds a row in one buffer and hands it to fwrite once
+ * (number text from numfmt_full, names copied). The writer (second half)
+ * lays out the same row text from its chunks: the columns that apply are
+ * listed once at start-up, so a row is a flat run of numbers, and a number
+ * that repeats its column's last one (a constant property, a held value)
+ * reuses that text.
  */
 #include "results.h"
 
 #include <assert.h>
 #include <errno.h>
 #include <math.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "numfmt.h"
@@ -79,4 +84,289 @@ int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 	if (fwrite(row, 1, (size_t)(p - row), f) != (size_t)(p - row))
 		return -EIO;
 	return 0;
+}
+
+/* ---- the replay's writer: chunks, an output block, maybe a thread ------- */
+
+static size_t row_max(const struct results_writer *w)
+{
+	/* time, each number with its comma, each section's four text columns */
+	return TIMEFMT_BUF_SIZE + (size_t)w->col_count * (NUMFMT_FULL_SIZE + 1) +
+	       (size_t)w->section_count * 64 + 2;
+}
+
+static void flush_out(struct results_writer *w)
+{
+	if (w->out_len == 0)
+		return;
+	errno = 0;
+	if (w->out_err == 0 && fwrite(w->out, 1, w->out_len, w->f) != w->out_len)
+		w->out_err = errno != 0 ? -errno : -EIO;
+	w->out_len = 0;
+}
+
+static char *put_word(char *p, const char *s)
+{
+	*p++ = ',';
+	size_t n = strlen(s);
+	memcpy(p, s, n);
+	return p + n;
+}
+
+/* Number c of a row, from the column's cache when it repeats the last one
+ * (the same double gives the same text). */
+static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
+{
+	*p++ = ',';
+	if (!isfinite(v)) /* NaN: an empty field */
+		return p;
+	uint64_t bits;
+	memcpy(&bits, &v, sizeof bits);
+	if (bits == w->last_bits[c] && w->last_len[c] > 0) {
+		memcpy(p, w->last_text[c], sizeof w->last_text[c]);
+		return p + w->last_len[c];
+	}
+	int n = numfmt_full(v, p, NUMFMT_FULL_SIZE);
+	assert(n > 0 && n < NUMFMT_FULL_SIZE);
+	memcpy(w->last_text[c], p, NUMFMT_FULL_SIZE); /* numfmt_full wrote as much */
+	w->last_bits[c] = bits;
+	w->last_len[c] = (uint8_t)n;
+	return p + n;
+}
+
+/* Formats the rows of c into the output block, writing the block out
+ * whenever less than a row's worst case is left in it. */
+static void format_chunk(struct results_writer *w, const struct results_chunk *c)
+{
+	size_t worst = row_max(w);
+	for (unsigned r = 0; r < c->row_count; r++) {
+		if (RESULTS_OUT_SIZE - w->out_len < worst)
+			flush_out(w);
+		char *p = w->out + w->out_len;
+		int n = timefmt_format(c->t_ms[r], p, TIMEFMT_BUF_SIZE);
+		assert(n > 0); /* checked by results_writer_row */
+		p += n;
+		const double *v = c->v + (size_t)r * w->col_count;
+		const uint8_t *code = c->codes + (size_t)r * w->section_count * 4;
+		for (unsigned s = 0; s < w->section_count; s++, code += 4) {
+			for (unsigned k = w->sec_first_col[s]; k < w->sec_first_col[s + 1]; k++)
+				p = put_number(w, p, k, v[k]);
+			p = put_word(p, flood_basis_name((enum flood_basis)code[0]));
+			if (w->sec_regime[s])
+				p = put_word(p, bubble_regime_name((enum bubble_regime)code[1]));
+			p = put_word(p, fg_quality_name((enum fg_quality)code[2]));
+			p = put_word(p, code[3] ? "true" : "false");
+		}
+		*p++ = '\n';
+		assert((size_t)(p - (w->out + w->out_len)) <= worst);
+		w->out_len = (size_t)(p - w->out);
+	}
+}
+
+static void *writer_main(void *arg)
+{
+	struct results_writer *w = arg;
+	for (;;) {
+		pthread_mutex_lock(&w->mu);
+		while (w->used == 0 && !w->closing)
+			pthread_cond_wait(&w->not_empty, &w->mu);
+		if (w->used == 0) { /* closing, and nothing left */
+			pthread_mutex_unlock(&w->mu);
+			break;
+		}
+		struct results_chunk *c = &w->chunks[w->tail];
+		pthread_mutex_unlock(&w->mu);
+		format_chunk(w, c);
+		pthread_mutex_lock(&w->mu);
+		w->err = w->out_err;
+		w->tail = (w->tail + 1) % RESULTS_CHUNKS;
+		w->used--;
+		pthread_cond_signal(&w->not_full);
+		pthread_mutex_unlock(&w->mu);
+	}
+	flush_out(w);
+	pthread_mutex_lock(&w->mu);
+	w->err = w->out_err;
+	pthread_mutex_unlock(&w->mu);
+	return NULL;
+}
+
+/* The next chunk to fill: in one thread the same chunk, formatted at once;
+ * threaded, the queue's head (waiting while every chunk is full). */
+static struct results_chunk *take_empty(struct results_writer *w)
+{
+	if (!w->threaded)
+		return &w->chunks[0];
+	pthread_mutex_lock(&w->mu);
+	while (w->used == RESULTS_CHUNKS)
+		pthread_cond_wait(&w->not_full, &w->mu);
+	struct results_chunk *c = &w->chunks[w->head];
+	pthread_mutex_unlock(&w->mu);
+	return c;
+}
+
+/* Hands the filled chunk over (threaded) or formats it here. */
+static void hand_over(struct results_writer *w)
+{
+	struct results_chunk *c = w->fill;
+	if (c == NULL || c->row_count == 0)
+		return;
+	if (!w->threaded) {
+		format_chunk(w, c);
+		w->err = w->out_err;
+	} else {
+		pthread_mutex_lock(&w->mu);
+		assert(c == &w->chunks[w->head]);
+		w->head = (w->head + 1) % RESULTS_CHUNKS;
+		w->used++;
+		w->err_seen = w->err;
+		pthread_cond_signal(&w->not_empty);
+		pthread_mutex_unlock(&w->mu);
+	}
+	if (!w->threaded)
+		w->err_seen = w->err;
+	w->fill = take_empty(w);
+	w->fill->row_count = 0;
+}
+
+static void free_buffers(struct results_writer *w)
+{
+	for (unsigned i = 0; i < RESULTS_CHUNKS; i++) {
+		free(w->chunks[i].v);
+		free(w->chunks[i].codes);
+	}
+	free(w->out);
+	free(w->last_bits);
+	free(w->last_text);
+	free(w->last_len);
+}
+
+int results_writer_start(struct results_writer *w, FILE *f, const struct fg_config *cfg,
+			 bool threaded)
+{
+	assert(w != NULL);
+	assert(f != NULL);
+	assert(cfg->section_count <= FG_SECTIONS_MAX);
+	memset(w, 0, sizeof *w);
+	w->f = f;
+	w->cfg = cfg;
+	w->threaded = threaded;
+	w->section_count = cfg->section_count;
+	for (unsigned s = 0; s < cfg->section_count; s++) {
+		enum section_type t = cfg->sections[s].geom.type;
+		w->sec_first_col[s] = w->col_count;
+		for (int i = 0; i < RF_COUNT; i++)
+			if (section_type_has_field(t, i))
+				w->col_field[w->col_count++] = (uint8_t)i;
+		w->sec_regime[s] = section_regime_applies(t);
+	}
+	w->sec_first_col[cfg->section_count] = w->col_count;
+	size_t row_bytes = (size_t)(w->col_count > 0 ? w->col_count : 1) * sizeof(double);
+	size_t rows = RESULTS_CHUNK_BYTES / row_bytes;
+	w->rows_per_chunk = rows > RESULTS_ROWS ? RESULTS_ROWS : rows < 1 ? 1 : (unsigned)rows;
+	size_t ncol = w->col_count > 0 ? w->col_count : 1;
+	size_t nsec = w->section_count > 0 ? w->section_count : 1;
+	bool ok = true;
+	for (unsigned i = 0; i < RESULTS_CHUNKS; i++) {
+		w->chunks[i].v = malloc((size_t)w->rows_per_chunk * ncol * sizeof(double));
+		w->chunks[i].codes = malloc((size_t)w->rows_per_chunk * nsec * 4);
+		ok = ok && w->chunks[i].v != NULL && w->chunks[i].codes != NULL;
+	}
+	w->out = malloc(RESULTS_OUT_SIZE);
+	w->last_bits = calloc(ncol, sizeof *w->last_bits);
+	w->last_text = calloc(ncol, sizeof *w->last_text);
+	w->last_len = calloc(ncol, sizeof *w->last_len);
+	if (!ok || w->out == NULL || w->last_bits == NULL || w->last_text == NULL ||
+	    w->last_len == NULL) {
+		free_buffers(w);
+		memset(w, 0, sizeof *w);
+		return -ENOMEM;
+	}
+	assert(row_max(w) < RESULTS_OUT_SIZE);
+	if (threaded) {
+		pthread_mutex_init(&w->mu, NULL);
+		pthread_cond_init(&w->not_full, NULL);
+		pthread_cond_init(&w->not_empty, NULL);
+		if (pthread_create(&w->thread, NULL, writer_main, w) != 0) {
+			pthread_mutex_destroy(&w->mu);
+			pthread_cond_destroy(&w->not_full);
+			pthread_cond_destroy(&w->not_empty);
+			free_buffers(w);
+			memset(w, 0, sizeof *w);
+			return -EAGAIN;
+		}
+	}
+	w->fill = take_empty(w);
+	w->fill->row_count = 0;
+	return 0;
+}
+
+int results_writer_row(struct results_writer *w, int64_t t_ms,
+		       const struct section_result *const *results)
+{
+	assert(w != NULL);
+	assert(w->fill != NULL);
+	assert(results != NULL);
+	if (t_ms < TIMEFMT_MIN_MS || t_ms > TIMEFMT_MAX_MS)
+		return -EINVAL;
+	if (w->err_seen != 0) { /* as of the last chunk handed over */
+		errno = -w->err_seen; /* for the caller's message, in this thread */
+		return w->err_seen;
+	}
+	struct results_chunk *c = w->fill;
+	unsigned r = c->row_count;
+	c->t_ms[r] = t_ms;
+	double *v = c->v + (size_t)r * w->col_count;
+	uint8_t *code = c->codes + (size_t)r * w->section_count * 4;
+	for (unsigned s = 0; s < w->section_count; s++, code += 4) {
+		const struct section_result *res = results[s];
+		for (unsigned k = w->sec_first_col[s]; k < w->sec_first_col[s + 1]; k++)
+			v[k] = res->v[w->col_field[k]];
+		code[0] = (uint8_t)res->basis;
+		code[1] = (uint8_t)res->regime;
+		code[2] = (uint8_t)res->quality;
+		code[3] = res->extrap.count > 0;
+	}
+	c->row_count++;
+	if (c->row_count == w->rows_per_chunk)
+		hand_over(w);
+	return 0;
+}
+
+int results_writer_finish(struct results_writer *w)
+{
+	if (w == NULL || w->fill == NULL)
+		return 0;
+	if (w->fill->row_count > 0) {
+		struct results_chunk *c = w->fill;
+		if (!w->threaded) {
+			format_chunk(w, c);
+		} else {
+			pthread_mutex_lock(&w->mu);
+			assert(c == &w->chunks[w->head]);
+			w->head = (w->head + 1) % RESULTS_CHUNKS;
+			w->used++;
+			pthread_cond_signal(&w->not_empty);
+			pthread_mutex_unlock(&w->mu);
+		}
+	}
+	if (w->threaded) {
+		pthread_mutex_lock(&w->mu);
+		w->closing = true;
+		pthread_cond_signal(&w->not_empty);
+		pthread_mutex_unlock(&w->mu);
+		pthread_join(w->thread, NULL);
+		pthread_mutex_destroy(&w->mu);
+		pthread_cond_destroy(&w->not_full);
+		pthread_cond_destroy(&w->not_empty);
+	} else {
+		flush_out(w);
+		w->err = w->out_err;
+	}
+	int err = w->err;
+	free_buffers(w);
+	memset(w, 0, sizeof *w);
+	if (err != 0)
+		errno = -err;
+	return err;
 }

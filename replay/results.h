@@ -8,14 +8,26 @@
  * (true/false). Numbers are the shortest of 15..17 significant digits that
  * reads back as the same double (numfmt_full): byte-identical for the same
  * input.
+ *
+ * Two ways to write it. results_write_row formats one row and hands it to
+ * stdio. A results_writer (the replay's) takes rows as they come, copies the
+ * values of the columns that apply into chunks allocated once at start-up,
+ * and formats whole chunks into a large output block that is written with
+ * one fwrite when nearly full: either in the caller's thread, or in a
+ * thread of its own behind a bounded queue (RESULTS_CHUNKS chunks: the
+ * caller waits when all are full). Both give the same bytes as
+ * results_write_row, row for row.
  */
 #ifndef RESULTS_H
 #define RESULTS_H
 
+#include <pthread.h>
+#include <stdbool.h>
 #include <stdint.h>
 #include <stdio.h>
 
 #include "config.h"
+#include "numfmt.h"
 
 /* Writes the header line. Returns 0 or -EIO. */
 int results_write_header(FILE *f, const struct fg_config *cfg);
@@ -24,5 +36,75 @@ int results_write_header(FILE *f, const struct fg_config *cfg);
  * (-EINVAL for a time that cannot be written). */
 int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 		      const struct section_result *const *results);
+
+/* Numeric columns of a row at most: every field of every section. */
+#define RESULTS_COLS_MAX (FG_SECTIONS_MAX * RF_COUNT)
+/* Bytes of a chunk's numbers: rows per chunk is this over a row's numbers
+ * (at most RESULTS_ROWS), so the queue stays under a few MB whatever the
+ * config (4 x 256 KiB, and 1 MiB for the output block). */
+#define RESULTS_CHUNK_BYTES (256u * 1024u)
+#define RESULTS_ROWS 1024
+/* Chunks in the queue: a few of slack either way. */
+#define RESULTS_CHUNKS 4
+/* The output block, bytes: written when less than a row's worst case is
+ * left. */
+#define RESULTS_OUT_SIZE (1u << 20)
+
+struct results_chunk {
+	unsigned row_count;
+	int64_t t_ms[RESULTS_ROWS];
+	double *v;             /* rows x col_count: the numbers, NAN when empty */
+	uint8_t *codes;        /* rows x sections x 4: basis, regime, quality, extrapolated */
+};
+
+struct results_writer {
+	FILE *f;
+	const struct fg_config *cfg;
+	bool threaded;              /* formatting and writing in a thread of its own */
+	unsigned section_count;
+	unsigned col_count;         /* numeric columns that apply, all sections */
+	uint8_t col_field[RESULTS_COLS_MAX]; /* result field of each column */
+	unsigned sec_first_col[FG_SECTIONS_MAX + 1]; /* section s: columns [[s], [s+1]) */
+	bool sec_regime[FG_SECTIONS_MAX];    /* the section has a regime column */
+	unsigned rows_per_chunk;
+	struct results_chunk chunks[RESULTS_CHUNKS];
+	struct results_chunk *fill; /* the caller's chunk being filled, or NULL */
+	/* The queue (threaded): head is filled next, tail taken next. */
+	unsigned head, tail, used;
+	bool closing;               /* no more chunks: the writer thread ends */
+	int err;                    /* first write error (-EIO) or 0; under mu if threaded */
+	int err_seen;               /* err as of the last hand-over (the caller's copy) */
+	pthread_t thread;
+	pthread_mutex_t mu;
+	pthread_cond_t not_full, not_empty;
+	/* The formatter's own (the writer thread's when threaded). */
+	char *out;                  /* RESULTS_OUT_SIZE bytes */
+	size_t out_len;
+	int out_err;                /* the formatter's write error, published as err */
+	uint64_t *last_bits;        /* col_count: the last number of each column... */
+	char (*last_text)[NUMFMT_FULL_SIZE]; /* ...and its text, reused while it repeats */
+	uint8_t *last_len;
+};
+
+/* Sets w up for cfg, writing to f (after the header, which the caller
+ * writes), with a thread of its own when threaded. Allocates everything
+ * the writer will use. Returns 0, or -ENOMEM / -EAGAIN (no thread) with
+ * nothing left allocated. */
+int results_writer_start(struct results_writer *w, FILE *f, const struct fg_config *cfg,
+			 bool threaded);
+
+/* Adds the row for time t_ms (results[i] is section i; copied). Returns 0,
+ * or a negative errno (also left in errno) once a write has failed (seen
+ * when a chunk is handed over; later rows are dropped), -EINVAL for a
+ * time that cannot be written (checked here, so the row is refused in the
+ * caller's thread exactly as results_write_row refuses it). */
+int results_writer_row(struct results_writer *w, int64_t t_ms,
+		       const struct section_result *const *results);
+
+/* Formats and writes every row still held, ends the thread and frees
+ * everything (f is left open, flushed by stdio as the caller sees fit).
+ * Returns 0 or the first write error as a negative errno (also left in
+ * errno). Accepts a zeroed w. */
+int results_writer_finish(struct results_writer *w);
 
 #endif

@@ -1,0 +1,188 @@
+/*
+ * test_results.c - results.csv rows: the replay's writer (chunks, an output
+ * block, a thread of its own or not) writes the same bytes as
+ * results_write_row, row for row, and reports a failed write.
+ */
+#include <setjmp.h>
+#include <stdarg.h>
+#include <stddef.h>
+
+#include <cmocka.h>
+#include <errno.h>
+#include <math.h>
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "config.h"
+#include "results.h"
+#include "section.h"
+#include "timefmt.h"
+
+static uint64_t rng = 0x2545f4914f6cdd1du;
+
+static uint64_t next_u64(void)
+{
+	rng ^= rng >> 12;
+	rng ^= rng << 25;
+	rng ^= rng >> 27;
+	return rng * 2685821657736338717u;
+}
+
+/* A value as results hold them: mostly ordinary, some empty (NaN), some
+ * repeating the last row's (the writer's column cache), some far out of
+ * the formatter's fast range, some negative zero. */
+static double pick_value(double prev)
+{
+	unsigned k = (unsigned)(next_u64() % 20u);
+	double mant = (double)(next_u64() >> 11) * 0x1p-53;
+	switch (k) {
+	case 0: return NAN;
+	case 1: return -0.0;
+	case 2: return mant * 1e-200;
+	case 3: return -mant * 1e150;
+	case 4: case 5: case 6: case 7: case 8: return prev;
+	default: return (next_u64() & 1 ? 1.0 : -1.0) * mant * pow(10.0, (double)(k % 9) - 3.0);
+	}
+}
+
+/* rows random rows for cfg, through results_write_row and through the
+ * writer (threaded or not); the two texts must be equal. */
+static void compare_writers(const char *cfg_path, unsigned rows, bool threaded)
+{
+	struct fg_config *cfg = malloc(sizeof *cfg);
+	assert_non_null(cfg);
+	assert_int_equal(config_load(cfg, cfg_path, stderr), 0);
+	char *a_text = NULL, *b_text = NULL;
+	size_t a_len = 0, b_len = 0;
+	FILE *a = open_memstream(&a_text, &a_len);
+	FILE *b = open_memstream(&b_text, &b_len);
+	assert_non_null(a);
+	assert_non_null(b);
+	static struct results_writer w;
+	assert_int_equal(results_writer_start(&w, b, cfg, threaded), 0);
+	static struct section_result res[FG_SECTIONS_MAX];
+	const struct section_result *rp[FG_SECTIONS_MAX];
+	for (unsigned s = 0; s < cfg->section_count; s++) {
+		result_clear(&res[s]);
+		rp[s] = &res[s];
+	}
+	int64_t t_ms = 1767225600000; /* 2026-01-01 */
+	for (unsigned r = 0; r < rows; r++) {
+		for (unsigned s = 0; s < cfg->section_count; s++) {
+			for (int i = 0; i < RF_COUNT; i++)
+				res[s].v[i] = pick_value(res[s].v[i]);
+			res[s].basis = (enum flood_basis)(next_u64() % FLOOD_BASIS_COUNT);
+			res[s].regime = (enum bubble_regime)(next_u64() % BUBBLE_REGIME_COUNT);
+			res[s].quality = (enum fg_quality)(next_u64() % 3u);
+			res[s].extrap.count = (unsigned)(next_u64() % 2u);
+		}
+		t_ms += next_u64() % 4u == 0 ? 250 : 1000; /* some times with milliseconds */
+		assert_int_equal(results_write_row(a, cfg, t_ms, rp), 0);
+		assert_int_equal(results_writer_row(&w, t_ms, rp), 0);
+	}
+	assert_int_equal(results_writer_finish(&w), 0);
+	fclose(a);
+	fclose(b);
+	assert_true(a_len > (size_t)rows * 20u);
+	assert_int_equal(a_len, b_len);
+	assert_memory_equal(a_text, b_text, a_len);
+	free(a_text);
+	free(b_text);
+	free(cfg);
+}
+
+/* Enough rows to fill every chunk of the queue several times over and the
+ * output block more than once; every section type (contactors config). */
+static void test_writer_in_one_thread_writes_what_write_row_writes(void **state)
+{
+	(void)state;
+	compare_writers("configs/demo.ini", 5000, false);
+	compare_writers("configs/demo-contactors.ini", 3000, false);
+}
+
+static void test_writer_thread_writes_what_write_row_writes(void **state)
+{
+	(void)state;
+	compare_writers("configs/demo.ini", 5000, true);
+	compare_writers("configs/demo-contactors.ini", 3000, true);
+}
+
+/* A full disk: the error comes back from a later row or from finish, as a
+ * negative errno, in either mode, and nothing hangs. */
+static void test_writer_reports_a_failed_write(void **state)
+{
+	(void)state;
+	struct fg_config *cfg = malloc(sizeof *cfg);
+	assert_non_null(cfg);
+	assert_int_equal(config_load(cfg, "configs/demo.ini", stderr), 0);
+	static struct section_result res[FG_SECTIONS_MAX];
+	const struct section_result *rp[FG_SECTIONS_MAX];
+	for (unsigned s = 0; s < cfg->section_count; s++) {
+		result_clear(&res[s]);
+		for (int i = 0; i < RF_COUNT; i++)
+			res[s].v[i] = 1.0 / (i + 3.0);
+		rp[s] = &res[s];
+	}
+	for (int threaded = 0; threaded <= 1; threaded++) {
+		FILE *f = fopen("/dev/full", "w");
+		if (f == NULL)
+			skip();
+		static struct results_writer w;
+		assert_int_equal(results_writer_start(&w, f, cfg, threaded != 0), 0);
+		int rc = 0;
+		for (unsigned r = 0; r < 20000 && rc == 0; r++)
+			rc = results_writer_row(&w, 1767225600000 + 1000 * (int64_t)r, rp);
+		int fin = results_writer_finish(&w);
+		assert_true(rc < 0 || fin < 0);
+		assert_int_equal(fin, -ENOSPC);
+		fclose(f);
+	}
+	free(cfg);
+}
+
+/* A time outside the years 0000..9999 is refused at once, as
+ * results_write_row refuses it. */
+static void test_writer_refuses_a_time_it_cannot_write(void **state)
+{
+	(void)state;
+	struct fg_config *cfg = malloc(sizeof *cfg);
+	assert_non_null(cfg);
+	assert_int_equal(config_load(cfg, "configs/demo.ini", stderr), 0);
+	static struct section_result res[FG_SECTIONS_MAX];
+	const struct section_result *rp[FG_SECTIONS_MAX];
+	for (unsigned s = 0; s < cfg->section_count; s++) {
+		result_clear(&res[s]);
+		rp[s] = &res[s];
+	}
+	char *text = NULL;
+	size_t len = 0;
+	FILE *f = open_memstream(&text, &len);
+	assert_non_null(f);
+	static struct results_writer w;
+	assert_int_equal(results_writer_start(&w, f, cfg, false), 0);
+	assert_int_equal(results_writer_row(&w, TIMEFMT_MAX_MS + 1, rp), -EINVAL);
+	assert_int_equal(results_write_row(f, cfg, TIMEFMT_MAX_MS + 1, rp), -EINVAL);
+	assert_int_equal(results_writer_row(&w, 0, rp), 0);
+	assert_int_equal(results_writer_finish(&w), 0);
+	fclose(f);
+	/* demo.ini's four sections, every number empty, no flood basis */
+	assert_string_equal(text, "1970-01-01T00:00:00Z,,,,,,,,,,,,,,,,,,,,,,,good,false"
+				  ",,,,,,,,,,,,,,,,,,,,good,false"
+				  ",,,,,,,,,,,,,,,,good,false"
+				  ",,,,,,,,,,,,,,,,,,,,good,false\n");
+	free(text);
+	free(cfg);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_writer_in_one_thread_writes_what_write_row_writes),
+		cmocka_unit_test(test_writer_thread_writes_what_write_row_writes),
+		cmocka_unit_test(test_writer_reports_a_failed_write),
+		cmocka_unit_test(test_writer_refuses_a_time_it_cannot_write),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
