@@ -33,6 +33,10 @@
 
 #include "solve.h"
 
+#ifndef M_LN10
+#define M_LN10 2.30258509299404568402
+#endif
+
 #define BISECT_MAX 200          /* hard cap; intervals collapse well before */
 #define FLOOD_U_LO_MS 1e-6      /* search range of the flood solve, m/s */
 #define FLOOD_U_HI_MS 1e3
@@ -681,11 +685,59 @@ static double bs_pick(double coef1, double n1, double coef2, double n2, double k
  *   sqrt(g/psi_S) = C_S X^n_S,  X = (L/V) sqrt(rho_g/rho_l) (mu_l/mu_g)^0.4,
  *   n_S = -0.326 with C_S for a flow parameter <= 0.4; n_S = -0.723 with
  *   0.695 C_S (mu_l/mu_g)^0.1588 above it. */
+/* The powers of the packing and the fluids that the loading and flood
+ * points use: with warm memory w they are kept between samples, keyed
+ * bitwise on a, mu_l and mu_g; without, computed afresh (the same numbers). */
+struct bs_pow {
+	double a16;       /* a^(1/6) */
+	double mur04;     /* (mu_l/mu_g)^0.4 */
+	double mur01588;  /* (mu_l/mu_g)^0.1588 */
+	double mur02;     /* (mu_l/mu_g)^0.2 */
+	double mur01028;  /* (mu_l/mu_g)^0.1028 */
+};
+
+static void bs_pow_fill(const struct packing_constants *c, const struct fluid_state *f,
+			struct solve_warm *w, struct bs_pow *bp)
+{
+	double key[3] = {c->area_m2m3, f->mu_l_pas, f->mu_g_pas};
+	double *v = w != NULL ? w->bs_pow.val : NULL;
+	if (w != NULL && solve_memo_hit(&w->bs_pow, key, 3)) {
+		*bp = (struct bs_pow){v[0], v[1], v[2], v[3], v[4]};
+		return;
+	}
+	double mur = f->mu_l_pas / f->mu_g_pas;
+	*bp = (struct bs_pow){pow(c->area_m2m3, 1.0 / 6.0), pow(mur, 0.4), pow(mur, 0.1588),
+			      pow(mur, 0.2), pow(mur, 0.1028)};
+	if (v != NULL) {
+		v[0] = bp->a16;
+		v[1] = bp->mur04;
+		v[2] = bp->mur01588;
+		v[3] = bp->mur02;
+		v[4] = bp->mur01028;
+	}
+}
+
+static double bs_loading(const struct packing_constants *c, double u_l_ms,
+			 const struct fluid_state *f, const struct bs_pow *bp,
+			 struct fg_extrap *x);
+
 double packed_bs_loading_ms(const struct packing_constants *c, double u_l_ms,
 			    const struct fluid_state *f, struct fg_extrap *x)
 {
 	assert(c != NULL);
 	assert(f != NULL);
+	if (!nonneg_finite(u_l_ms) || !fluids_ok(f))
+		return NAN;
+	struct bs_pow bp;
+	bs_pow_fill(c, f, NULL, &bp);
+	return bs_loading(c, u_l_ms, f, &bp, x);
+}
+
+/* packed_bs_loading_ms with the powers bp. */
+static double bs_loading(const struct packing_constants *c, double u_l_ms,
+			 const struct fluid_state *f, const struct bs_pow *bp,
+			 struct fg_extrap *x)
+{
 	if (!nonneg_finite(u_l_ms) || !fluids_ok(f))
 		return NAN;
 	if (!has_bs_base(c) || !pos_finite(c->billet_cs)) {
@@ -696,16 +748,16 @@ double packed_bs_loading_ms(const struct packing_constants *c, double u_l_ms,
 		return INFINITY;
 	double a = c->area_m2m3;
 	double b = 12.0 * f->mu_l_pas * u_l_ms / (PACKED_G_MS2 * f->rho_l_kgm3);
-	double film = (c->void_frac / pow(a, 1.0 / 6.0) - sqrt(a) * cbrt(b)) * pow(b, 1.0 / 6.0);
+	double b13 = cbrt(b);
+	double film = (c->void_frac / bp->a16 - sqrt(a) * b13) * sqrt(b13); /* b^(1/6) */
 	if (!(film > 0.0)) {
 		fg_extrap_note(x, "billet-schultes: liquid load beyond the loading-point equation");
 		return NAN;
 	}
 	double sr = sqrt(f->rho_l_kgm3 / f->rho_g_kgm3);
-	double mur = f->mu_l_pas / f->mu_g_pas;
-	double kx = u_l_ms * sr * pow(mur, 0.4);
+	double kx = u_l_ms * sr * bp->mur04;
 	double coef1 = c->billet_cs * film * sr;
-	double coef2 = 0.695 * c->billet_cs * pow(mur, 0.1588) * film * sr;
+	double coef2 = 0.695 * c->billet_cs * bp->mur01588 * film * sr;
 	return bs_pick(coef1, -0.326, coef2, -0.723, kx, u_l_ms * sr);
 }
 
@@ -732,6 +784,29 @@ double packed_bs_flood_holdup(const struct packing_constants *c, double u_l_ms,
  * so 1e-14 is better than 1e-12 relative. */
 #define BS_H_TOL 1e-14
 
+/* Newton on the flood-holdup polynomial p(h) = h^3 (3h - eps) - rhs,
+ * p' = 3 h^2 (4h - eps), from *h (or from eps when *h is not in
+ * [eps/3, eps]); *h updated on success. On [eps/3, eps] p rises and is
+ * convex (p'' = 6h (6h - eps) > 0), so from the right Newton descends
+ * monotonically onto the root and from the left its first step lands to
+ * the right of it. Converged by solve_newton_done to BS_H_TOL. */
+static bool bs_flood_newton(double eps, double rhs, double *h)
+{
+	double x = isfinite(*h) && *h >= eps / 3.0 && *h <= eps ? *h : eps, prev = NAN;
+	for (int i = 0; i < 2 * SOLVE_NEWTON_STEPS; i++) {
+		double step = (x * x * x * (3.0 * x - eps) - rhs) / (3.0 * x * x * (4.0 * x - eps));
+		x -= step;
+		if (!isfinite(x) || x < eps / 3.0 || x > eps)
+			return false;
+		if (solve_newton_done(step, prev, BS_H_TOL)) {
+			*h = x;
+			return true;
+		}
+		prev = step;
+	}
+	return false;
+}
+
 static double bs_flood_holdup_w(const struct packing_constants *c, double u_l_ms,
 				const struct fluid_state *f, struct fg_extrap *x,
 				struct solve_warm *w)
@@ -752,6 +827,8 @@ static double bs_flood_holdup_w(const struct packing_constants *c, double u_l_ms
 	}
 	double lo = eps / 3.0, hi = eps;
 	double k[2] = {eps, rhs}, root;
+	if (w != NULL && bs_flood_newton(eps, rhs, &w->bs_flood_h))
+		return w->bs_flood_h;
 	if (w != NULL && solve_near(bs_flood_poly, k, lo, hi, true, w->bs_flood_h, 1e-6, BS_H_TOL,
 				    &root, NULL)) {
 		w->bs_flood_h = root;
@@ -783,6 +860,9 @@ double packed_bs_flood_ms(const struct packing_constants *c, double u_l_ms,
 	return bs_flood_ms_w(c, u_l_ms, f, x, NULL);
 }
 
+static double bs_flood_from_h(const struct packing_constants *c, double u_l_ms,
+			      const struct fluid_state *f, double h, const struct bs_pow *bp);
+
 static double bs_flood_ms_w(const struct packing_constants *c, double u_l_ms,
 			    const struct fluid_state *f, struct fg_extrap *x, struct solve_warm *w)
 {
@@ -796,16 +876,24 @@ static double bs_flood_ms_w(const struct packing_constants *c, double u_l_ms,
 	}
 	if (u_l_ms == 0.0)
 		return INFINITY;
-	double h = bs_flood_holdup_w(c, u_l_ms, f, x, w);
+	struct bs_pow bp;
+	bs_pow_fill(c, f, w, &bp);
+	return bs_flood_from_h(c, u_l_ms, f, bs_flood_holdup_w(c, u_l_ms, f, x, w), &bp);
+}
+
+/* The flood velocity from the flood holdup h (NAN: NAN). */
+static double bs_flood_from_h(const struct packing_constants *c, double u_l_ms,
+			      const struct fluid_state *f, double h, const struct bs_pow *bp)
+{
 	if (isnan(h))
 		return NAN;
 	double eps = c->void_frac;
 	double sr = sqrt(f->rho_l_kgm3 / f->rho_g_kgm3);
-	double mur = f->mu_l_pas / f->mu_g_pas;
-	double q = sqrt(2.0) * pow(eps - h, 1.5) / sqrt(eps) * sqrt(h / c->area_m2m3) * sr;
-	double kx = u_l_ms * sr * pow(mur, 0.2);
+	double q = sqrt(2.0) * ((eps - h) * sqrt(eps - h)) / sqrt(eps) * sqrt(h / c->area_m2m3) *
+		   sr;
+	double kx = u_l_ms * sr * bp->mur02;
 	double coef1 = c->billet_cfl * q;
-	double coef2 = 0.6244 * c->billet_cfl * pow(mur, 0.1028) * q;
+	double coef2 = 0.6244 * c->billet_cfl * bp->mur01028 * q;
 	return bs_pick(coef1, -0.194, coef2, -0.708, kx, u_l_ms * sr);
 }
 
@@ -905,12 +993,20 @@ double packed_robbins_pam(double fpd_1pm, double gas_kgsm2, double liquid_kgsm2,
 		fg_extrap_note(x, "robbins: Fpd below 15 1/ft");
 	if (rho_g_kgm3 > 3.6)
 		fg_extrap_note(x, "robbins: gas density above about 3 bar air");
-	double term = 7.4e-8 * gf * gf * pow(10.0, 2.7e-5 * lf);
-	double dp = term + 0.4 * pow(lf / 20000.0, 0.1) * pow(term, 4.0);
+	double term = 7.4e-8 * gf * gf * exp(2.7e-5 * M_LN10 * lf); /* 10^(2.7e-5 Lf) */
+	double t2 = term * term;
+	double dp = term + 0.4 * pow(lf / 20000.0, 0.1) * (t2 * t2);
 	return dp * PACKED_INH2O_PER_FT_PAM;
 }
 
 /* ---- packed_eval --------------------------------------------------------- */
+
+/* A value computed once per evaluation, and the notes that made. */
+struct once {
+	bool done;
+	double v;
+	struct fg_extrap notes;
+};
 
 /* Rates and notes shared by the parts of one evaluation. */
 struct pe {
@@ -921,7 +1017,33 @@ struct pe {
 	double area_m2, height_m;
 	struct solve_warm *w;     /* warm-start memory, NULL for a cold evaluation */
 	double stich_holdup;      /* Stichlmair irrigated holdup of eval_dp, NAN if none */
+	/* Billet-Schultes values at this liquid rate, each computed once per
+	 * evaluation (flood % and the holdup both need them) with the notes
+	 * its computation made, repeated wherever it is used again. */
+	struct once hs, us, hfl, ufl;
+	bool bp_done;
+	struct bs_pow bp;
 };
+
+static const struct bs_pow *pe_bs_pow(struct pe *e)
+{
+	if (!e->bp_done) {
+		bs_pow_fill(e->c, e->f, e->w, &e->bp);
+		e->bp_done = true;
+	}
+	return &e->bp;
+}
+
+/* Adds the notes n made (its count and first reason) to x, as if the
+ * computation that made them had run again. */
+static void notes_repeat(struct fg_extrap *x, const struct fg_extrap *n)
+{
+	if (x == NULL || n->count == 0)
+		return;
+	if (x->count == 0)
+		x->first = n->first;
+	x->count += n->count;
+}
 
 static bool has_bs_flood(const struct packing_constants *c)
 {
@@ -934,6 +1056,89 @@ static void note_missing(struct pe *e, struct section_result *r, const char *why
 {
 	(void)e;
 	fg_extrap_note(&r->missing, why);
+}
+
+static double pe_preload(struct pe *e, struct fg_extrap *x)
+{
+	if (!e->hs.done) {
+		e->hs = (struct once){.done = true};
+		e->hs.v = packed_bs_holdup_preload(e->c, e->u_l, e->f, &e->hs.notes);
+	}
+	notes_repeat(x, &e->hs.notes);
+	return e->hs.v;
+}
+
+static double pe_loading(struct pe *e, struct fg_extrap *x)
+{
+	if (!e->us.done) {
+		e->us = (struct once){.done = true};
+		if (!nonneg_finite(e->u_l) || !fluids_ok(e->f))
+			e->us.v = NAN;
+		else
+			e->us.v = bs_loading(e->c, e->u_l, e->f, pe_bs_pow(e), &e->us.notes);
+	}
+	notes_repeat(x, &e->us.notes);
+	return e->us.v;
+}
+
+static double pe_flood_holdup(struct pe *e, struct fg_extrap *x)
+{
+	if (!e->hfl.done) {
+		e->hfl = (struct once){.done = true};
+		e->hfl.v = bs_flood_holdup_w(e->c, e->u_l, e->f, &e->hfl.notes, e->w);
+	}
+	notes_repeat(x, &e->hfl.notes);
+	return e->hfl.v;
+}
+
+/* bs_flood_ms_w at this evaluation's liquid rate, its flood holdup shared
+ * with pe_flood_holdup. */
+static double pe_flood(struct pe *e, struct fg_extrap *x)
+{
+	if (!e->ufl.done) {
+		const struct packing_constants *c = e->c;
+		struct fg_extrap *n = &e->ufl.notes;
+		e->ufl = (struct once){.done = true};
+		if (!nonneg_finite(e->u_l) || !fluids_ok(e->f)) {
+			e->ufl.v = NAN;
+		} else if (!has_bs_base(c) || !pos_finite(c->billet_cfl)) {
+			fg_extrap_note(n, "billet-schultes: C_Fl, a or epsilon missing");
+			e->ufl.v = NAN;
+		} else if (e->u_l == 0.0) {
+			e->ufl.v = INFINITY;
+		} else {
+			e->ufl.v = bs_flood_from_h(c, e->u_l, e->f, pe_flood_holdup(e, n),
+						   pe_bs_pow(e));
+		}
+	}
+	notes_repeat(x, &e->ufl.notes);
+	return e->ufl.v;
+}
+
+/* bs_holdup_w with this evaluation's shared values. */
+static double pe_holdup(struct pe *e, struct fg_extrap *x)
+{
+	if (!nonneg_finite(e->u_g))
+		return NAN;
+	double h_s = pe_preload(e, x);
+	if (isnan(h_s) || e->u_l == 0.0)
+		return h_s;
+	double u_s = pe_loading(e, x);
+	if (e->u_g <= u_s)
+		return h_s;
+	double u_fl = pe_flood(e, x);
+	double h_fl = pe_flood_holdup(e, x);
+	if (isnan(u_fl) || isnan(h_fl))
+		return NAN;
+	double ratio = e->u_g / u_fl;
+	if (ratio > 1.0) {
+		fg_extrap_note(x, "billet-schultes: gas above the flood point, flood holdup held");
+		ratio = 1.0;
+	}
+	if (h_fl < h_s)
+		return h_s;
+	double r2 = ratio * ratio, r4 = r2 * r2;
+	return h_s + (h_fl - h_s) * (r4 * r4 * r4 * ratio); /* ratio^13 */
 }
 
 /* Flood % by the configured method, falling back to the other one when the
@@ -952,7 +1157,7 @@ static void eval_flood(struct pe *e, const struct section_geom *g, struct sectio
 		return;
 	}
 	double u_fl = stich ? packed_stichlmair_flood_ms_warm(e->c, e->u_l, e->f, &r->extrap, e->w)
-			    : bs_flood_ms_w(e->c, e->u_l, e->f, &r->extrap, e->w);
+			    : pe_flood(e, &r->extrap);
 	if (isnan(u_fl) || u_fl <= 0.0)
 		return;
 	u_fl *= section_capacity_factor(g); /* the calibrated plant capacity */
@@ -970,7 +1175,7 @@ static void eval_loading(struct pe *e, const struct section_geom *g, struct sect
 		note_missing(e, r, "packed: Billet-Schultes C_S missing, no loading point");
 		return;
 	}
-	double u_s = packed_bs_loading_ms(e->c, e->u_l, e->f, &r->extrap);
+	double u_s = pe_loading(e, &r->extrap);
 	if (isnan(u_s) || u_s <= 0.0)
 		return;
 	r->v[RF_LOADING_PCT] = 100.0 * e->u_g / (u_s * section_capacity_factor(g));
@@ -1028,10 +1233,10 @@ static void eval_holdup(struct pe *e, struct section_result *r)
 	double h = NAN;
 	if (has_geometry(c) && pos_finite(c->billet_ch)) {
 		if (pos_finite(c->billet_cs) && pos_finite(c->billet_cfl)) {
-			h = bs_holdup_w(c, e->u_g, e->u_l, e->f, &r->extrap, e->w);
+			h = pe_holdup(e, &r->extrap);
 		} else {
 			note_missing(e, r, "packed: C_S or C_Fl missing, pre-loading holdup only");
-			h = packed_bs_holdup_preload(c, e->u_l, e->f, &r->extrap);
+			h = pe_preload(e, &r->extrap);
 		}
 	} else if (has_stichlmair(c)) {
 		/* eval_dp solved the same point (and noted its range problems). */

@@ -201,6 +201,7 @@ void solve_warm_drop_cache(struct solve_warm *w)
 	w->tray_geom.valid = false;
 	w->tray_sigma.valid = false;
 	w->tray_hr.valid = false;
+	w->bs_pow.valid = false;
 }
 
 bool solve_memo_hit(struct solve_memo *m, const double *key, unsigned n)

@@ -144,6 +144,7 @@ struct solve_warm {
 	struct solve_memo tray_geom; /* tray terms of the geometry alone (tray.c) */
 	struct solve_memo tray_sigma;/* Fair surface-tension factor (tray.c) */
 	struct solve_memo tray_hr;   /* residual head (tray.c) */
+	struct solve_memo bs_pow;    /* Billet-Schultes powers of a and mu_l/mu_g (packed.c) */
 };
 
 /* Sets every memory to NAN (cold). */
