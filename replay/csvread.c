@@ -10,11 +10,12 @@
  * without copying; only header names are unquoted (in a private copy).
  *
  * Numbers are converted here rather than with strtod on the field: strtod
- * needs a NUL-terminated string and follows LC_NUMERIC. The common case (at
- * most 15 significant digits, decimal exponent within +-22) is exact with
- * one IEEE multiplication or division, because both operands are exactly
- * representable (W. D. Clinger, "How to read floating point numbers
- * accurately", PLDI 1990, the "fast path"). Anything else is rewritten as
+ * needs a NUL-terminated string and follows LC_NUMERIC. The common case (a
+ * significand of at most 2^53 and at most 19 digits, decimal exponent within
+ * +-22) is exact with one IEEE multiplication or division, because both
+ * operands are exactly representable (W. D. Clinger, "How to read floating
+ * point numbers accurately", PLDI 1990, the "fast path"); a plain decimal
+ * without an exponent takes it in a single pass (number_plain). Anything else is rewritten as
  * "DIGITSeEXP", which has no decimal point and so reads the same in every
  * locale, and handed to strtod, which rounds correctly in glibc.
  *
@@ -285,6 +286,51 @@ static double number_slow(const char *s, size_t n, const struct number_text *t)
 	return strtod(text, NULL);
 }
 
+/* Clinger's fast path holds for a significand up to 2^53: it and 10^0..10^22
+ * are then exact doubles, and one IEEE multiplication or division rounds
+ * their exact product or quotient correctly. */
+#define CLINGER_MANT_MAX ((uint64_t)1 << 53)
+
+/*
+ * The common field in one pass: [sign] digits [mark digits] from s[0], at
+ * most 19 digits in all (so the significand cannot overflow 64 bits), no
+ * exponent, significand at most 2^53 and at most 22 decimals, ending at
+ * s[*used] (what follows is the caller's to check). Returns true with *out
+ * set, correctly rounded (Clinger's fast path, as above), or false for
+ * anything else (the general path below decides, text included).
+ */
+static bool number_plain(const char *s, size_t n, char alt_mark, double *out, size_t *used)
+{
+	const char *p = s, *end = s + n;
+	if (n == 0)
+		return false;
+	bool neg = *p == '-';
+	p += neg || *p == '+';
+	const char *first = p;
+	uint64_t mant = 0;
+	unsigned d;
+	while (p < end && (d = (unsigned)(unsigned char)*p - '0') < 10u) {
+		mant = mant * 10u + d;
+		p++;
+	}
+	size_t digits = (size_t)(p - first), frac = 0;
+	if (p < end && (*p == '.' || (alt_mark != 0 && *p == alt_mark))) {
+		const char *f = ++p;
+		while (p < end && (d = (unsigned)(unsigned char)*p - '0') < 10u) {
+			mant = mant * 10u + d;
+			p++;
+		}
+		frac = (size_t)(p - f);
+		digits += frac;
+	}
+	if (digits == 0 || digits > 19 || mant > CLINGER_MANT_MAX || frac > 22)
+		return false; /* (an exponent after it: the caller finds no delimiter there) */
+	double v = (double)mant / pow10_exact[frac];
+	*out = neg ? -v : v;
+	*used = (size_t)(p - s);
+	return true;
+}
+
 /*
  * Converts a number field. Returns NULL with *out set (NAN when the field
  * is empty or blank), or a static reason. alt_mark is ',' when a decimal
@@ -304,6 +350,12 @@ static const char *parse_number(const char *s, size_t n, char alt_mark, double *
 	}
 	if (n > NUMBER_TEXT_MAX)
 		return "text in a number field";
+	size_t used;
+	double v_plain;
+	if (number_plain(s, n, alt_mark, &v_plain, &used) && used == n) {
+		*out = v_plain;
+		return NULL;
+	}
 	struct number_text t;
 	if (!scan_number(s, n, alt_mark, &t))
 		return "text in a number field";
@@ -311,7 +363,7 @@ static const char *parse_number(const char *s, size_t n, char alt_mark, double *
 	double v;
 	if (t.mant == 0 && t.sig == 0) {
 		v = 0.0;
-	} else if (t.sig <= 15 && e10 >= -22 && e10 <= 22) {
+	} else if (t.sig <= 19 && t.mant <= CLINGER_MANT_MAX && e10 >= -22 && e10 <= 22) {
 		v = (double)t.mant;
 		v = e10 >= 0 ? v * pow10_exact[e10] : v / pow10_exact[-e10];
 	} else {
@@ -878,6 +930,22 @@ static const char *parse_row(struct csvread *r, const char *line, size_t len, in
 	unsigned c = 0;
 	r->text_count = 0;
 	while (!last) {
+		/* A bound number column holding a plain decimal right up to the
+		 * delimiter (the usual cell) is read in the same pass that finds
+		 * the delimiter; anything else is scanned as a field first. */
+		if (c < r->column_count && c != r->time_col && r->slot_of_column[c] >= 0) {
+			size_t used;
+			double v;
+			if (number_plain(line + p, len - p, alt_mark, &v, &used) &&
+			    (p + used == len || line[p + used] == r->delim)) {
+				r->row[r->slot_of_column[c]] = v;
+				p += used;
+				last = p == len;
+				p += !last; /* past the delimiter */
+				c++;
+				continue;
+			}
+		}
 		struct field f;
 		const char *why = scan_field(line, len, &p, r->delim, &f, &last);
 		if (why != NULL)
@@ -938,6 +1006,22 @@ static const char *parse_sample(struct csvread *r, const char *line, size_t len,
 	smp->slot = -1;
 	smp->text = false;
 	while (!last) {
+		/* A bound number column holding a plain decimal right up to the
+		 * delimiter (the usual cell) is read in the same pass that finds
+		 * the delimiter; anything else is scanned as a field first. */
+		if (c < r->column_count && c != r->time_col && r->slot_of_column[c] >= 0) {
+			size_t used;
+			double v;
+			if (number_plain(line + p, len - p, alt_mark, &v, &used) &&
+			    (p + used == len || line[p + used] == r->delim)) {
+				r->row[r->slot_of_column[c]] = v;
+				p += used;
+				last = p == len;
+				p += !last; /* past the delimiter */
+				c++;
+				continue;
+			}
+		}
 		struct field f;
 		const char *why = scan_field(line, len, &p, r->delim, &f, &last);
 		if (why != NULL)

@@ -751,6 +751,139 @@ static void test_large_generated_file_sums_match(void **state)
 	csvread_close(&fx->r);
 }
 
+/* ---- numbers against strtod ---------------------------------------------
+ * Every number cell the reader takes must be the double strtod gives for
+ * the same text (glibc's strtod rounds correctly): plain decimals of 1 to
+ * 19 digits (the one-pass fast path, up to a significand of 2^53 and 22
+ * decimals), and around it what must take the general path: longer digit
+ * strings, significands just over 2^53, 23 decimals, exponents. */
+
+static uint64_t num_rng = 0x9e3779b97f4a7c15u;
+
+static uint64_t num_next(void)
+{
+	num_rng ^= num_rng >> 12;
+	num_rng ^= num_rng << 25;
+	num_rng ^= num_rng >> 27;
+	return num_rng * 2685821657736338717u;
+}
+
+/* A random number text in buf (decimal mark '.'); returns its length. */
+static int random_number_text(char *buf, size_t size)
+{
+	char digits[40];
+	unsigned kind = (unsigned)(num_next() % 8u);
+	unsigned nd = kind < 5 ? 1u + (unsigned)(num_next() % 19u) : 15u + (unsigned)(num_next() % 14u);
+	for (unsigned i = 0; i < nd; i++)
+		digits[i] = (char)('0' + num_next() % 10u);
+	if (kind == 5 && nd >= 16) /* around 2^53 = 9007199254740992 */
+		memcpy(digits, "90071992547409", 14);
+	digits[nd] = '\0';
+	unsigned point = (unsigned)(num_next() % (nd + 2u)); /* nd + 1: no point */
+	const char *sign = num_next() % 4u == 0 ? "-" : num_next() % 8u == 0 ? "+" : "";
+	int n;
+	if (point > nd)
+		n = snprintf(buf, size, "%s%s", sign, digits);
+	else
+		n = snprintf(buf, size, "%s%.*s.%s", sign, (int)point, digits, digits + point);
+	if (kind == 6) /* an exponent */
+		n += snprintf(buf + n, size - (size_t)n, "e%d", (int)(num_next() % 80u) - 40);
+	if (kind == 7 && num_next() % 2u == 0) /* 22 or 23 decimals */
+		n = snprintf(buf, size, "0.%022llu%s", (unsigned long long)(num_next() % 10000000000u),
+			     num_next() % 2u ? "7" : "");
+	return n;
+}
+
+static void numbers_against_strtod(struct fixture *fx, char delim)
+{
+	enum { ROWS = 100000, COLS = 5 };
+	struct tmpdir *td = &fx->td;
+	tmpdir_make(td, "numbers.csv");
+	FILE *f = fopen(td->path, "w");
+	assert_non_null(f);
+	static double expect[ROWS][COLS];
+	fprintf(f, "time%cA%cB%cC%cD%cE\n", delim, delim, delim, delim, delim);
+	for (unsigned r = 0; r < ROWS; r++) {
+		fprintf(f, "%lld", (long long)(1772600760 + r));
+		for (unsigned c = 0; c < COLS; c++) {
+			char text[64];
+			random_number_text(text, sizeof text);
+			expect[r][c] = strtod(text, NULL);
+			if (delim == ';') { /* written with a decimal comma */
+				char *dot = strchr(text, '.');
+				if (dot != NULL)
+					*dot = ',';
+			}
+			fprintf(f, "%c%s", delim, text);
+		}
+		fputc('\n', f);
+	}
+	assert_int_equal(fclose(f), 0);
+	const char *const names[] = { "A", "B", "C", "D", "E" };
+	assert_int_equal(csvread_open(&fx->r, td->path, fx->err, sizeof fx->err), 0);
+	assert_int_equal(csvread_bind(&fx->r, names, COLS, fx->err, sizeof fx->err), 0);
+	unsigned rows = 0;
+	int64_t t;
+	double v[COLS];
+	while (csvread_next(&fx->r, &t, v, COLS) == 1) {
+		assert_true(rows < ROWS);
+		for (unsigned c = 0; c < COLS; c++)
+			if (memcmp(&v[c], &expect[rows][c], sizeof v[c]) != 0)
+				fail_msg("row %u column %u: got %.17g, strtod %.17g", rows, c, v[c],
+					 expect[rows][c]);
+		rows++;
+	}
+	assert_int_equal(rows, ROWS);
+	assert_int_equal(csvread_stats(&fx->r)->cells_text, 0);
+	csvread_close(&fx->r);
+}
+
+static void test_numbers_equal_strtod_on_random_texts(void **state)
+{
+	numbers_against_strtod(*state, ',');
+}
+
+static void test_decimal_comma_numbers_equal_strtod(void **state)
+{
+	numbers_against_strtod(*state, ';');
+}
+
+/* The edges of the one-pass path, each against strtod: 2^53 and one past
+ * it, 19 and 20 digits, 22 and 23 decimals, signed zeros, a lone sign or
+ * mark (text), a number followed by blanks. */
+static void test_fast_path_edges_equal_strtod(void **state)
+{
+	struct fixture *fx = *state;
+	static const char *const texts[] = {
+		"9007199254740992", "9007199254740993", "-9007199254740993", "900719925474099.3",
+		"1234567890123456789", "12345678901234567890", "0.1234567890123456789",
+		"0.0000000000000000000001", "0.00000000000000000000001", "-0", "-0.0", "+0.",
+		"123.", ".5", "1e5", "1.5E-3", "007", "0.30000000000000004", " 2.5 ",
+	};
+	const unsigned n = sizeof texts / sizeof texts[0];
+	struct tmpdir *td = &fx->td;
+	tmpdir_make(td, "edges.csv");
+	FILE *f = fopen(td->path, "w");
+	assert_non_null(f);
+	fputs("time,V,W\n", f);
+	for (unsigned i = 0; i < n; i++)
+		fprintf(f, "%u,%s,%s\n", 1772600760u + i, texts[i], texts[n - 1 - i]);
+	assert_int_equal(fclose(f), 0);
+	const char *const names[] = { "V", "W" };
+	assert_int_equal(csvread_open(&fx->r, td->path, fx->err, sizeof fx->err), 0);
+	assert_int_equal(csvread_bind(&fx->r, names, 2, fx->err, sizeof fx->err), 0);
+	for (unsigned i = 0; i < n; i++) {
+		int64_t t;
+		double v[2];
+		assert_int_equal(csvread_next(&fx->r, &t, v, 2), 1);
+		double a = strtod(texts[i], NULL), b = strtod(texts[n - 1 - i], NULL);
+		if (memcmp(&v[0], &a, sizeof a) != 0 || memcmp(&v[1], &b, sizeof b) != 0)
+			fail_msg("\"%s\" / \"%s\": got %.17g / %.17g", texts[i], texts[n - 1 - i],
+				 v[0], v[1]);
+	}
+	csvread_close(&fx->r);
+}
+
 /* The time column is found by name at any position, in the spreadsheet
  * form, and a historian's text in a value cell is kept. */
 static void test_time_column_by_name_and_text_cell(void **state)
@@ -954,6 +1087,9 @@ int main(void)
 		T(test_complete_last_line_without_newline_is_used),
 		T(test_malformed_rows_are_skipped_with_line_numbers),
 		T(test_numbers_are_correctly_rounded),
+		T(test_numbers_equal_strtod_on_random_texts),
+		T(test_decimal_comma_numbers_equal_strtod),
+		T(test_fast_path_edges_equal_strtod),
 		T(test_missing_tag_is_an_error_naming_tag_and_file),
 		T(test_unsorted_and_duplicate_times_are_skipped),
 		T(test_empty_file_is_an_error),
