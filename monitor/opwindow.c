@@ -5,7 +5,7 @@
  * How it is built. The limits are found with the monitor's own models: the
  * recorded tag values of one row (pressure, temperature, density, level ...)
  * are kept, the gas and x loads are set in their tags' own units, and
- * point_from_tags + section_eval give flood_pct (and weep_pct for a tray),
+ * point_from_tags + section_eval_warm give flood_pct (and weep_pct for a tray),
  * exactly as `floodgauge rate` would. For each x the gas load at flood_pct
  * 100 % (and at weep_pct 100 %) is found by bisection: flood_pct and weep_pct
  * both rise with the gas load at a fixed liquid load, which every model here
@@ -26,7 +26,8 @@
 #define EXPAND_STEPS 40   /* 1.5^40 = 1e7 times the recorded gas load at most */
 
 static double field_at(const struct fg_config *cfg, unsigned si, const struct section_geom *geom,
-		       double *vals, int gi, int xi, double g, double x, int field)
+		       double *vals, int gi, int xi, double g, double x, int field,
+		       struct solve_warm *w)
 {
 	const struct section_cfg *s = &cfg->sections[si];
 	vals[gi] = g;
@@ -35,7 +36,7 @@ static double field_at(const struct fg_config *cfg, unsigned si, const struct se
 	point_from_tags(cfg, si, vals, &p);
 	p.dp_pa = NAN; /* the limits are the model's, not the measured DP's */
 	struct section_result r;
-	section_eval(geom, &s->props, &p, &r);
+	section_eval_warm(geom, &s->props, &p, &r, w);
 	return r.v[field];
 }
 
@@ -45,9 +46,15 @@ static double gas_at(const struct fg_config *cfg, unsigned si, const struct sect
 		     double *vals, int gi, int xi, double x, double g_ref, int field, double target)
 {
 	double lo = 0.0, hi = g_ref > 0.0 ? g_ref : 1.0;
+	/* One search walks along one liquid load: its solves start from the
+	 * last evaluation's answers, as the engine's do from sample to sample
+	 * (the same results to 1e-9; the cold solves made the report's window
+	 * cost as much as 100 000 replayed rows). */
+	struct solve_warm w;
+	solve_warm_clear(&w);
 	int n = 0;
 	for (; n < EXPAND_STEPS; n++) {
-		double v = field_at(cfg, si, geom, vals, gi, xi, hi, x, field);
+		double v = field_at(cfg, si, geom, vals, gi, xi, hi, x, field, &w);
 		if (isfinite(v) && v >= target)
 			break;
 		lo = hi;
@@ -57,7 +64,7 @@ static double gas_at(const struct fg_config *cfg, unsigned si, const struct sect
 		return NAN;
 	for (int i = 0; i < BISECT_STEPS; i++) {
 		double mid = 0.5 * (lo + hi);
-		double v = field_at(cfg, si, geom, vals, gi, xi, mid, x, field);
+		double v = field_at(cfg, si, geom, vals, gi, xi, mid, x, field, &w);
 		if (isfinite(v) && v >= target)
 			hi = mid;
 		else
