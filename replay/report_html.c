@@ -58,13 +58,29 @@ int report_format_fixed(double v, int decimals, char *buf, size_t buf_size)
 		while (decimals > 0 && fabs(v) * (double)pow10_i[decimals] >= 9e15)
 			decimals--;
 		const int64_t scale = pow10_i[decimals];
-		const long long q = llround(fabs(v) * (double)scale);
-		const char *sign = (v < 0 && q != 0) ? "-" : "";
-		if (decimals == 0)
-			n = snprintf(buf, buf_size, "%s%lld", sign, q);
-		else
-			n = snprintf(buf, buf_size, "%s%lld.%0*lld", sign, q / scale, decimals,
-				     q % scale);
+		long long q = llround(fabs(v) * (double)scale);
+		/* Digits by hand, as "%s%lld.%0*lld" would print them: the charts
+		 * print some 100 000 of these, and snprintf was most of the
+		 * report's cost. At most 16 digits, a sign and a point. */
+		char tmp[24];
+		int k = 0;
+		bool neg = v < 0 && q != 0;
+		for (int d = 0; d < decimals; d++, q /= 10)
+			tmp[k++] = (char)('0' + q % 10);
+		if (decimals > 0)
+			tmp[k++] = '.';
+		do {
+			tmp[k++] = (char)('0' + q % 10);
+			q /= 10;
+		} while (q > 0);
+		if (neg)
+			tmp[k++] = '-';
+		n = k;
+		if ((size_t)n < buf_size) {
+			for (int i = 0; i < k; i++)
+				buf[i] = tmp[k - 1 - i];
+			buf[k] = '\0';
+		}
 	}
 	if (n < 0 || (size_t)n >= buf_size) {
 		buf[0] = '\0';

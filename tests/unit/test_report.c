@@ -338,6 +338,41 @@ static void test_fixed_format_rounds_without_locale(void **state)
 	assert_int_equal(report_format_fixed(123.456, 3, b, 4), -ENOSPC);
 }
 
+/* The digits are written by hand; libc's printf of the same rounded integer
+ * is the reference: random magnitudes from 1e-12 to 1e16, both signs, every
+ * decimals setting, and every answer must equal it byte for byte. */
+static void test_fixed_format_matches_printf(void **state)
+{
+	(void)state;
+	unsigned long long x = 88172645463325252ull;
+	char b[40], want[40];
+	for (int i = 0; i < 300000; i++) {
+		x ^= x << 13;
+		x ^= x >> 7;
+		x ^= x << 17;
+		double m = (double)(x >> 11) * 0x1p-53;
+		double v = (x & 1 ? -1.0 : 1.0) * m * pow(10.0, (double)(int)(x % 29) - 12.0);
+		int decimals = (int)((x >> 5) % 10);
+		int n = report_format_fixed(v, decimals, b, sizeof b);
+		int d = decimals;
+		while (d > 0 && fabs(v) * pow(10.0, d) >= 9e15)
+			d--;
+		long long scale = 1;
+		for (int k = 0; k < d; k++)
+			scale *= 10;
+		long long q = llround(fabs(v) * (double)scale);
+		const char *sign = (v < 0 && q != 0) ? "-" : "";
+		if (fabs(v) >= 9e15)
+			snprintf(want, sizeof want, "%s", v < 0 ? "<-9e15" : ">9e15");
+		else if (d == 0)
+			snprintf(want, sizeof want, "%s%lld", sign, q);
+		else
+			snprintf(want, sizeof want, "%s%lld.%0*lld", sign, q / scale, d, q % scale);
+		assert_string_equal(b, want);
+		assert_int_equal(n, (int)strlen(want));
+	}
+}
+
 static void test_init_rejects_inconsistent_layout(void **state)
 {
 	(void)state;
@@ -1002,6 +1037,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_event_times_match_reference_dates),
 		cmocka_unit_test(test_fixed_format_rounds_without_locale),
+		cmocka_unit_test(test_fixed_format_matches_printf),
 		cmocka_unit_test(test_init_rejects_inconsistent_layout),
 		cmocka_unit_test(test_page_has_sections_charts_setpoints_and_caution),
 		cmocka_unit_test(test_names_are_html_escaped),
