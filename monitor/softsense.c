@@ -38,6 +38,7 @@ void softsense_init(struct softsense *s, const struct softsense_cfg *c)
 	s->cv_base = NAN;
 	s->resid = NAN;
 	s->load_ratio_ln = NAN;
+	s->w_dt_s = NAN;
 }
 
 double softsense_sigma(const struct softsense *s)
@@ -54,7 +55,30 @@ static double ewma_weight(double dt_s, double tau_s)
 	return dt_s > 0.0 ? 1.0 - exp(-dt_s / tau_s) : 0.0;
 }
 
-static bool gas_steady(struct softsense *s, double gas_kgs, double dt_s)
+/* The weights of softsense.w, in order. */
+enum {
+	W_STEADY, W_NOISE_BASE, W_INV, W_DP_LOAD, W_WARMUP, W_CORR, W_SLOPE_LAMBDA, W_COUNT
+};
+_Static_assert(W_COUNT <= sizeof(((struct softsense *)0)->w) / sizeof(double),
+	       "softsense.w holds every weight");
+
+/* s->w at step length dt_s: ewma_weight per time constant, and the RLS
+ * forgetting factor exp(-dt/tau) (dt below zero counts as zero). */
+static void weights_at(struct softsense *s, double dt_s)
+{
+	if (dt_s == s->w_dt_s)
+		return;
+	s->w[W_STEADY] = ewma_weight(dt_s, s->cfg.steady_window_s);
+	s->w[W_NOISE_BASE] = ewma_weight(dt_s, SOFTSENSE_NOISE_BASE_TAU_S);
+	s->w[W_INV] = ewma_weight(dt_s, SOFTSENSE_INV_TAU_S);
+	s->w[W_DP_LOAD] = ewma_weight(dt_s, SOFTSENSE_DP_LOAD_TAU_S);
+	s->w[W_WARMUP] = ewma_weight(dt_s, SOFTSENSE_WARMUP_TAU_S);
+	s->w[W_CORR] = ewma_weight(dt_s, SOFTSENSE_CORR_TAU_S);
+	s->w[W_SLOPE_LAMBDA] = exp(-(dt_s > 0.0 ? dt_s : 0.0) / SOFTSENSE_SLOPE_TAU_S);
+	s->w_dt_s = dt_s;
+}
+
+static bool gas_steady(struct softsense *s, double gas_kgs)
 {
 	if (!isfinite(gas_kgs))
 		return false;
@@ -64,7 +88,7 @@ static bool gas_steady(struct softsense *s, double gas_kgs, double dt_s)
 		return false;
 	}
 	double band = s->cfg.steady_load_band;
-	double a = ewma_weight(dt_s, s->cfg.steady_window_s);
+	double a = s->w[W_STEADY];
 	s->g_mean += a * (gas_kgs - s->g_mean);
 	s->g_sq += a * (gas_kgs * gas_kgs - s->g_sq);
 	double var = fmax(0.0, s->g_sq - s->g_mean * s->g_mean);
@@ -72,11 +96,11 @@ static bool gas_steady(struct softsense *s, double gas_kgs, double dt_s)
 	       fabs(gas_kgs - s->g_mean) / s->g_mean < band;
 }
 
-static double slope_step(struct softsense *s, double f, double dp, double dt_s)
+static double slope_step(struct softsense *s, double f, double dp)
 {
 	if (!(f > 0.0) || !(dp > 0.0) || !isfinite(f) || !isfinite(dp))
 		return NAN;
-	double lambda = exp(-(dt_s > 0.0 ? dt_s : 0.0) / SOFTSENSE_SLOPE_TAU_S);
+	double lambda = s->w[W_SLOPE_LAMBDA];
 	double x = log(f), y = log(dp);
 	double phi[2] = {1.0, x};
 	double pphi[2] = {s->p[0][0] * phi[0] + s->p[0][1] * phi[1],
@@ -103,7 +127,7 @@ static double slope_step(struct softsense *s, double f, double dp, double dt_s)
 }
 
 /* ratio: DP over its learned relation (or the DP itself without a model). */
-static double noise_step(struct softsense *s, double ratio, bool learn, double dt_s)
+static double noise_step(struct softsense *s, double ratio, bool learn)
 {
 	if (!isfinite(ratio)) {
 		s->ring_count = 0; /* a gap restarts the window */
@@ -128,7 +152,7 @@ static double noise_step(struct softsense *s, double ratio, bool learn, double d
 		if (isnan(s->cv_base))
 			s->cv_base = cv;
 		else
-			s->cv_base += ewma_weight(dt_s, SOFTSENSE_NOISE_BASE_TAU_S) * (cv - s->cv_base);
+			s->cv_base += s->w[W_NOISE_BASE] * (cv - s->cv_base);
 	}
 	return s->cv_base > 0.0 ? cv / s->cv_base : NAN;
 }
@@ -146,7 +170,7 @@ static double inventory_step(struct softsense *s, const struct softsense_input *
 		s->inventory_m3 = 0.0;
 	} else {
 		if (learn)
-			s->imbalance_m3s += ewma_weight(dt_s, SOFTSENSE_INV_TAU_S) *
+			s->imbalance_m3s += s->w[W_INV] *
 					    (q - s->imbalance_m3s);
 		s->inventory_m3 += (q - s->imbalance_m3s) * dt_s;
 	}
@@ -157,7 +181,7 @@ static double inventory_step(struct softsense *s, const struct softsense_input *
 /* The DP branch of flood_index, % (see softsense.h). The load ratio is
  * smoothed (first-order, SOFTSENSE_DP_LOAD_TAU_S) so that DP noise, which
  * grows near flood, does not make the index and its alarms chatter. */
-static double dp_load_pct(struct softsense *s, const struct softsense_input *in, double dt_s)
+static double dp_load_pct(struct softsense *s, const struct softsense_input *in)
 {
 	double expected = s->corr * in->dp_model_pa;
 	if (!(in->dp_pa > 0.0) || !(expected > 0.0) || !(in->flood_pct >= 0.0)) {
@@ -170,7 +194,7 @@ static double dp_load_pct(struct softsense *s, const struct softsense_input *in,
 	if (isnan(s->load_ratio_ln))
 		s->load_ratio_ln = x;
 	else
-		s->load_ratio_ln += ewma_weight(dt_s, SOFTSENSE_DP_LOAD_TAU_S) * (x - s->load_ratio_ln);
+		s->load_ratio_ln += s->w[W_DP_LOAD] * (x - s->load_ratio_ln);
 	double pct = in->flood_pct * exp(s->load_ratio_ln);
 	return fmin(SOFTSENSE_DP_LOAD_MAX_PCT, pct);
 }
@@ -184,7 +208,8 @@ void softsense_step(struct softsense *s, const struct softsense_input *in, int64
 	double dt_s = s->started ? (double)(t_ms - s->last_t_ms) / 1000.0 : 0.0;
 	if (dt_s < 0.0)
 		dt_s = 0.0; /* time going backwards: use the sample, learn nothing */
-	bool steady = gas_steady(s, in->gas_kgs, dt_s);
+	weights_at(s, dt_s);
+	bool steady = gas_steady(s, in->gas_kgs);
 	bool have_dp = in->dp_pa > 0.0 && in->dp_model_pa > 0.0 && !in->dp_saturated;
 	double resid = have_dp ? log(in->dp_pa / (s->corr * in->dp_model_pa)) : NAN;
 	bool warm = s->learned_s < SOFTSENSE_WARMUP_S;
@@ -194,8 +219,7 @@ void softsense_step(struct softsense *s, const struct softsense_input *in, int64
 	bool learn = normal && steady;
 	if (learn) {
 		double ratio = in->dp_pa / in->dp_model_pa;
-		double tau = warm ? SOFTSENSE_WARMUP_TAU_S : SOFTSENSE_CORR_TAU_S;
-		s->corr += ewma_weight(dt_s, tau) * (ratio - s->corr);
+		s->corr += s->w[warm ? W_WARMUP : W_CORR] * (ratio - s->corr);
 		s->corr = fmin(SOFTSENSE_CORR_MAX, fmax(SOFTSENSE_CORR_MIN, s->corr));
 		s->learned_s += dt_s;
 	}
@@ -205,12 +229,12 @@ void softsense_step(struct softsense *s, const struct softsense_input *in, int64
 	s->resid = resid;
 	s->dp_exponent = in->dp_exponent;
 	r->v[RF_DP_CORRECTION] = isfinite(in->dp_model_pa) ? s->corr : NAN;
-	double slope = slope_step(s, in->f_factor, in->dp_saturated ? NAN : in->dp_pa, dt_s);
+	double slope = slope_step(s, in->f_factor, in->dp_saturated ? NAN : in->dp_pa);
 	if (normal && isfinite(slope)) {
 		if (isnan(s->slope_normal))
 			s->slope_normal = slope;
 		else
-			s->slope_normal += ewma_weight(dt_s, SOFTSENSE_CORR_TAU_S) *
+			s->slope_normal += s->w[W_CORR] *
 					   (slope - s->slope_normal);
 	}
 	r->v[RF_DP_SLOPE] = slope;
@@ -227,10 +251,10 @@ void softsense_step(struct softsense *s, const struct softsense_input *in, int64
 	double settled_s = model ? s->learned_s : s->plain_s;
 	bool base_learn = model ? learn : plain;
 	r->v[RF_DP_NOISE_RATIO] = noise_step(s, ratio, base_learn &&
-					     settled_s >= 0.5 * SOFTSENSE_WARMUP_S, dt_s);
+					     settled_s >= 0.5 * SOFTSENSE_WARMUP_S);
 	r->v[RF_INVENTORY_M3] = inventory_step(s, in, base_learn &&
 					       settled_s >= SOFTSENSE_WARMUP_S, dt_s);
-	r->v[RF_DP_LOAD_PCT] = dp_load_pct(s, in, dt_s);
+	r->v[RF_DP_LOAD_PCT] = dp_load_pct(s, in);
 	s->started = true;
 	s->last_t_ms = t_ms;
 }

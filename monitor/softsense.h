@@ -140,6 +140,11 @@ struct softsense {
 	double resid;                  /* ln(DP / (corr model DP)) at the last step, NAN if none */
 	double load_ratio_ln;          /* smoothed ln(load implied by DP / load), NAN: none */
 	double dp_exponent;            /* the input's dp_exponent at the last step */
+	/* The averaging weights at the step length w_dt_s (NAN: none yet). Steps
+	 * are nearly always the same length, so they are worked out once per
+	 * length rather than per step: the same numbers, without a dozen exp(). */
+	double w_dt_s;
+	double w[8];
 };
 
 /* What the engine knows of the section at one step (SI). */
