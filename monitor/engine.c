@@ -100,7 +100,7 @@ static double dp_exponent(const struct section_cfg *s, const struct engine_secti
 	return dp2 > 0.0 ? log(dp2 / dp_model_pa) / log(step) : NAN;
 }
 
-static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
+static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms, double exponent)
 {
 	const struct section_cfg *s = &e->cfg->sections[si];
 	struct engine_section *es = &e->sec[si];
@@ -119,7 +119,7 @@ static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
 		.gas_kgs = p->gas_kgs,
 		.dp_pa = r->v[RF_DP_PA],
 		.dp_model_pa = raw_model,
-		.dp_exponent = dp_exponent(s, es, p, raw_model),
+		.dp_exponent = exponent,
 		.flood_pct = r->v[RF_FLOOD_PCT],
 		.dp_saturated = dp_sat,
 		.f_factor = r->v[RF_F_FACTOR],
@@ -168,20 +168,44 @@ static void learn_circulation(struct engine *e, unsigned si, int64_t t_ms)
 		r->v[RF_CIRCULATION_PCT] = 100.0 * u / es->circ_normal_ms;
 }
 
-static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
+/* The models of section si at the tags' present state: the point, the
+ * result and the DP exponent, warm-started from es->warm. */
+static enum fg_quality eval_models(struct engine *e, unsigned si, struct section_point *p,
+				   struct section_result *r, double *exponent)
 {
 	const struct section_cfg *s = &e->cfg->sections[si];
 	struct engine_section *es = &e->sec[si];
 	double sig[SIGNAL_COUNT];
 	enum fg_quality q = gather(e, si, sig);
-	point_from_si(s, e->cfg, sig, &es->point);
-	section_eval_warm(&s->geom, &s->props, &es->point, &es->r, &es->warm);
+	point_from_si(s, e->cfg, sig, p);
+	section_eval_warm(&s->geom, &s->props, p, r, &es->warm);
+	*exponent = dp_exponent(s, es, p, r->v[RF_DP_MODEL_PA]);
+	return q;
+}
+
+/* pre: the models worked out ahead (engine_premodel), NULL to evaluate here. */
+static void eval_section(struct engine *e, unsigned si, int64_t t_ms,
+			 const struct engine_premodel *pre)
+{
+	const struct section_cfg *s = &e->cfg->sections[si];
+	struct engine_section *es = &e->sec[si];
+	double exponent;
+	enum fg_quality q;
+	if (pre != NULL) {
+		double sig[SIGNAL_COUNT];
+		q = gather(e, si, sig); /* the quality and the diagnostic, from this engine's tags */
+		es->point = pre->point;
+		es->r = pre->r;
+		exponent = pre->dp_exponent;
+	} else {
+		q = eval_models(e, si, &es->point, &es->r, &exponent);
+	}
 	fg_quality_raise(&es->r.quality, q);
 	/* Without a good gas flow nobody knows whether the section runs: keep
 	 * the last verdict rather than call a dead transmitter "shut down". */
 	if (isfinite(es->point.gas_kgs))
 		es->in_service = es->point.gas_kgs >= s->in_service_gas_kgs;
-	soft_sensors(e, si, t_ms);
+	soft_sensors(e, si, t_ms, exponent);
 	learn_circulation(e, si, t_ms);
 }
 
@@ -223,14 +247,10 @@ static void eval_alarms(struct engine *e, int64_t t_ms)
 	}
 }
 
-void engine_step(struct engine *e, int64_t t_ms, const double *values,
-		 const enum tag_status *status)
+static void validate_tags(struct engine *e, int64_t t_ms, const double *values,
+			  const enum tag_status *status)
 {
-	assert(e != NULL);
-	assert(values != NULL);
-	assert(status != NULL);
 	const struct fg_config *cfg = e->cfg;
-	e->event_count = 0;
 	for (unsigned i = 0; i < cfg->tag_count; i++) {
 		const struct tag_cfg *t = &cfg->tags[i];
 		if (t->source_index < 0)
@@ -238,11 +258,49 @@ void engine_step(struct engine *e, int64_t t_ms, const double *values,
 		else
 			validate_step(&e->tags[i], t_ms, values[i], status[i]);
 	}
+}
+
+void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
+		       const enum tag_status *status, uint64_t mask,
+		       const struct engine_premodel *pre)
+{
+	assert(e != NULL);
+	assert(values != NULL);
+	assert(status != NULL);
+	assert(mask == 0 || pre != NULL);
+	const struct fg_config *cfg = e->cfg;
+	e->event_count = 0;
+	validate_tags(e, t_ms, values, status);
+	unsigned k = 0;
 	for (unsigned i = 0; i < cfg->section_count; i++)
-		eval_section(e, i, t_ms);
+		eval_section(e, i, t_ms, (mask >> i & 1u) ? &pre[k++] : NULL);
 	eval_alarms(e, t_ms);
 	e->t_ms = t_ms;
 	e->step_count++;
+}
+
+void engine_step(struct engine *e, int64_t t_ms, const double *values,
+		 const enum tag_status *status)
+{
+	engine_step_ahead(e, t_ms, values, status, 0, NULL);
+}
+
+void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
+		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out)
+{
+	assert(ahead != NULL);
+	assert(values != NULL);
+	assert(status != NULL);
+	assert(out != NULL || mask == 0);
+	validate_tags(ahead, t_ms, values, status);
+	unsigned k = 0;
+	for (unsigned i = 0; i < ahead->cfg->section_count; i++)
+		if (mask >> i & 1u) {
+			struct engine_premodel *o = &out[k++];
+			eval_models(ahead, i, &o->point, &o->r, &o->dp_exponent);
+		}
+	ahead->t_ms = t_ms;
+	ahead->step_count++;
 }
 
 void engine_tag_status_text(struct engine *e, unsigned ti, const char *text)

@@ -71,6 +71,28 @@ int engine_init(struct engine *e, const struct fg_config *cfg);
 void engine_step(struct engine *e, int64_t t_ms, const double *values,
 		 const enum tag_status *status);
 
+/* The models of one section at one row, worked out ahead (engine_premodel)
+ * by another thread on an engine of its own that sees the same rows. */
+struct engine_premodel {
+	struct section_point point;  /* the operating point, SI */
+	struct section_result r;     /* section_eval_warm's result at it */
+	double dp_exponent;          /* the model's d ln DP / d ln G there (NAN: none) */
+};
+
+/* The replay's second core. `ahead` is an engine of its own (engine_init on
+ * the same config) given exactly the rows e will be given, in order: for
+ * the sections whose bit is set in mask (bit si) it validates the tags as
+ * engine_step does and evaluates the models, out[k] for the k-th set bit.
+ * engine_step_ahead then steps e with those sections' models taken from
+ * out, the rest as engine_step: the same results bit for bit, because each
+ * section's models see the same points in the same order with their own
+ * warm starts, whichever engine holds them. */
+void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
+		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out);
+void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
+		       const enum tag_status *status, uint64_t mask,
+		       const struct engine_premodel *pre);
+
 /* The historian's status text for tag ti, kept with its next TAG_STATUS_BAD
  * sample and copied into the events that sample causes (cut to fit). NULL or
  * "" clears it. Call before engine_step. */

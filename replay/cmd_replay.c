@@ -52,6 +52,15 @@ struct replay {
 	struct rowq q;                    /* reader -> engine, with 2 threads */
 	uint64_t bytes_seen;              /* reader progress as the engine last saw it */
 	int reader_rc;                    /* the reader thread's exit status */
+	/* With 2 threads the reader thread also evaluates the models of the
+	 * sections in ahead_mask, on an engine of its own (engine_premodel),
+	 * for the rows use_row will take: its own copy of use_row's verdicts. */
+	struct engine *ahead;
+	uint64_t ahead_mask;
+	unsigned ahead_count;
+	uint64_t rd_rows_used;
+	int64_t rd_prev_t_ms;
+	const struct engine_premodel *cur_pre; /* this row's, NULL: evaluate here */
 	uint64_t bytes_first;             /* size of a single data file (progress) */
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
@@ -103,8 +112,8 @@ static void replay_usage(FILE *f)
 		   "Several files are one series, taken in the time order of their first\n"
 		   "rows (rows where they overlap are skipped and counted).\n"
 		   "--threads 1 reads, evaluates and writes in one thread (default 2: the\n"
-		   "reader apart, and the results.csv writer in a thread of its own; the\n"
-		   "output is the same byte for byte).\n"
+		   "reader apart, also evaluating some sections ahead, and the results.csv\n"
+		   "writer in a thread of its own; the output is the same byte for byte).\n"
 		   "--no-results skips results.csv (events, summary and report are still\n"
 		   "written; an old results.csv in DIR is removed); --results-every S writes\n"
 		   "one results row per S seconds of data, the last sample of each interval.\n"
@@ -543,7 +552,8 @@ static void set_windows(struct replay *rp)
 static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 		    const enum tag_status *status)
 {
-	engine_step(rp->eng, t_ms, values, status);
+	engine_step_ahead(rp->eng, t_ms, values, status, rp->cur_pre != NULL ? rp->ahead_mask : 0,
+			  rp->cur_pre);
 	const struct section_result *res[FG_SECTIONS_MAX];
 	static struct section_result copy[FG_SECTIONS_MAX];
 	for (unsigned s = 0; s < rp->cfg->section_count; s++) {
@@ -729,16 +739,33 @@ static int next_file(struct replay *rp, unsigned fi)
 
 /* One row through the engine and the writers, unless --from/--to or an
  * overlap of files leaves it out. Returns 0 or EXIT_RUNTIME. */
+enum row_verdict { ROW_USED, ROW_OUTSIDE, ROW_OVERLAP };
+
+/* Whether a row at t_ms is used, given how many were used before and the
+ * last one's time: use_row's rule, which the reader thread applies too. */
+static enum row_verdict row_verdict(const struct replay *rp, int64_t t_ms, uint64_t used,
+				    int64_t prev_t_ms)
+{
+	if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms)
+		return ROW_OUTSIDE;
+	/* Files of one series may overlap: a row not after the last one used
+	 * is out of time order, as within a file. */
+	if (used > 0 && t_ms <= prev_t_ms)
+		return ROW_OVERLAP;
+	return ROW_USED;
+}
+
 static int use_row(struct replay *rp, int64_t t_ms, const double *values,
 		   const enum tag_status *status)
 {
-	if (t_ms < rp->from_t_ms || t_ms > rp->to_t_ms) {
+	enum row_verdict v = row_verdict(rp, t_ms, rp->rows_used, rp->prev_t_ms);
+	/* The reader thread worked out the models of exactly these rows. */
+	assert(rp->ahead_mask == 0 || rp->threads == 1 || (v == ROW_USED) == (rp->cur_pre != NULL));
+	if (v == ROW_OUTSIDE) {
 		rp->rows_outside++;
 		return 0;
 	}
-	/* Files of one series may overlap: a row not after the last one used
-	 * is out of time order, as within a file. */
-	if (rp->rows_used > 0 && t_ms <= rp->prev_t_ms) {
+	if (v == ROW_OVERLAP) {
 		rp->rows_overlap++;
 		return 0;
 	}
@@ -812,6 +839,66 @@ static void publish(struct replay *rp, int end_rc)
 	fill = end_rc == 1 ? rowq_fill_begin(&rp->q) : NULL;
 }
 
+/* What the reader thread worked out ahead for one row (rowq_extra). */
+struct ahead_row {
+	bool used;                        /* use_row will take the row */
+	struct engine_premodel pre[];     /* ahead_count, when used */
+};
+
+static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
+		       const double *values, const enum tag_status *status)
+{
+	x->used = row_verdict(rp, t_ms, rp->rd_rows_used, rp->rd_prev_t_ms) == ROW_USED;
+	if (!x->used)
+		return;
+	rp->rd_rows_used++;
+	rp->rd_prev_t_ms = t_ms;
+	engine_premodel(rp->ahead, t_ms, values, status, rp->ahead_mask, x->pre);
+}
+
+/* The sections whose models the reader thread evaluates: the heaviest
+ * first, each to the thread with less work so far, in rough thousands of
+ * instructions per row (measured with callgrind on the bench and demo
+ * configs: parsing and checking a row about 5 on the reader's side; the
+ * soft sensors, alarms and writers about 2 per section and 2 more on the
+ * engine's). Which thread evaluates a section does not change a result:
+ * only how fast the replay runs. */
+static void choose_ahead(struct replay *rp)
+{
+	const struct fg_config *cfg = rp->cfg;
+	double cost[FG_SECTIONS_MAX];
+	double reader = 5.0, engine = 2.0;
+	for (unsigned i = 0; i < cfg->section_count; i++) {
+		switch (cfg->sections[i].geom.type) {
+		case SECTION_TRAY: cost[i] = 8.0; break;
+		case SECTION_PACKED: cost[i] = 6.0; break;
+		case SECTION_SPRAY: cost[i] = 5.0; break;
+		default: cost[i] = 1.0; break;
+		}
+		engine += 2.0;
+	}
+	rp->ahead_mask = 0;
+	rp->ahead_count = 0;
+	uint64_t done = 0;
+	for (unsigned n = 0; n < cfg->section_count; n++) {
+		unsigned best = 0;
+		double best_cost = -1.0;
+		for (unsigned i = 0; i < cfg->section_count; i++)
+			if (!(done >> i & 1u) && cost[i] > best_cost) {
+				best = i;
+				best_cost = cost[i];
+			}
+		done |= 1ull << best;
+		if (reader < engine) {
+			reader += best_cost;
+			rp->ahead_mask |= 1ull << best;
+			rp->ahead_count++;
+		} else {
+			engine += best_cost;
+		}
+	}
+}
+
 static int row_queued(struct replay *rp, int64_t t_ms, const double *values,
 		      const enum tag_status *status)
 {
@@ -832,6 +919,8 @@ static int row_queued(struct replay *rp, int64_t t_ms, const double *values,
 		assert(ok);
 		(void)ok;
 	}
+	if (rp->ahead_mask != 0)
+		work_ahead(rp, rowq_extra(&rp->q, fill, fill->row_count - 1), t_ms, values, status);
 	return 0;
 }
 
@@ -856,6 +945,11 @@ static int engine_side(struct replay *rp)
 			for (unsigned k = 0; k < row->text_count; k++)
 				engine_tag_status_text(rp->eng, c->text_tag[row->text_first + k],
 						       c->text[row->text_first + k]);
+			rp->cur_pre = NULL;
+			if (rp->ahead_mask != 0) {
+				const struct ahead_row *x = rowq_extra(&rp->q, c, r);
+				rp->cur_pre = x->used ? x->pre : NULL;
+			}
 			if (use_row(rp, row->t_ms, rowq_values(&rp->q, c, r),
 				    rowq_status(&rp->q, c, r)) != 0) {
 				rowq_take_end(&rp->q, c);
@@ -877,19 +971,35 @@ static int run_threaded(struct replay *rp)
 {
 	uint64_t done;
 	histread_progress(&rp->hist, &done, &rp->bytes_first);
-	if (rowq_init(&rp->q, rp->cfg->tag_count) != 0) {
+	choose_ahead(rp);
+	rp->ahead = rp->ahead_mask != 0 ? malloc(sizeof *rp->ahead) : NULL;
+	bool bad = rowq_init(&rp->q, rp->cfg->tag_count) != 0;
+	if (!bad && rp->ahead_mask != 0)
+		bad = rp->ahead == NULL ||
+		      rowq_set_extra(&rp->q, sizeof(struct ahead_row) +
+					     rp->ahead_count * sizeof(struct engine_premodel)) != 0;
+	if (bad) {
+		rowq_fini(&rp->q);
+		free(rp->ahead);
 		fprintf(stderr, "floodgauge replay: out of memory\n");
 		return EXIT_RUNTIME;
 	}
+	if (rp->ahead != NULL)
+		engine_init(rp->ahead, rp->cfg);
+	rp->rd_rows_used = 0;
+	rp->rd_prev_t_ms = 0;
 	pthread_t reader;
 	if (pthread_create(&reader, NULL, reader_main, rp) != 0) {
 		rowq_fini(&rp->q);
+		free(rp->ahead);
 		fprintf(stderr, "floodgauge replay: cannot start the reader thread\n");
 		return EXIT_RUNTIME;
 	}
 	int rc = engine_side(rp);
 	pthread_join(reader, NULL);
 	rowq_fini(&rp->q);
+	free(rp->ahead);
+	rp->ahead = NULL;
 	return rc != 0 ? rc : rp->reader_rc;
 }
 

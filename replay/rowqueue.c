@@ -36,11 +36,31 @@ int rowq_init(struct rowq *q, unsigned tag_count)
 	return 0;
 }
 
+int rowq_set_extra(struct rowq *q, size_t bytes_per_row)
+{
+	assert(q != NULL && q->chunks != NULL);
+	assert(q->extra_size == 0);
+	if (bytes_per_row == 0)
+		return 0;
+	size_t size = (bytes_per_row + 7u) & ~(size_t)7u; /* each row's starts 8-aligned */
+	size_t rows = ROWQ_EXTRA_BYTES / size;
+	if (rows < q->rows_per_chunk)
+		q->rows_per_chunk = rows < 1 ? 1 : (unsigned)rows;
+	q->extra_size = size;
+	for (unsigned i = 0; i < ROWQ_CHUNKS; i++) {
+		q->chunks[i].extra = malloc((size_t)q->rows_per_chunk * size);
+		if (q->chunks[i].extra == NULL)
+			return -ENOMEM;
+	}
+	return 0;
+}
+
 void rowq_fini(struct rowq *q)
 {
 	if (q == NULL || q->chunks == NULL)
 		return;
 	for (unsigned i = 0; i < ROWQ_CHUNKS; i++) {
+		free(q->chunks[i].extra);
 		free(q->chunks[i].values);
 		free(q->chunks[i].status);
 	}

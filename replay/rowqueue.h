@@ -47,6 +47,7 @@ struct rowq_chunk {
 	unsigned text_count;
 	int end_rc;               /* 1: more may follow; 0: end of data; < 0: read error */
 	uint64_t bytes_done;      /* reader progress when the chunk was published */
+	void *extra;              /* rows_per_chunk x extra_size (rowq_set_extra), or NULL */
 	double *values;           /* row_count x tag_count */
 	enum tag_status *status;  /* row_count x tag_count */
 	struct rowq_row rows[ROWQ_ROWS];
@@ -57,6 +58,7 @@ struct rowq_chunk {
 struct rowq {
 	unsigned tag_count;
 	unsigned rows_per_chunk;    /* <= ROWQ_ROWS, see ROWQ_CHUNK_BYTES */
+	size_t extra_size;          /* bytes of rowq_extra per row, 0: none */
 	struct rowq_chunk *chunks;  /* ROWQ_CHUNKS */
 	unsigned head, tail, used;  /* next to fill, next to take, full chunks */
 	bool cancelled;             /* the consumer gave up: the producer stops */
@@ -66,6 +68,13 @@ struct rowq {
 
 /* Allocates the chunks for tag_count tags. Returns 0 or -ENOMEM. */
 int rowq_init(struct rowq *q, unsigned tag_count);
+/* Gives every row bytes_per_row bytes of the producer's own (rowq_extra:
+ * what it worked out ahead for that row), fewer rows per chunk when needed
+ * to keep a chunk's extra within ROWQ_EXTRA_BYTES. Call once, after
+ * rowq_init and before any chunk is taken. Returns 0 or -ENOMEM. */
+#define ROWQ_EXTRA_BYTES (256u * 1024u)
+int rowq_set_extra(struct rowq *q, size_t bytes_per_row);
+
 /* Frees everything; accepts a zeroed q. */
 void rowq_fini(struct rowq *q);
 
@@ -92,6 +101,11 @@ static inline const double *rowq_values(const struct rowq *q, const struct rowq_
 					unsigned r)
 {
 	return c->values + (size_t)r * q->tag_count;
+}
+/* Row r's extra bytes (rowq_set_extra), aligned for doubles. */
+static inline void *rowq_extra(const struct rowq *q, const struct rowq_chunk *c, unsigned r)
+{
+	return (char *)c->extra + (size_t)r * q->extra_size;
 }
 static inline const enum tag_status *rowq_status(const struct rowq *q,
 						 const struct rowq_chunk *c, unsigned r)

@@ -135,6 +135,56 @@ static void test_same_inputs_give_the_same_outputs(void **state)
 	free(b);
 }
 
+/* The replay's second thread: one engine works out the models of the
+ * sections in a mask ahead (engine_premodel), another steps with them
+ * (engine_step_ahead); against a third that does everything itself, every
+ * result, soft-sensor state and event must be the same bit for bit, for
+ * every mask, through a load swing, a dead transmitter and its recovery. */
+static void test_models_worked_out_ahead_give_the_same_results(void **state)
+{
+	struct rig *a = *state;
+	struct rig *b = __real_calloc(1, sizeof(*b));
+	struct engine *ahead = __real_calloc(1, sizeof(*ahead));
+	struct engine_premodel *pre = __real_calloc(FG_SECTIONS_MAX, sizeof(*pre));
+	assert_non_null(b);
+	assert_non_null(ahead);
+	assert_non_null(pre);
+	memcpy(&b->cfg, &a->cfg, sizeof(a->cfg));
+	unsigned n = a->cfg.section_count;
+	for (uint64_t mask = 1; mask < (1ull << n); mask += 3) {
+		engine_init(&a->eng, &a->cfg);
+		engine_init(&b->eng, &b->cfg);
+		engine_init(ahead, &b->cfg);
+		for (unsigned i = 0; i < a->cfg.tag_count; i++) {
+			a->values[i] = b->values[i] = a->cfg.tags[i].nominal;
+			a->status[i] = b->status[i] = TAG_STATUS_FRESH;
+		}
+		int gas = tag(a, "C401_FI_GAS"), dp = tag(a, "C402_PDI");
+		for (int i = 0; i < 1500; i++) {
+			double wobble = 1.0 + 0.2 * sin(i / 60.0);
+			a->values[gas] = b->values[gas] = a->cfg.tags[gas].nominal * wobble;
+			a->status[dp] = b->status[dp] =
+				i > 600 && i < 700 ? TAG_STATUS_BAD : TAG_STATUS_FRESH;
+			engine_step(&a->eng, i * 1000, a->values, a->status);
+			engine_premodel(ahead, i * 1000, b->values, b->status, mask, pre);
+			engine_step_ahead(&b->eng, i * 1000, b->values, b->status, mask, pre);
+			for (unsigned s = 0; s < n; s++) {
+				assert_memory_equal(&a->eng.sec[s].r, &b->eng.sec[s].r,
+						    sizeof(struct section_result));
+				assert_memory_equal(&a->eng.sec[s].ss, &b->eng.sec[s].ss,
+						    sizeof(struct softsense));
+			}
+			assert_int_equal(engine_event_count(&a->eng), engine_event_count(&b->eng));
+			for (unsigned k = 0; k < engine_event_count(&a->eng); k++)
+				assert_memory_equal(&a->eng.events[k], &b->eng.events[k],
+						    sizeof(struct alarm_event));
+		}
+	}
+	free(pre);
+	free(ahead);
+	free(b);
+}
+
 static void test_dead_transmitter_raises_diagnostic_not_process_alarm(void **state)
 {
 	struct rig *r = *state;
@@ -395,6 +445,8 @@ int main(void)
 		cmocka_unit_test_setup_teardown(test_step_does_not_allocate, rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_same_inputs_give_the_same_outputs, rig_setup,
 						rig_teardown),
+		cmocka_unit_test_setup_teardown(test_models_worked_out_ahead_give_the_same_results,
+						rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_dead_transmitter_raises_diagnostic_not_process_alarm,
 						rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_idle_section_suppresses_process_alarms, rig_setup,

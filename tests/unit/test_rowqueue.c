@@ -123,12 +123,40 @@ static void test_chunk_rows_shrink_for_many_tags(void **state)
 	rowq_fini(&q);
 }
 
+static void test_extra_bytes_per_row(void **state)
+{
+	(void)state;
+	/* A small extra keeps the rows per chunk; each row's area is 8-aligned
+	 * and its own. */
+	assert_int_equal(rowq_init(&q, 7), 0);
+	assert_int_equal(rowq_set_extra(&q, 13), 0);
+	assert_int_equal(q.extra_size, 16);
+	assert_int_equal(q.rows_per_chunk, ROWQ_ROWS);
+	struct rowq_chunk *c = &q.chunks[0];
+	for (unsigned r = 0; r < q.rows_per_chunk; r++) {
+		unsigned char *x = rowq_extra(&q, c, r);
+		assert_int_equal((uintptr_t)x % 8, 0);
+		memset(x, (int)(r & 0xff), 13);
+	}
+	for (unsigned r = 0; r < q.rows_per_chunk; r++)
+		assert_int_equal(((unsigned char *)rowq_extra(&q, c, r))[12], r & 0xff);
+	rowq_fini(&q);
+	/* A large one takes fewer rows per chunk, within ROWQ_EXTRA_BYTES. */
+	assert_int_equal(rowq_init(&q, 7), 0);
+	assert_int_equal(rowq_set_extra(&q, 5000), 0);
+	assert_true(q.rows_per_chunk < ROWQ_ROWS);
+	assert_true((size_t)q.rows_per_chunk * q.extra_size <= ROWQ_EXTRA_BYTES);
+	assert_true(q.rows_per_chunk >= 1);
+	rowq_fini(&q);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_rows_arrive_in_order_with_their_values_and_texts),
 		cmocka_unit_test(test_a_full_queue_holds_the_producer_until_cancelled),
 		cmocka_unit_test(test_chunk_rows_shrink_for_many_tags),
+		cmocka_unit_test(test_extra_bytes_per_row),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
