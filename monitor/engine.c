@@ -292,7 +292,24 @@ void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
 	assert(values != NULL);
 	assert(status != NULL);
 	assert(out != NULL || mask == 0);
-	validate_tags(ahead, t_ms, values, status);
+	/* Only the tags these sections read: each tag's checks depend on its
+	 * own samples alone, and the other engine checks them all. */
+	const struct fg_config *cfg = ahead->cfg;
+	bool used[FG_TAGS_MAX] = {false};
+	for (unsigned i = 0; i < cfg->section_count; i++)
+		if (mask >> i & 1u)
+			for (int k = 0; k < SIGNAL_COUNT; k++)
+				if (cfg->sections[i].signal[k] >= 0)
+					used[cfg->sections[i].signal[k]] = true;
+	for (unsigned i = 0; i < cfg->tag_count; i++) {
+		if (!used[i])
+			continue;
+		const struct tag_cfg *t = &cfg->tags[i];
+		if (t->source_index < 0)
+			validate_step(&ahead->tags[i], t_ms, t->fixed_value, TAG_STATUS_FRESH);
+		else
+			validate_step(&ahead->tags[i], t_ms, values[i], status[i]);
+	}
 	unsigned k = 0;
 	for (unsigned i = 0; i < ahead->cfg->section_count; i++)
 		if (mask >> i & 1u) {
