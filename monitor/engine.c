@@ -168,45 +168,34 @@ static void learn_circulation(struct engine *e, unsigned si, int64_t t_ms)
 		r->v[RF_CIRCULATION_PCT] = 100.0 * u / es->circ_normal_ms;
 }
 
-/* The models of section si at the tags' present state: the point, the
- * result and the DP exponent, warm-started from es->warm. */
-static enum fg_quality eval_models(struct engine *e, unsigned si, struct section_point *p,
-				   struct section_result *r, double *exponent)
+/* Section si at the tags' present state: gather, models (warm-started from
+ * es->warm), soft sensors and the loop's learned circulation. */
+static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 {
 	const struct section_cfg *s = &e->cfg->sections[si];
 	struct engine_section *es = &e->sec[si];
 	double sig[SIGNAL_COUNT];
 	enum fg_quality q = gather(e, si, sig);
-	point_from_si(s, e->cfg, sig, p);
-	section_eval_warm(&s->geom, &s->props, p, r, &es->warm);
-	*exponent = dp_exponent(s, es, p, r->v[RF_DP_MODEL_PA]);
-	return q;
-}
-
-/* pre: the models worked out ahead (engine_premodel), NULL to evaluate here. */
-static void eval_section(struct engine *e, unsigned si, int64_t t_ms,
-			 const struct engine_premodel *pre)
-{
-	const struct section_cfg *s = &e->cfg->sections[si];
-	struct engine_section *es = &e->sec[si];
-	double exponent;
-	enum fg_quality q;
-	if (pre != NULL) {
-		double sig[SIGNAL_COUNT];
-		q = gather(e, si, sig); /* the quality and the diagnostic, from this engine's tags */
-		es->point = pre->point;
-		es->r = pre->r;
-		exponent = pre->dp_exponent;
-	} else {
-		q = eval_models(e, si, &es->point, &es->r, &exponent);
-	}
+	point_from_si(s, e->cfg, sig, &es->point);
+	section_eval_warm(&s->geom, &s->props, &es->point, &es->r, &es->warm);
 	fg_quality_raise(&es->r.quality, q);
 	/* Without a good gas flow nobody knows whether the section runs: keep
 	 * the last verdict rather than call a dead transmitter "shut down". */
 	if (isfinite(es->point.gas_kgs))
 		es->in_service = es->point.gas_kgs >= s->in_service_gas_kgs;
-	soft_sensors(e, si, t_ms, exponent);
+	soft_sensors(e, si, t_ms,
+		     dp_exponent(s, es, &es->point, es->r.v[RF_DP_MODEL_PA]));
 	learn_circulation(e, si, t_ms);
+}
+
+/* What eval_section leaves for the alarms and the writers, evaluated ahead. */
+static void take_ahead(struct engine_section *es, const struct engine_premodel *pre)
+{
+	es->point = pre->point;
+	es->r = pre->r;
+	es->in_service = pre->in_service;
+	es->diag_reason = pre->diag_reason;
+	es->diag_tag = pre->diag_tag;
 }
 
 static void push_event(struct engine *e, const struct alarm_event *ev)
@@ -273,7 +262,10 @@ void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 	validate_tags(e, t_ms, values, status);
 	unsigned k = 0;
 	for (unsigned i = 0; i < cfg->section_count; i++)
-		eval_section(e, i, t_ms, (mask >> i & 1u) ? &pre[k++] : NULL);
+		if (mask >> i & 1u)
+			take_ahead(&e->sec[i], &pre[k++]);
+		else
+			eval_section(e, i, t_ms);
 	eval_alarms(e, t_ms);
 	e->t_ms = t_ms;
 	e->step_count++;
@@ -314,7 +306,13 @@ void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
 	for (unsigned i = 0; i < ahead->cfg->section_count; i++)
 		if (mask >> i & 1u) {
 			struct engine_premodel *o = &out[k++];
-			eval_models(ahead, i, &o->point, &o->r, &o->dp_exponent);
+			const struct engine_section *es = &ahead->sec[i];
+			eval_section(ahead, i, t_ms);
+			o->point = es->point;
+			o->r = es->r;
+			o->in_service = es->in_service;
+			o->diag_reason = es->diag_reason;
+			o->diag_tag = es->diag_tag;
 		}
 	ahead->t_ms = t_ms;
 	ahead->step_count++;

@@ -71,22 +71,27 @@ int engine_init(struct engine *e, const struct fg_config *cfg);
 void engine_step(struct engine *e, int64_t t_ms, const double *values,
 		 const enum tag_status *status);
 
-/* The models of one section at one row, worked out ahead (engine_premodel)
- * by another thread on an engine of its own that sees the same rows. */
+/* One section at one row, evaluated ahead (engine_premodel) by another
+ * thread on an engine of its own that sees the same rows: what the alarms
+ * and the writers read of it afterwards. */
 struct engine_premodel {
 	struct section_point point;  /* the operating point, SI */
-	struct section_result r;     /* section_eval_warm's result at it */
-	double dp_exponent;          /* the model's d ln DP / d ln G there (NAN: none) */
+	struct section_result r;     /* the result: models, soft sensors, fused index */
+	bool in_service;
+	const char *diag_reason;     /* as engine_section's */
+	int diag_tag;
 };
 
 /* The replay's second core. `ahead` is an engine of its own (engine_init on
  * the same config) given exactly the rows e will be given, in order: for
- * the sections whose bit is set in mask (bit si) it validates the tags as
- * engine_step does and evaluates the models, out[k] for the k-th set bit.
- * engine_step_ahead then steps e with those sections' models taken from
- * out, the rest as engine_step: the same results bit for bit, because each
- * section's models see the same points in the same order with their own
- * warm starts, whichever engine holds them. */
+ * the sections whose bit is set in mask (bit si) it checks their tags as
+ * engine_step does and evaluates them whole (models, soft sensors, the
+ * loop's learned circulation), out[k] for the k-th set bit.
+ * engine_step_ahead then steps e with those sections taken from out (their
+ * state stays with `ahead`), the rest and the alarms as engine_step: the
+ * same results and events bit for bit, because a section depends only on
+ * its own tags and its own state, which sees the same rows in the same
+ * order whichever engine holds it. */
 void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
 		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out);
 void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,

@@ -52,8 +52,8 @@ struct replay {
 	struct rowq q;                    /* reader -> engine, with 2 threads */
 	uint64_t bytes_seen;              /* reader progress as the engine last saw it */
 	int reader_rc;                    /* the reader thread's exit status */
-	/* With 2 threads the reader thread also evaluates the models of the
-	 * sections in ahead_mask, on an engine of its own (engine_premodel),
+	/* With 2 threads the reader thread also evaluates the sections in
+	 * ahead_mask, on an engine of its own (engine_premodel),
 	 * for the rows use_row will take: its own copy of use_row's verdicts. */
 	struct engine *ahead;
 	uint64_t ahead_mask;
@@ -856,26 +856,29 @@ static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
 	engine_premodel(rp->ahead, t_ms, values, status, rp->ahead_mask, x->pre);
 }
 
-/* The sections whose models the reader thread evaluates: the heaviest
- * first, each to the thread with less work so far, in rough thousands of
- * instructions per row (measured with callgrind on the bench and demo
- * configs: parsing and checking a row about 5 on the reader's side; the
- * soft sensors, alarms and writers about 2 per section and 2 more on the
- * engine's). Which thread evaluates a section does not change a result:
- * only how fast the replay runs. */
+/* The sections the reader thread evaluates: the heaviest first, each to
+ * the thread with less work so far, in rough thousands of instructions per
+ * row (callgrind on the bench and demo configs): parsing a row and checking
+ * its tags about 4 on the reader's side; checking every tag, the alarms
+ * and the writers about 5 on the engine's, and 2 a section when every
+ * row's results are written; a section with its soft sensors
+ * 10 (tray), 8 (packed), 6 (spray), 2 (the others). Which thread evaluates
+ * a section changes no result, only how fast the replay runs. */
 static void choose_ahead(struct replay *rp)
 {
 	const struct fg_config *cfg = rp->cfg;
 	double cost[FG_SECTIONS_MAX];
-	double reader = 5.0, engine = 2.0;
+	double reader = 4.0, engine = 5.0;
 	for (unsigned i = 0; i < cfg->section_count; i++) {
 		switch (cfg->sections[i].geom.type) {
-		case SECTION_TRAY: cost[i] = 8.0; break;
-		case SECTION_PACKED: cost[i] = 6.0; break;
-		case SECTION_SPRAY: cost[i] = 5.0; break;
-		default: cost[i] = 1.0; break;
+		case SECTION_TRAY: cost[i] = 10.0; break;
+		case SECTION_PACKED: cost[i] = 8.0; break;
+		case SECTION_SPRAY: cost[i] = 6.0; break;
+		default: cost[i] = 2.0; break;
 		}
-		engine += 2.0;
+		/* every row's results, formatted on the engine's side: about 2 a section */
+		if (!rp->no_results && rp->results_every_ms == 0)
+			engine += 2.0;
 	}
 	rp->ahead_mask = 0;
 	rp->ahead_count = 0;
