@@ -126,28 +126,60 @@ static double slope_step(struct softsense *s, double f, double dp)
 	return sqrt(var) >= SOFTSENSE_SLOPE_MIN_STD ? s->theta[1] : NAN;
 }
 
-/* ratio: DP over its learned relation (or the DP itself without a model). */
-static double noise_step(struct softsense *s, double ratio, bool learn)
+/* The coefficient of variation of the last SOFTSENSE_NOISE_WINDOW ratios
+ * (softsense.h). */
+double softsense_window_cv(struct softsense *s, double ratio)
 {
+	assert(s != NULL);
+	const unsigned n = SOFTSENSE_NOISE_WINDOW;
 	if (!isfinite(ratio)) {
 		s->ring_count = 0; /* a gap restarts the window */
 		return NAN;
 	}
+	if (s->ring_count == 0) {
+		s->noise_mean = 0.0;
+		s->noise_m2 = 0.0;
+	}
+	if (s->ring_count < n) {
+		/* Welford's update while the window fills */
+		double d = ratio - s->noise_mean;
+		s->noise_mean += d / (s->ring_count + 1);
+		s->noise_m2 += d * (ratio - s->noise_mean);
+	} else {
+		/* the sliding form: the oldest value leaves as the new one comes */
+		double old = s->ring[s->ring_pos];
+		double mean0 = s->noise_mean;
+		s->noise_mean += (ratio - old) / n;
+		s->noise_m2 += (ratio - old) * (ratio - s->noise_mean + old - mean0);
+	}
 	s->ring[s->ring_pos] = ratio;
-	s->ring_pos = (s->ring_pos + 1) % SOFTSENSE_NOISE_WINDOW;
-	if (s->ring_count < SOFTSENSE_NOISE_WINDOW)
+	s->ring_pos = (s->ring_pos + 1) % n;
+	if (s->ring_count < n)
 		s->ring_count++;
-	if (s->ring_count < SOFTSENSE_NOISE_WINDOW)
+	if (s->ring_count < n)
 		return NAN;
-	double sum = 0.0, sq = 0.0;
-	for (unsigned i = 0; i < SOFTSENSE_NOISE_WINDOW; i++)
-		sum += s->ring[i];
-	double mean = sum / SOFTSENSE_NOISE_WINDOW;
-	for (unsigned i = 0; i < SOFTSENSE_NOISE_WINDOW; i++)
-		sq += (s->ring[i] - mean) * (s->ring[i] - mean);
-	if (!(mean > 0.0))
+	if (s->ring_pos == 0) {
+		/* Once a window, mean and squares afresh by two passes: what the
+		 * running update gains and loses cannot build up rounding. */
+		double sum = 0.0, sq = 0.0;
+		for (unsigned i = 0; i < n; i++)
+			sum += s->ring[i];
+		s->noise_mean = sum / n;
+		for (unsigned i = 0; i < n; i++)
+			sq += (s->ring[i] - s->noise_mean) * (s->ring[i] - s->noise_mean);
+		s->noise_m2 = sq;
+	}
+	if (!(s->noise_mean > 0.0))
 		return NAN;
-	double cv = sqrt(sq / (SOFTSENSE_NOISE_WINDOW - 1)) / mean;
+	return sqrt(fmax(0.0, s->noise_m2) / (n - 1)) / s->noise_mean;
+}
+
+/* ratio: DP over its learned relation (or the DP itself without a model). */
+static double noise_step(struct softsense *s, double ratio, bool learn)
+{
+	double cv = softsense_window_cv(s, ratio);
+	if (isnan(cv))
+		return NAN;
 	if (learn) {
 		if (isnan(s->cv_base))
 			s->cv_base = cv;

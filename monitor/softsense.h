@@ -129,6 +129,9 @@ struct softsense {
 	/* DP noise */
 	double ring[SOFTSENSE_NOISE_WINDOW];
 	unsigned ring_count, ring_pos;
+	/* the window's mean and sum of squared deviations, kept up as samples
+	 * come and go (Welford's update) and worked out afresh once a window */
+	double noise_mean, noise_m2;
 	double cv_base;                /* baseline coefficient of variation, NAN until learned */
 	/* inventory */
 	double inventory_m3;
@@ -160,6 +163,13 @@ struct softsense_input {
 					* (nothing bad, frozen or saturated) and in service */
 	bool dp_saturated;             /* the DP reads "at least" its value */
 };
+
+/* Takes ratio into the DP-noise window and returns the coefficient of
+ * variation (sample standard deviation over mean) of its last
+ * SOFTSENSE_NOISE_WINDOW values, NAN until the window is full or when the
+ * mean is not positive; a non-finite ratio empties the window. Kept with
+ * running sums, worked out afresh once a window; softsense_step calls it. */
+double softsense_window_cv(struct softsense *s, double ratio);
 
 /* Defaults for every field of c. */
 void softsense_cfg_defaults(struct softsense_cfg *c);
