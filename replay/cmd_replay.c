@@ -860,8 +860,8 @@ static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
  * the thread with less work so far, in rough thousands of instructions per
  * row (callgrind on the bench and demo configs): parsing a row and checking
  * its tags about 4 on the reader's side; checking every tag, the alarms
- * and the writers about 5 on the engine's, and 2 a section when every
- * row's results are written; a section with its soft sensors
+ * and the writers about 5 on the engine's (results.csv is formatted in a
+ * thread of its own); a section with its soft sensors
  * 10 (tray), 8 (packed), 6 (spray), 2 (the others). Which thread evaluates
  * a section changes no result, only how fast the replay runs. */
 static void choose_ahead(struct replay *rp)
@@ -876,9 +876,6 @@ static void choose_ahead(struct replay *rp)
 		case SECTION_SPRAY: cost[i] = 6.0; break;
 		default: cost[i] = 2.0; break;
 		}
-		/* every row's results, formatted on the engine's side: about 2 a section */
-		if (!rp->no_results && rp->results_every_ms == 0)
-			engine += 2.0;
 	}
 	rp->ahead_mask = 0;
 	rp->ahead_count = 0;
