@@ -60,6 +60,28 @@ static double ay_resid(double eps, const void *ctx)
 	return eps - rhs * om * om * om * om;
 }
 
+/* Newton on eps - rhs (1 - eps)^4 from *guess (0 when it is not in [0, 1]),
+ * *guess updated on success. The residual rises (slope 1 + 4 rhs (1-eps)^3)
+ * and is concave, so a Newton step never passes the root from below, and
+ * from above lands below it. Converged by solve_newton_done to 1e-15. */
+static bool ay_newton(double rhs, double *guess)
+{
+	double x = isfinite(*guess) && *guess >= 0.0 && *guess <= 1.0 ? *guess : 0.0, prev = NAN;
+	for (int i = 0; i < 2 * SOLVE_NEWTON_STEPS; i++) {
+		double om = 1.0 - x, om3 = om * om * om;
+		double step = (x - rhs * om3 * om) / (1.0 + 4.0 * rhs * om3);
+		x -= step;
+		if (!isfinite(x) || x < 0.0 || x > 1.0)
+			return false;
+		if (solve_newton_done(step, prev, 1e-15)) {
+			*guess = x;
+			return true;
+		}
+		prev = step;
+	}
+	return false;
+}
+
 double bubble_akita_yoshida_frac(double ug_ms, double d_m, double rho_l_kgm3, double mu_l_pas,
 				 double sigma_nm, bool electrolyte, struct fg_extrap *x)
 {
@@ -93,6 +115,8 @@ double bubble_akita_yoshida_frac_warm(double ug_ms, double d_m, double rho_l_kgm
 	double hi = 1.0;
 	double root;
 	/* 1e-15 absolute: the cold 60-step bisection leaves 1e-18. */
+	if (guess != NULL && ay_newton(rhs, guess))
+		return *guess;
 	if (guess != NULL &&
 	    solve_near(ay_resid, &rhs, lo, hi, true, *guess, 1e-6, 1e-15, &root, NULL)) {
 		*guess = root;

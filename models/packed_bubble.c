@@ -16,6 +16,7 @@
 
 #include "bubble.h"
 #include "section.h"
+#include "solve.h"
 
 static bool positive(double v)
 {
@@ -36,16 +37,31 @@ double packed_bubble_tap_dp_pa(double dp_read_pa, double rho_fill_kgm3, double d
 	return dp_read_pa + rho_fill_kgm3 * BUBBLE_G_MS2 * dz_m;
 }
 
+static double holdup_free_frac_w(double ug_ms, double phi, double d_m, double rho_l_kgm3,
+				 double mu_l_pas, double sigma_nm, bool electrolyte, bool hughmark,
+				 struct fg_extrap *x, double *guess);
+
 double packed_bubble_holdup_free_frac(double ug_ms, double phi, double d_m, double rho_l_kgm3,
 				      double mu_l_pas, double sigma_nm, bool electrolyte,
 				      bool hughmark, struct fg_extrap *x)
+{
+	return holdup_free_frac_w(ug_ms, phi, d_m, rho_l_kgm3, mu_l_pas, sigma_nm, electrolyte,
+				  hughmark, x, NULL);
+}
+
+/* packed_bubble_holdup_free_frac with the Akita-Yoshida solve warm-started
+ * from *guess (updated; NULL: cold), as bubble columns do. */
+static double holdup_free_frac_w(double ug_ms, double phi, double d_m, double rho_l_kgm3,
+				 double mu_l_pas, double sigma_nm, bool electrolyte, bool hughmark,
+				 struct fg_extrap *x, double *guess)
 {
 	if (!voidage_ok(phi) || !isfinite(ug_ms) || ug_ms < 0.0)
 		return NAN;
 	double ui = ug_ms / phi;
 	if (hughmark)
 		return bubble_hughmark_frac(ui, d_m, rho_l_kgm3, sigma_nm, x);
-	return bubble_akita_yoshida_frac(ui, d_m, rho_l_kgm3, mu_l_pas, sigma_nm, electrolyte, x);
+	return bubble_akita_yoshida_frac_warm(ui, d_m, rho_l_kgm3, mu_l_pas, sigma_nm,
+					      electrolyte, x, guess);
 }
 
 static double bed_top(double bed_m)
@@ -91,6 +107,13 @@ static double tap_free_frac(const struct section_geom *g, const struct fluid_sta
 void packed_bubble_eval(const struct section_geom *g, const struct fluid_state *f,
 			const struct section_point *p, struct section_result *r)
 {
+	packed_bubble_eval_warm(g, f, p, r, NULL);
+}
+
+void packed_bubble_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+			     const struct section_point *p, struct section_result *r,
+			     struct solve_warm *w)
+{
 	assert(g != NULL);
 	assert(f != NULL);
 	assert(p != NULL);
@@ -103,9 +126,10 @@ void packed_bubble_eval(const struct section_geom *g, const struct fluid_state *
 		fg_quality_raise(&r->quality, FG_QUALITY_BAD);
 		return;
 	}
-	double eps_corr = packed_bubble_holdup_free_frac(
+	double eps_corr = holdup_free_frac_w(
 		ug, phi, g->diameter_m, f->rho_l_kgm3, f->mu_l_pas, f->sigma_nm, b->electrolyte,
-		b->holdup_method == BUBBLE_HOLDUP_HUGHMARK, &r->extrap);
+		b->holdup_method == BUBBLE_HOLDUP_HUGHMARK, &r->extrap,
+		w != NULL ? &w->bubble_ay_eps : NULL);
 	r->v[RF_GAS_HOLDUP_FRAC] = eps_corr;
 	bool tap_ok = false;
 	double eps_tap = tap_free_frac(g, f, p, &tap_ok, &r->extrap);

@@ -226,7 +226,7 @@ void section_eval_warm(const struct section_geom *g, const struct section_props 
 	case SECTION_PACKED: packed_eval_warm(g, &f, &q, r, w); break;
 	case SECTION_SPRAY: spray_eval_warm(g, &f, &q, r, w); break;
 	case SECTION_BUBBLE: bubble_eval_warm(g, &f, &q, r, w); break;
-	case SECTION_PACKED_BUBBLE: packed_bubble_eval(g, &f, &q, r); break;
+	case SECTION_PACKED_BUBBLE: packed_bubble_eval_warm(g, &f, &q, r, w); break;
 	case SECTION_STIRRED: stirred_eval(g, &f, &q, r); break;
 	case SECTION_LOOP: loop_eval(g, &f, &q, r); break;
 	case SECTION_TYPE_COUNT: assert(0); break;

@@ -271,6 +271,9 @@ void spray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 void bubble_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 		      const struct section_point *p, struct section_result *r,
 		      struct solve_warm *w);
+void packed_bubble_eval_warm(const struct section_geom *g, const struct fluid_state *f,
+			     const struct section_point *p, struct section_result *r,
+			     struct solve_warm *w);
 
 /* The model DP alone of a tray or a packed section (section_dp_model_pa). */
 double tray_dp_model_pa(const struct section_geom *g, const struct fluid_state *f,

@@ -135,7 +135,7 @@ struct solve_warm {
 	double tray_flood_slope;   /* d (jet % - 100) / d ln G there */
 	double spray_vt_ln_re[2];  /* droplet terminal velocity: ln Re, and the slope there */
 	double spray_crit_ln_re[2];/* critical (carried-over) droplet: ln Re, slope */
-	double bubble_ay_eps;      /* Akita-Yoshida gas holdup, - */
+	double bubble_ay_eps;      /* Akita-Yoshida gas holdup, - (bubble and packed bubble) */
 	double stich_wet_ln_t;     /* Stichlmair flooding condition at the operating gas rate */
 	/* Values that depend only on their keys, kept between samples (each
 	 * file says what it keeps). */
