@@ -54,8 +54,19 @@ static const uint64_t POW5[28] = {
 };
 
 #define FAST_K_MAX 32 /* M 5^32 < 2^128 */
+#define FAST_E_MIN (16 - FAST_K_MAX)
+#define FAST_E_MAX 16
 
-static u128 pow5_128(int k)
+/* The doubles nearest 10^FAST_E_MIN..10^(FAST_E_MAX + 1), as the compiler
+ * reads the literals (correctly rounded). */
+static const double POW10_DBL[FAST_E_MAX - FAST_E_MIN + 2] = {
+	1e-16, 1e-15, 1e-14, 1e-13, 1e-12, 1e-11, 1e-10, 1e-9, 1e-8, 1e-7, 1e-6, 1e-5,
+	1e-4,  1e-3,  1e-2,  1e-1,  1e0,   1e1,   1e2,   1e3,  1e4,  1e5,  1e6,  1e7,
+	1e8,   1e9,   1e10,  1e11,  1e12,  1e13,  1e14,  1e15, 1e16, 1e17,
+};
+_Static_assert(sizeof POW10_DBL / sizeof POW10_DBL[0] == 34, "10^-16..10^17");
+
+static inline u128 pow5_128(int k)
 {
 	assert(k >= 0);
 	assert(k <= FAST_K_MAX);
@@ -79,7 +90,7 @@ static const char DIGIT_PAIRS[201] = "000102030405060708091011121314151617181920
  * ranges: all 10^8 values were checked against printf once, test_numfmt
  * checks those below 10^6 and a sample above).
  */
-static uint64_t digits8(uint32_t x)
+static inline uint64_t digits8(uint32_t x)
 {
 	assert(x < 100000000u);
 	uint64_t merged = (uint64_t)(x / 10000u) | ((uint64_t)(x % 10000u) << 32);
@@ -93,6 +104,12 @@ static uint64_t digits8(uint32_t x)
 }
 
 #define ASCII_ZEROS8 0x3030303030303030u
+
+/* Leading zero bits of x, 64 for 0. */
+static inline int lz64(uint64_t x)
+{
+	return x != 0 ? __builtin_clzll(x) : 64;
+}
 #if !defined(__BYTE_ORDER__) || __BYTE_ORDER__ != __ORDER_LITTLE_ENDIAN__
 #error "numfmt.c stores digit words in little-endian byte order"
 #endif
@@ -114,7 +131,7 @@ static int layout(char *buf, bool neg, uint64_t q, int p, int e)
 {
 	assert(p >= 15);
 	assert(p <= 17);
-	char d[40], t[64];
+	char d[48], t[64];
 	/* The 17 digits of q zero-padded, so the P digits start at d + 17 - P:
 	 * the first, then two words of eight (byte order as in memory on a
 	 * little-endian machine: see digits8). */
@@ -125,12 +142,11 @@ static int layout(char *buf, bool neg, uint64_t q, int p, int e)
 	uint64_t a1 = w1 + ASCII_ZEROS8, a2 = w2 + ASCII_ZEROS8;
 	memcpy(d + 1, &a1, 8);
 	memcpy(d + 9, &a2, 8);
-	memset(d + 17, '0', 16);
+	memset(d + 17, '0', 31);
 	const char *dg = d + 17 - p;
 	/* Trailing zeros: the zero bytes at the top of the words. At least the
 	 * first of the P digits is not zero (q >= 10^(P-1)). */
-	int tz = w2 != 0 ? __builtin_clzll(w2) / 8
-			 : 8 + (w1 != 0 ? __builtin_clzll(w1) / 8 : 8);
+	int tz = lz64(w2) / 8 + (w2 == 0) * (lz64(w1) / 8);
 	int n = p - tz;
 	assert(n >= 1);
 	t[0] = '-';
@@ -148,15 +164,18 @@ static int layout(char *buf, bool neg, uint64_t q, int p, int e)
 			o[len++] = (char)('0' + a / 100);
 		memcpy(o + len, DIGIT_PAIRS + 2 * (a % 100), 2);
 		len += 2;
-	} else if (e >= 0) {
-		memcpy(o, dg, 17);
-		o[e + 1] = '.';
-		memcpy(o + e + 2, dg + e + 1, 16);
-		len = n > e + 1 ? n + 1 : e + 1;
 	} else {
-		memcpy(o, "0.0000", 6);
-		memcpy(o + 1 - e, dg, 17);
-		len = 1 - e + n;
+		/* 0.00ddd as 000ddd with the point after the first digit: the
+		 * digits behind z = max(-e, 0) zeros, the point after ei + 1 */
+		int neg_e = -(e < 0); /* all ones when e < 0 */
+		int z = -e & neg_e, ei = e & ~neg_e;
+		char u[56];
+		memset(u, '0', sizeof u);
+		memcpy(u + z, dg, 40);
+		memcpy(o, u, 17);
+		o[ei + 1] = '.';
+		memcpy(o + ei + 2, u + ei + 1, 24);
+		len = z + n > ei + 1 ? z + n + 1 : ei + 1;
 	}
 	len += (int)(o - t);
 	assert(len < NUMFMT_FULL_SIZE);
@@ -182,10 +201,13 @@ struct scaled {
 	uint64_t t17; /* the 17 digits truncated, 10^16 <= t17 < 10^17 */
 	u128 r;       /* the rest below them, in units of 2^-sh (0 when sh <= 0) */
 	int sh;       /* binary point of N: X = N 2^-sh */
-	u128 p5;      /* 5^k: twice the half-ulp, in the same units as r */
+	u128 p5;      /* 5^k: twice the half-ulp, in units of 2^-sh */
+	int shp;      /* max(sh, 0): the units of r and lim */
+	u128 lim;     /* twice the half-ulp in units of 2^-shp: 5^k 2^max(-sh, 0) */
+	uint64_t f58, lim58; /* r / 2^shp and lim / 2^shp, in units of 2^-58, truncated */
 };
 
-static bool scale(uint64_t m, int e2, int k, struct scaled *x)
+static inline bool scale(uint64_t m, int e2, int k, struct scaled *x)
 {
 	if (k < 0 || k > FAST_K_MAX)
 		return false;
@@ -193,6 +215,8 @@ static bool scale(uint64_t m, int e2, int k, struct scaled *x)
 	int sh = -(e2 + k);
 	x->p5 = pow5_128(k);
 	x->sh = sh;
+	x->shp = sh > 0 ? sh : 0;
+	x->lim = x->p5 << (sh < 0 ? -sh : 0);
 	if (sh > 0) {
 		assert(sh < 128);
 		u128 t = n >> sh;
@@ -205,31 +229,54 @@ static bool scale(uint64_t m, int e2, int k, struct scaled *x)
 		x->t17 = (uint64_t)(n << -sh);
 		x->r = 0;
 	}
+	/* lim < 22.4 units of X, so lim58 < 2^63 */
+	x->f58 = (uint64_t)(x->shp >= 58 ? x->r >> (x->shp - 58) : x->r << (58 - x->shp));
+	x->lim58 = (uint64_t)(x->shp >= 58 ? x->lim >> (x->shp - 58) : x->lim << (58 - x->shp));
 	return true;
 }
 
-/* Does t17 + d (in units of X) read back as the double M 2^E2 of x? */
-static bool reads_back(const struct scaled *x, int64_t d, bool m_odd, bool m_pow2)
+/* Does t17 + d (in units of X) read back as the double M 2^E2 of x?
+ * Exactly, in 128 bits, without branches (the answer is data, not a
+ * pattern a branch predictor learns). */
+static bool reads_back_exact(const struct scaled *x, int64_t d, bool m_odd, bool m_pow2)
 {
-	/* a = |candidate - X| in units of 2^-sh, below: is it under X? */
-	u128 lim = x->p5, a;
-	bool below;
-	if (x->sh > 0) {
-		u128 dd = (u128)(uint64_t)(d < 0 ? -d : d) << x->sh;
-		if (d < 0) {
-			a = dd + x->r;
-			below = true;
-		} else {
-			below = dd < x->r;
-			a = below ? x->r - dd : dd - x->r;
-		}
-	} else {
-		a = (u128)(uint64_t)(d < 0 ? -d : d);
-		below = d < 0;
-		lim <<= -x->sh;
-	}
-	a <<= below && m_pow2 ? 2 : 1; /* the gap below a power of two is narrower */
-	return m_odd ? a < lim : a <= lim;
+	int64_t sign = d >> 63; /* -1 or 0; >> of a negative is arithmetic in GCC and clang */
+	bool neg = sign != 0;
+	/* a = |candidate - X| in units of 2^-shp; below: is it under X? */
+	u128 dd = (u128)(uint64_t)((d ^ sign) - sign) << x->shp;
+	bool lt = dd < x->r;
+	/* selections by masks, which compilers keep free of branches */
+	u128 lt_mask = -(u128)lt, neg_mask = -(u128)neg;
+	u128 a_pos = ((x->r - dd) & lt_mask) | ((dd - x->r) & ~lt_mask);
+	u128 a = ((dd + x->r) & neg_mask) | (a_pos & ~neg_mask);
+	bool below = neg | lt;
+	a <<= 1 + (below & m_pow2); /* the gap below a power of two is narrower */
+	return a < x->lim + !m_odd; /* a <= lim when ties go to v (M even) */
+}
+
+/*
+ * The same question in 64 bits, for the common case: the rest r and twice
+ * the half-ulp (lim) as fixed point with 58 fraction bits, truncated (each
+ * under one unit low), and |D| clamped to 14 (a candidate 13 or more off
+ * never reads back: H < 11.2), so 4 a + 4 < 2^64. The error of a, scaled
+ * by 2 or 4, is under 4 units, so the answer is certain outside a band of
+ * a few units around lim; inside it (ties and their like) the exact test
+ * decides.
+ */
+static inline bool reads_back(const struct scaled *x, int64_t d, bool m_pow2, bool *unsure)
+{
+	int64_t sign = d >> 63; /* -1 or 0; >> of a negative is arithmetic in GCC and clang */
+	uint64_t ad = (uint64_t)((d ^ sign) - sign);
+	ad = ad < 14u ? ad : 14u;
+	uint64_t dd = ad << 58, f = x->f58;
+	bool neg = sign != 0, lt = dd < f;
+	uint64_t neg_mask = -(uint64_t)neg, lt_mask = -(uint64_t)lt; /* no branches */
+	uint64_t a_pos = ((f - dd) & lt_mask) | ((dd - f) & ~lt_mask);
+	uint64_t a = ((dd + f) & neg_mask) | (a_pos & ~neg_mask);
+	a <<= 1 + ((neg | lt) & m_pow2); /* the gap below a power of two is narrower */
+	bool yes = a + 4u < x->lim58, no = a > x->lim58 + 5u;
+	*unsure = !(yes | no);
+	return yes;
 }
 
 static int full_fast(double v, char *buf)
@@ -243,8 +290,14 @@ static int full_fast(double v, char *buf)
 	int e2 = be - 1075; /* |v| = m 2^e2, 2^52 <= m < 2^53 */
 	int lg = e2 + 52;   /* 2^lg <= |v| < 2^(lg+1) */
 	assert(lg > -1650 && lg < 1650);
-	/* floor(lg log10 2); >> of a negative int is arithmetic in GCC and clang */
+	/* floor(lg log10 2); >> of a negative int is arithmetic in GCC and clang.
+	 * e is that or one more: one comparison with the double nearest the
+	 * next power of ten says which, without a branch (when |v| is that
+	 * very double, e can still be one off: t17 shows it, below). */
 	int e = (int)(((int64_t)lg * 78913) >> 18);
+	if (e < FAST_E_MIN - 1 || e > FAST_E_MAX)
+		return -1;
+	e += fabs(v) >= POW10_DBL[e + 1 - FAST_E_MIN];
 	struct scaled x;
 	if (!scale(m, e2, 16 - e, &x))
 		return -1;
@@ -256,32 +309,32 @@ static int full_fast(double v, char *buf)
 	assert(x.t17 >= POW10[16]);
 	assert(x.t17 < POW10[17]);
 	bool m_odd = (m & 1u) != 0, m_pow2 = m == (uint64_t)1 << 52;
-	/* %.15g and %.16g: t17 rounded at 100 and at 10 (constant divisors,
-	 * so no division instruction), half to even on the exact value. */
+	/* %.15g, %.16g and %.17g: t17 rounded at 100, at 10 and at 1
+	 * (constant divisors, so no division instruction), half to even on
+	 * the exact value; then the shortest that reads back, chosen without
+	 * branches. */
 	bool inexact = x.r != 0;
-	/* floor(H), H = 5^k 2^(-sh-1) the half-ulp in units of X: 0.55 < H < 11.2
-	 * (X < 10^17, M >= 2^52) */
-	uint64_t h_floor = (uint64_t)(x.sh >= 0 ? x.p5 >> (x.sh + 1) : (x.p5 << -x.sh) >> 1);
-	for (int p = 15; p <= 16; p++) {
-		uint64_t div = p == 15 ? 100u : 10u;
-		uint64_t q = p == 15 ? x.t17 / 100u : x.t17 / 10u;
-		uint64_t rest = x.t17 - q * div, half = div / 2;
-		q += rest > half || (rest == half && (inexact || (q & 1u)));
-		int64_t d = (int64_t)(q * div) - (int64_t)x.t17;
-		/* |D - r / 2^sh| is within 1 of |D|: most candidates are decided
-		 * against floor(H) without the 128-bit test. */
-		uint64_t ad = (uint64_t)(d < 0 ? -d : d);
-		if (ad > h_floor + 1)
-			continue;
-		if ((ad + 1 < h_floor && !m_pow2) || reads_back(&x, d, m_odd, m_pow2))
-			return put_digits(buf, v < 0.0, q, p, e);
+	uint64_t q15 = x.t17 / 100u, r15 = x.t17 - q15 * 100u;
+	q15 += (r15 > 50u) | ((r15 == 50u) & (inexact | (q15 & 1u)));
+	uint64_t q16 = x.t17 / 10u, r16 = x.t17 - q16 * 10u;
+	q16 += (r16 > 5u) | ((r16 == 5u) & (inexact | (q16 & 1u)));
+	u128 half = x.sh > 0 ? (u128)1 << (x.sh - 1) : 1; /* r = 0 when sh <= 0 */
+	uint64_t q17 = x.t17 + ((x.r > half) | ((x.r == half) & (x.t17 & 1u)));
+	int64_t d15 = (int64_t)(q15 * 100u) - (int64_t)x.t17;
+	int64_t d16 = (int64_t)(q16 * 10u) - (int64_t)x.t17;
+	bool unsure15, unsure16;
+	bool ok15 = reads_back(&x, d15, m_pow2, &unsure15);
+	bool ok16 = reads_back(&x, d16, m_pow2, &unsure16);
+	if (__builtin_expect(unsure15 | unsure16, 0)) { /* ties and their like */
+		ok15 = reads_back_exact(&x, d15, m_odd, m_pow2);
+		ok16 = reads_back_exact(&x, d16, m_odd, m_pow2);
 	}
-	/* %.17g always reads back */
-	u128 half = x.sh > 0 ? (u128)1 << (x.sh - 1) : 0;
-	uint64_t q = x.t17;
-	q += x.sh > 0 && (x.r > half || (x.r == half && (q & 1u)));
-	return put_digits(buf, v < 0.0, q, 17, e);
-	return -1;
+	/* q15 if it reads back, else q16 if it does, else q17 (which always
+	 * does), by masks */
+	uint64_t m15 = -(uint64_t)ok15, m16 = -(uint64_t)(ok16 & !ok15);
+	uint64_t q = (q15 & m15) | (q16 & m16) | (q17 & ~(m15 | m16));
+	int p = 17 - (ok15 | ok16) - ok15;
+	return put_digits(buf, v < 0.0, q, p, e);
 }
 
 int numfmt_full(double v, char *buf, size_t buf_size)
