@@ -113,8 +113,11 @@ static char *put_word(char *p, const char *s)
 	return p + n;
 }
 
-/* Number c of a row, from the column's cache when it repeats the last one
- * (the same double gives the same text). */
+/* Number c of a row: from the column's cache when it repeats the column's
+ * last number, else from another column's when the row already had this
+ * number (flood_index often equals flood_pct, jet_flood_pct too), else
+ * formatted. The same double gives the same text, so nothing changes but
+ * the time taken. */
 static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 {
 	*p++ = ',';
@@ -123,11 +126,21 @@ static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 	uint64_t bits;
 	memcpy(&bits, &v, sizeof bits);
 	if (bits == w->last_bits[c] && w->last_len[c] > 0) {
-		memcpy(p, w->last_text[c], sizeof w->last_text[c]);
+		memcpy(p, w->last_text[c], NUMFMT_FULL_SIZE);
 		return p + w->last_len[c];
 	}
-	int n = numfmt_full(v, p, NUMFMT_FULL_SIZE);
-	assert(n > 0 && n < NUMFMT_FULL_SIZE);
+	struct results_seen *seen = &w->seen[(bits * 0x9e3779b97f4a7c15u) >> 60];
+	int n;
+	if (seen->row == w->row_no && seen->bits == bits) {
+		memcpy(p, w->last_text[seen->col], NUMFMT_FULL_SIZE);
+		n = w->last_len[seen->col];
+	} else {
+		n = numfmt_full(v, p, NUMFMT_FULL_SIZE);
+		assert(n > 0 && n < NUMFMT_FULL_SIZE);
+		seen->row = w->row_no;
+		seen->bits = bits;
+		seen->col = c;
+	}
 	memcpy(w->last_text[c], p, NUMFMT_FULL_SIZE); /* numfmt_full wrote as much */
 	w->last_bits[c] = bits;
 	w->last_len[c] = (uint8_t)n;
@@ -143,6 +156,7 @@ static void format_chunk(struct results_writer *w, const struct results_chunk *c
 		if (RESULTS_OUT_SIZE - w->out_len < worst)
 			flush_out(w);
 		char *p = w->out + w->out_len;
+		w->row_no++; /* a new row: the numbers seen in the last one are stale */
 		int n = timefmt_format(c->t_ms[r], p, TIMEFMT_BUF_SIZE);
 		assert(n > 0); /* checked by results_writer_row */
 		p += n;

@@ -84,6 +84,13 @@ struct results_writer {
 	uint64_t *last_bits;        /* col_count: the last number of each column... */
 	char (*last_text)[NUMFMT_FULL_SIZE]; /* ...and its text, reused while it repeats */
 	uint8_t *last_len;
+	/* Numbers of the row being formatted, by a hash of their bits: the
+	 * column whose cache holds the text (row_no tells this row's apart). */
+	uint64_t row_no;
+	struct results_seen {
+		uint64_t row, bits;
+		unsigned col;
+	} seen[16];
 };
 
 /* Sets w up for cfg, writing to f (after the header, which the caller

@@ -209,6 +209,25 @@ if m and ramp:
                f"{label}: {name} with one thread equals two threads'")
     rc, so, se = fg("replay", "-c", DEMO, csv, "--out", out8, "--threads", "3")
     ok(rc == 2 and "--threads" in se, "--threads 3 is a usage error", se)
+    # --results-every through the writer thread and without it: the same rows
+    out8e = os.path.join(tmp, "onethread-every")
+    rc, so, se, ev = replay(csv, out8e, "--threads", "1", "--results-every", "60")
+    ok(rc == 0 and open(os.path.join(out8e, "results.csv"), "rb").read()
+       == open(os.path.join(out5e, "results.csv"), "rb").read(),
+       "--results-every 60 with one thread equals the two-thread run's", se)
+    # a results.csv that cannot be written (a full disk): exit 1 naming the
+    # reason, from the writer thread as from one thread
+    for threads in ("1", "2"):
+        out9 = os.path.join(tmp, "full" + threads)
+        os.makedirs(out9, exist_ok=True)
+        target = os.path.join(out9, "results.csv")
+        if os.path.lexists(target):
+            os.remove(target)
+        os.symlink("/dev/full", target)
+        rc, so, se, ev = replay(csv, out9, "--threads", threads)
+        ok(rc == 1 and "No space left on device" in se,
+           f"a full disk under results.csv ends the run with exit 1 (--threads {threads})",
+           (rc, se))
 
     # several files as one series: the flood set cut in three, given out of order
     lines = open(csv).read().splitlines(keepends=True)
@@ -224,6 +243,11 @@ if m and ramp:
         ok(open(os.path.join(out6, name), "rb").read()
            == open(os.path.join(out, name), "rb").read(),
            f"{name} of the three files in any order equals the single file's")
+    out6t = os.path.join(tmp, "series-onethread")
+    rc, so, se, ev = replay(parts[2], out6t, parts[0], parts[1], "--threads", "1")
+    ok(rc == 0 and open(os.path.join(out6t, "results.csv"), "rb").read()
+       == open(os.path.join(out, "results.csv"), "rb").read(),
+       "the three files with one thread write the single file's results.csv", se)
     # --from inside a file starts the engine there, as a file that begins at that
     # row does: the same bytes (the solvers' warm starts begin cold in both)
     t_from = lines[4001].split(",")[0]

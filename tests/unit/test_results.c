@@ -1,7 +1,9 @@
 /*
  * test_results.c - results.csv rows: the replay's writer (chunks, an output
  * block, a thread of its own or not) writes the same bytes as
- * results_write_row, row for row, and reports a failed write.
+ * results_write_row, row for row (numbers repeated down a column and
+ * across a row included: the writer reuses their text), and reports a
+ * failed write.
  */
 #include <setjmp.h>
 #include <stdarg.h>
@@ -73,6 +75,10 @@ static void compare_writers(const char *cfg_path, unsigned rows, bool threaded)
 		for (unsigned s = 0; s < cfg->section_count; s++) {
 			for (int i = 0; i < RF_COUNT; i++)
 				res[s].v[i] = pick_value(res[s].v[i]);
+			for (int k = 0; k < 4; k++) { /* the same number in other columns of the row */
+				unsigned s2 = (unsigned)(next_u64() % cfg->section_count);
+				res[s].v[next_u64() % RF_COUNT] = res[s2].v[next_u64() % RF_COUNT];
+			}
 			res[s].basis = (enum flood_basis)(next_u64() % FLOOD_BASIS_COUNT);
 			res[s].regime = (enum bubble_regime)(next_u64() % BUBBLE_REGIME_COUNT);
 			res[s].quality = (enum fg_quality)(next_u64() % 3u);
