@@ -49,6 +49,7 @@
 #include "commands.h"
 #include "engine.h"
 #include "histread.h"
+#include "offline.h"
 #include "jsonw.h"
 #include "timefmt.h"
 
@@ -482,16 +483,9 @@ int cmd_calibrate(int argc, char **argv)
 	int rc = parse_args(&c, argc, argv, &cfg_path);
 	if (rc != 0)
 		return rc < 0 ? 0 : rc;
-	c.cfg = malloc(sizeof(*c.cfg));
-	c.eng = malloc(sizeof(*c.eng));
-	if (c.cfg == NULL || c.eng == NULL) {
-		rc = EXIT_RUNTIME;
+	rc = offline_setup(cfg_path, &c.cfg, &c.eng);
+	if (rc != 0)
 		goto out;
-	}
-	if (config_load(c.cfg, cfg_path, stderr) != 0) {
-		rc = EXIT_USAGE;
-		goto out;
-	}
 	rc = calibrate_run(&c);
 out:
 	histread_fini(&c.hist);

@@ -29,6 +29,7 @@
 #include "alarmperf.h"
 #include "commands.h"
 #include "histread.h"
+#include "offline.h"
 #include "engine.h"
 #include "numfmt.h"
 #include "opwindow.h"
@@ -1147,16 +1148,9 @@ int cmd_replay(int argc, char **argv)
 	int rc = parse_args(&rp, argc, argv, &cfg_path);
 	if (rc != 0)
 		return rc < 0 ? 0 : rc;
-	rp.cfg = malloc(sizeof(*rp.cfg));
-	rp.eng = malloc(sizeof(*rp.eng));
-	if (rp.cfg == NULL || rp.eng == NULL) {
-		rc = EXIT_RUNTIME;
+	rc = offline_setup(cfg_path, &rp.cfg, &rp.eng);
+	if (rc != 0)
 		goto out_free;
-	}
-	if (config_load(rp.cfg, cfg_path, stderr) != 0) {
-		rc = EXIT_USAGE;
-		goto out_free;
-	}
 	rc = replay_run(&rp);
 out_free:
 	results_writer_finish(&rp.rw); /* after an error: ends its thread */

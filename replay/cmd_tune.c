@@ -33,6 +33,7 @@
 #include "commands.h"
 #include "engine.h"
 #include "histread.h"
+#include "offline.h"
 #include "numfmt.h"
 #include "timefmt.h"
 
@@ -540,16 +541,9 @@ int cmd_tune(int argc, char **argv)
 	int rc = parse_args(&t, argc, argv, &cfg_path);
 	if (rc != 0)
 		return rc < 0 ? 0 : rc;
-	t.cfg = malloc(sizeof(*t.cfg));
-	t.eng = malloc(sizeof(*t.eng));
-	if (t.cfg == NULL || t.eng == NULL) {
-		rc = EXIT_RUNTIME;
+	rc = offline_setup(cfg_path, &t.cfg, &t.eng);
+	if (rc != 0)
 		goto out_free;
-	}
-	if (config_load(t.cfg, cfg_path, stderr) != 0) {
-		rc = EXIT_USAGE;
-		goto out_free;
-	}
 	rc = tune_run(&t);
 out_free:
 	histread_fini(&t.hist);
