@@ -236,17 +236,32 @@ static void eval_alarms(struct engine *e, int64_t t_ms)
 	}
 }
 
+/* A fixed tag ('value =') that has had its first sample and has no frozen
+ * check: every later sample is the same value, which leaves what anything
+ * reads of its state (value, quality, reason) as it is; only its own
+ * timestamps would move. */
+static bool fixed_settled(const struct tag_cfg *t, const struct tag_state *ts)
+{
+	return t->source_index < 0 && ts->seen && !(t->frozen_s > 0.0);
+}
+
+static void validate_tag(struct engine *e, unsigned i, int64_t t_ms, const double *values,
+			 const enum tag_status *status)
+{
+	const struct tag_cfg *t = &e->cfg->tags[i];
+	if (fixed_settled(t, &e->tags[i]))
+		return;
+	if (t->source_index < 0)
+		validate_step(&e->tags[i], t_ms, t->fixed_value, TAG_STATUS_FRESH);
+	else
+		validate_step(&e->tags[i], t_ms, values[i], status[i]);
+}
+
 static void validate_tags(struct engine *e, int64_t t_ms, const double *values,
 			  const enum tag_status *status)
 {
-	const struct fg_config *cfg = e->cfg;
-	for (unsigned i = 0; i < cfg->tag_count; i++) {
-		const struct tag_cfg *t = &cfg->tags[i];
-		if (t->source_index < 0)
-			validate_step(&e->tags[i], t_ms, t->fixed_value, TAG_STATUS_FRESH);
-		else
-			validate_step(&e->tags[i], t_ms, values[i], status[i]);
-	}
+	for (unsigned i = 0; i < e->cfg->tag_count; i++)
+		validate_tag(e, i, t_ms, values, status);
 }
 
 void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
@@ -293,15 +308,9 @@ void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
 			for (int k = 0; k < SIGNAL_COUNT; k++)
 				if (cfg->sections[i].signal[k] >= 0)
 					used[cfg->sections[i].signal[k]] = true;
-	for (unsigned i = 0; i < cfg->tag_count; i++) {
-		if (!used[i])
-			continue;
-		const struct tag_cfg *t = &cfg->tags[i];
-		if (t->source_index < 0)
-			validate_step(&ahead->tags[i], t_ms, t->fixed_value, TAG_STATUS_FRESH);
-		else
-			validate_step(&ahead->tags[i], t_ms, values[i], status[i]);
-	}
+	for (unsigned i = 0; i < cfg->tag_count; i++)
+		if (used[i])
+			validate_tag(ahead, i, t_ms, values, status);
 	unsigned k = 0;
 	for (unsigned i = 0; i < ahead->cfg->section_count; i++)
 		if (mask >> i & 1u) {

@@ -197,6 +197,37 @@ static void test_models_worked_out_ahead_give_the_same_results(void **state)
 	free(b);
 }
 
+/* A fixed tag is checked once: what the engine and alarms read of it after
+ * any number of steps (value, SI value, accepted value, quality, reason)
+ * equals what a tag state given every sample holds. */
+static void test_fixed_tags_are_checked_once_with_the_same_outcome(void **state)
+{
+	struct rig *r = *state;
+	engine_init(&r->eng, &r->cfg);
+	struct tag_state ref[FG_TAGS_MAX];
+	unsigned fixed = 0;
+	for (unsigned i = 0; i < r->cfg.tag_count; i++)
+		validate_init(&ref[i], &r->cfg.tags[i], r->cfg.monitor.period_s);
+	for (int k = 0; k < 3000; k++) {
+		engine_step(&r->eng, k * 1000, r->values, r->status);
+		for (unsigned i = 0; i < r->cfg.tag_count; i++) {
+			const struct tag_cfg *t = &r->cfg.tags[i];
+			if (t->source_index >= 0)
+				continue;
+			validate_step(&ref[i], k * 1000, t->fixed_value, TAG_STATUS_FRESH);
+			const struct tag_state *a = &r->eng.tags[i], *b = &ref[i];
+			assert_memory_equal(&a->value, &b->value, sizeof a->value);
+			assert_memory_equal(&a->value_si, &b->value_si, sizeof a->value_si);
+			assert_memory_equal(&a->accepted, &b->accepted, sizeof a->accepted);
+			assert_int_equal(a->quality, b->quality);
+			assert_ptr_equal(a->reason, b->reason);
+			assert_int_equal(a->saturated, b->saturated);
+			fixed += k == 0;
+		}
+	}
+	assert_int_equal(fixed, 5); /* demo-contactors.ini has five 'value =' tags */
+}
+
 static void test_dead_transmitter_raises_diagnostic_not_process_alarm(void **state)
 {
 	struct rig *r = *state;
@@ -459,6 +490,8 @@ int main(void)
 						rig_teardown),
 		cmocka_unit_test_setup_teardown(test_models_worked_out_ahead_give_the_same_results,
 						rig_setup, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_fixed_tags_are_checked_once_with_the_same_outcome,
+						rig_setup_contactors, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_dead_transmitter_raises_diagnostic_not_process_alarm,
 						rig_setup, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_idle_section_suppresses_process_alarms, rig_setup,
