@@ -197,11 +197,22 @@ void solve_warm_drop_cache(struct solve_warm *w)
 {
 	assert(w != NULL);
 	w->stich.valid = false;
+	w->stich_geo.valid = false;
 	w->kg.valid = false;
 	w->tray_geom.valid = false;
 	w->tray_sigma.valid = false;
 	w->tray_hr.valid = false;
 	w->bs_pow.valid = false;
+}
+
+bool solve_halley_done(double step, double prev_step, double tol)
+{
+	double a = fabs(step), b = fabs(prev_step);
+	if (a <= tol)
+		return true;
+	if (!(a < 1e-4) || !(a < b))
+		return false;
+	return a / (b * b * b) * a * a * a <= 0.1 * tol;
 }
 
 bool solve_memo_hit(struct solve_memo *m, const double *key, unsigned n)

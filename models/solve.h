@@ -65,6 +65,11 @@
  */
 bool solve_newton_done(double step, double prev_step, double tol);
 
+/* The same for Halley's method (e_{k+1} = K e_k^3): converged when the step
+ * is within tol, or below 1e-4, smaller than the last, and K step^3 with
+ * K = |step| / prev_step^3 is below tol / 10. */
+bool solve_halley_done(double step, double prev_step, double tol);
+
 /* f(x, ctx). May return +-INFINITY where the model has no value (beyond a
  * limit); it must be monotone over the bracket. */
 typedef double (*solve_fn)(double x, const void *ctx);
@@ -140,6 +145,7 @@ struct solve_warm {
 	/* Values that depend only on their keys, kept between samples (each
 	 * file says what it keeps). */
 	struct solve_memo stich;   /* Stichlmair solve constants (packed.c) */
+	struct solve_memo stich_geo; /* Stichlmair terms of the packing alone (packed.c) */
 	struct solve_memo kg;      /* Kister-Gill flood DP (packed.c) */
 	struct solve_memo tray_geom; /* tray terms of the geometry alone (tray.c) */
 	struct solve_memo tray_sigma;/* Fair surface-tension factor (tray.c) */

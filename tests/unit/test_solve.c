@@ -150,6 +150,25 @@ static void test_warm_clear_sets_every_memory_cold(void **state)
 	assert_true(isnan(w.bubble_ay_eps));
 }
 
+/* The Newton and Halley stopping rules: a step within the tolerance stops;
+ * otherwise only a small, shrinking step whose estimated remaining error
+ * (K step^2 or K step^3, K from the last two steps) is below tol/10. */
+static void test_newton_and_halley_stopping(void **state)
+{
+	(void)state;
+	assert_true(solve_newton_done(1e-13, NAN, 1e-12));
+	assert_true(solve_newton_done(-1e-13, NAN, 1e-12));
+	assert_false(solve_newton_done(1e-9, NAN, 1e-12));      /* no history */
+	assert_true(solve_newton_done(1e-8, 1e-4, 1e-12));      /* K 1: 1e-16 left */
+	assert_false(solve_newton_done(1e-7, 1e-6, 1e-12));     /* K 1e5: 1e-9 left */
+	assert_false(solve_newton_done(2e-6, 1e-3, 1e-12));     /* not yet below 1e-6 */
+	assert_false(solve_newton_done(1e-8, 1e-8, 1e-12));     /* not shrinking */
+	assert_true(solve_halley_done(1e-6, 1e-2, 1e-12));      /* K 1: 1e-24 left */
+	assert_false(solve_halley_done(1e-5, 2e-5, 1e-12));     /* K 1.25e9: 1e-6 left */
+	assert_false(solve_halley_done(2e-4, 1e-1, 1e-12));     /* not yet below 1e-4 */
+	assert_true(solve_halley_done(5e-13, NAN, 1e-12));
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -162,6 +181,7 @@ int main(void)
 		cmocka_unit_test(test_secant_along_the_last_slope_converges_and_keeps_the_slope),
 		cmocka_unit_test(test_secant_gives_up_outside_the_range_or_without_a_guess),
 		cmocka_unit_test(test_warm_clear_sets_every_memory_cold),
+		cmocka_unit_test(test_newton_and_halley_stopping),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
