@@ -1006,22 +1006,6 @@ static const char *parse_sample(struct csvread *r, const char *line, size_t len,
 	smp->slot = -1;
 	smp->text = false;
 	while (!last) {
-		/* A bound number column holding a plain decimal right up to the
-		 * delimiter (the usual cell) is read in the same pass that finds
-		 * the delimiter; anything else is scanned as a field first. */
-		if (c < r->column_count && c != r->time_col && r->slot_of_column[c] >= 0) {
-			size_t used;
-			double v;
-			if (number_plain(line + p, len - p, alt_mark, &v, &used) &&
-			    (p + used == len || line[p + used] == r->delim)) {
-				r->row[r->slot_of_column[c]] = v;
-				p += used;
-				last = p == len;
-				p += !last; /* past the delimiter */
-				c++;
-				continue;
-			}
-		}
 		struct field f;
 		const char *why = scan_field(line, len, &p, r->delim, &f, &last);
 		if (why != NULL)
