@@ -300,19 +300,23 @@ void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
 	assert(status != NULL);
 	assert(out != NULL || mask == 0);
 	/* Only the tags these sections read: each tag's checks depend on its
-	 * own samples alone, and the other engine checks them all. */
+	 * own samples alone, and the other engine checks them all. Which tags
+	 * those are is worked out once per mask, not per row. */
 	const struct fg_config *cfg = ahead->cfg;
-	bool used[FG_TAGS_MAX] = {false};
-	for (unsigned i = 0; i < cfg->section_count; i++)
-		if (mask >> i & 1u)
-			for (int k = 0; k < SIGNAL_COUNT; k++)
-				if (cfg->sections[i].signal[k] >= 0)
-					used[cfg->sections[i].signal[k]] = true;
+	if (mask != ahead->premodel_mask) {
+		memset(ahead->premodel_tag, 0, sizeof ahead->premodel_tag);
+		for (unsigned i = 0; i < cfg->section_count; i++)
+			if (mask >> i & 1u)
+				for (int k = 0; k < SIGNAL_COUNT; k++)
+					if (cfg->sections[i].signal[k] >= 0)
+						ahead->premodel_tag[cfg->sections[i].signal[k]] = true;
+		ahead->premodel_mask = mask;
+	}
 	for (unsigned i = 0; i < cfg->tag_count; i++)
-		if (used[i])
+		if (ahead->premodel_tag[i])
 			validate_tag(ahead, i, t_ms, values, status);
 	unsigned k = 0;
-	for (unsigned i = 0; i < ahead->cfg->section_count; i++)
+	for (unsigned i = 0; i < cfg->section_count; i++)
 		if (mask >> i & 1u) {
 			struct engine_premodel *o = &out[k++];
 			const struct engine_section *es = &ahead->sec[i];

@@ -59,6 +59,10 @@ struct engine {
 	struct alarm_event events[ENGINE_EVENTS_MAX];
 	int64_t t_ms;                /* time of the last step, ALARM_T_NONE before */
 	uint64_t step_count;
+	/* engine_premodel: the tags its sections read, for the mask they were
+	 * worked out for (0 before the first call: no tags) */
+	uint64_t premodel_mask;
+	bool premodel_tag[FG_TAGS_MAX];
 };
 
 /* Sets e up for cfg. Returns 0 (it cannot fail on a config that loaded). */
