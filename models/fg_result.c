@@ -74,6 +74,7 @@ void result_clear(struct section_result *r)
 		r->v[i] = NAN;
 	r->basis = FLOOD_BASIS_NONE;
 	r->model_basis = FLOOD_BASIS_NONE;
+	r->dp_model_exponent = NAN;
 	r->regime = BUBBLE_REGIME_NONE;
 	r->quality = FG_QUALITY_GOOD;
 	r->extrap.count = 0;

@@ -98,6 +98,10 @@ struct section_result {
 	double v[RF_COUNT];       /* NAN where a field does not apply */
 	enum flood_basis basis;   /* what drove flood_index (evaluators: of flood_pct) */
 	enum flood_basis model_basis; /* what drove flood_pct (set by section_eval) */
+	/* d ln DP / d ln G of the model DP (dp_model_pa) at this point, at
+	 * fixed fluids and liquid rate; NAN where the type has no model DP.
+	 * The engine's DP branch of flood_index divides by it. Not a column. */
+	double dp_model_exponent;
 	enum bubble_regime regime;/* bubble columns only */
 	enum fg_quality quality;
 	struct fg_extrap extrap;  /* extrapolated = extrap.count > 0 */

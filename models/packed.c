@@ -353,6 +353,26 @@ static bool stich_fast_setup(struct stich_fast *k, const struct packing_constant
 	return k->h0 > 0.0 && k->h0 < k->eps;
 }
 
+/* The same constants computed afresh (the cold path's exponent). */
+static bool stich_fast_fill(struct stich_fast *k, const struct packing_constants *c, double u_l,
+			    const struct fluid_state *f)
+{
+	double eps = c->void_frac, e465 = pow(eps, 4.65);
+	double dp = 6.0 * (1.0 - eps) / c->area_m2m3;
+	double fr = u_l * u_l * c->area_m2m3 / (PACKED_G_MS2 * e465);
+	k->eps = eps;
+	k->c1 = c->stichlmair_c1;
+	k->c2 = c->stichlmair_c2;
+	k->c3 = c->stichlmair_c3;
+	k->h0 = 0.555 * cbrt(fr);
+	k->k_re = f->rho_g_kgm3 * dp / f->mu_g_pas;
+	k->ln_kd_rlg = log(0.75 * (1.0 - eps) / e465 * f->rho_g_kgm3 / dp /
+			   (f->rho_l_kgm3 * PACKED_G_MS2));
+	k->ln_1me = log(1.0 - eps);
+	k->ln_eps = log(eps);
+	return k->h0 < k->eps;
+}
+
 /* The dry-bed terms at u = exp(x): f0, c and dc/dx. False when f0 <= 0. */
 static bool fast_dry(const struct stich_fast *k, double x, double *f0, double *ce, double *dce)
 {
@@ -442,6 +462,31 @@ static bool fast_wet_newton(const struct stich_fast *k, double x, double *ln_t, 
 	return false;
 }
 
+/*
+ * d ln DP / d ln u_g of the irrigated DP at ln u_g = x, where the lower root
+ * is t (DP = rho_l g sqrt(t)), at fixed liquid rate and fluids: implicit
+ * differentiation of the residual fast_wet_newton solves,
+ *   F(s, x) = ln(K_D/(rho_l g)) + ln f0 + 2x + p ln((1 - eps + h_T)/(1 - eps))
+ *             + 4.65 ln(eps/(eps - h_T)) - s/2 = 0,   s = ln t,
+ * with p = (2 + c)/3 and c = d ln f0 / d ln Re (so dp/dx = (dc/dx)/3), h_T
+ * a function of s alone: ds/dx = -F_x / F_s, and the exponent is
+ * (1/2) ds/dx. With no liquid it is the dry bed's 2 + c. NAN when the dry
+ * terms are not usable or the point is a turning point (F_s = 0: flood).
+ */
+static double fast_wet_exponent(const struct stich_fast *k, double x, double t)
+{
+	double f0, ce, dce;
+	if (!fast_dry(k, x, &f0, &ce, &dce))
+		return NAN;
+	double p = (2.0 + ce) / 3.0;
+	double ht = k->h0 * (1.0 + 20.0 * t);
+	double a = 1.0 - k->eps + ht, b = k->eps - ht;
+	double f_s = t * (20.0 * p * k->h0 / a + 93.0 * k->h0 / b) - 0.5;
+	double f_x = ce + 2.0 + dce / 3.0 * (log(a) - k->ln_1me);
+	double n = f_s < 0.0 ? -0.5 * f_x / f_s : NAN;
+	return isfinite(n) ? n : NAN;
+}
+
 static bool stich_setup(struct stich *s, const struct packing_constants *c, double u_g,
 			double u_l, const struct fluid_state *f)
 {
@@ -487,6 +532,10 @@ static double stich_wet_root(const struct stich *s, double t_f, struct solve_war
 	return y;
 }
 
+static double wet_pam(const struct packing_constants *c, double u_g_ms, double u_l_ms,
+		      const struct fluid_state *f, double *holdup, double *exponent,
+		      struct fg_extrap *x, struct solve_warm *w);
+
 double packed_stichlmair_wet_pam(const struct packing_constants *c, double u_g_ms,
 				 double u_l_ms, const struct fluid_state *f, double *holdup,
 				 struct fg_extrap *x)
@@ -498,10 +547,43 @@ double packed_stichlmair_wet_pam_warm(const struct packing_constants *c, double 
 				      double u_l_ms, const struct fluid_state *f, double *holdup,
 				      struct fg_extrap *x, struct solve_warm *w)
 {
+	return packed_stichlmair_wet_pam_n(c, u_g_ms, u_l_ms, f, holdup, NULL, x, w);
+}
+
+/* The exponent of the cold path's answer y (DP, Pa/m), from constants
+ * computed afresh. */
+static double cold_exponent(const struct packing_constants *c, double u_g, double u_l,
+			    const struct fluid_state *f, double y)
+{
+	struct stich_fast k;
+	double rlg = f->rho_l_kgm3 * PACKED_G_MS2;
+	if (!(u_g > 0.0) || !(y > 0.0) || !stich_fast_fill(&k, c, u_l, f))
+		return NAN;
+	return fast_wet_exponent(&k, log(u_g), (y / rlg) * (y / rlg));
+}
+
+double packed_stichlmair_wet_pam_n(const struct packing_constants *c, double u_g_ms,
+				   double u_l_ms, const struct fluid_state *f, double *holdup,
+				   double *exponent, struct fg_extrap *x, struct solve_warm *w)
+{
 	assert(c != NULL);
 	assert(f != NULL);
 	if (holdup != NULL)
 		*holdup = NAN;
+	if (exponent != NULL)
+		*exponent = NAN;
+	double y = wet_pam(c, u_g_ms, u_l_ms, f, holdup, exponent, x, w);
+	if (exponent != NULL && isnan(*exponent) && isfinite(y))
+		*exponent = cold_exponent(c, u_g_ms, u_l_ms, f, y);
+	return y;
+}
+
+/* packed_stichlmair_wet_pam_n's solve; *exponent is set on the warm path
+ * only (the caller works it out from the answer otherwise). */
+static double wet_pam(const struct packing_constants *c, double u_g_ms, double u_l_ms,
+		      const struct fluid_state *f, double *holdup, double *exponent,
+		      struct fg_extrap *x, struct solve_warm *w)
+{
 	if (!nonneg_finite(u_g_ms) || !nonneg_finite(u_l_ms) || !fluids_ok(f))
 		return NAN;
 	if (!has_stichlmair(c)) {
@@ -512,11 +594,13 @@ double packed_stichlmair_wet_pam_warm(const struct packing_constants *c, double 
 		struct stich_fast k;
 		double rlg = f->rho_l_kgm3 * PACKED_G_MS2, ln_rlg = log(rlg);
 		double ln_t = 2.0 * (w->stich_wet_ln_y - ln_rlg), t;
-		if (stich_fast_setup(&k, c, u_l_ms, f, w) &&
-		    fast_wet_newton(&k, log(u_g_ms), &ln_t, &t)) {
+		double ln_u = log(u_g_ms);
+		if (stich_fast_setup(&k, c, u_l_ms, f, w) && fast_wet_newton(&k, ln_u, &ln_t, &t)) {
 			w->stich_wet_ln_y = ln_rlg + 0.5 * ln_t;
 			if (holdup != NULL)
 				*holdup = k.h0 * (1.0 + 20.0 * t);
+			if (exponent != NULL)
+				*exponent = fast_wet_exponent(&k, ln_u, t);
 			return rlg * sqrt(t);
 		}
 	}
@@ -988,6 +1072,16 @@ double packed_robbins_pam(double fpd_1pm, double gas_kgsm2, double liquid_kgsm2,
 			  double rho_g_kgm3, double rho_l_kgm3, double mu_l_pas,
 			  struct fg_extrap *x)
 {
+	return packed_robbins_pam_n(fpd_1pm, gas_kgsm2, liquid_kgsm2, rho_g_kgm3, rho_l_kgm3,
+				    mu_l_pas, NULL, x);
+}
+
+double packed_robbins_pam_n(double fpd_1pm, double gas_kgsm2, double liquid_kgsm2,
+			    double rho_g_kgm3, double rho_l_kgm3, double mu_l_pas,
+			    double *exponent, struct fg_extrap *x)
+{
+	if (exponent != NULL)
+		*exponent = NAN;
 	if (!nonneg_finite(gas_kgsm2) || !nonneg_finite(liquid_kgsm2) ||
 	    !pos_finite(rho_g_kgm3) || !pos_finite(rho_l_kgm3) || !pos_finite(mu_l_pas))
 		return NAN;
@@ -1010,7 +1104,11 @@ double packed_robbins_pam(double fpd_1pm, double gas_kgsm2, double liquid_kgsm2,
 		fg_extrap_note(x, "robbins: gas density above about 3 bar air");
 	double term = 7.4e-8 * gf * gf * exp(2.7e-5 * M_LN10 * lf); /* 10^(2.7e-5 Lf) */
 	double t2 = term * term;
-	double dp = term + 0.4 * pow(lf / 20000.0, 0.1) * (t2 * t2);
+	double high = 0.4 * pow(lf / 20000.0, 0.1) * (t2 * t2);
+	double dp = term + high;
+	/* term goes as G^2 and the second as G^8: d ln DP / d ln G */
+	if (exponent != NULL)
+		*exponent = dp > 0.0 ? (2.0 * term + 8.0 * high) / dp : NAN;
 	return dp * PACKED_INH2O_PER_FT_PAM;
 }
 
@@ -1202,12 +1300,12 @@ static void eval_dp(struct pe *e, struct section_result *r)
 {
 	double pam = NAN;
 	if (has_stichlmair(e->c)) {
-		pam = packed_stichlmair_wet_pam_warm(e->c, e->u_g, e->u_l, e->f, &e->stich_holdup,
-						     &r->extrap, e->w);
+		pam = packed_stichlmair_wet_pam_n(e->c, e->u_g, e->u_l, e->f, &e->stich_holdup,
+						  &r->dp_model_exponent, &r->extrap, e->w);
 	} else if (pos_finite(e->c->dry_factor_1pm)) {
-		pam = packed_robbins_pam(e->c->dry_factor_1pm, e->gas_flux, e->liq_flux,
-					 e->f->rho_g_kgm3, e->f->rho_l_kgm3, e->f->mu_l_pas,
-					 &r->extrap);
+		pam = packed_robbins_pam_n(e->c->dry_factor_1pm, e->gas_flux, e->liq_flux,
+					   e->f->rho_g_kgm3, e->f->rho_l_kgm3, e->f->mu_l_pas,
+					   &r->dp_model_exponent, &r->extrap);
 	} else {
 		note_missing(e, r, "packed: no DP constants (Stichlmair C1..C3 or Fpd)");
 	}

@@ -51,6 +51,14 @@ double packed_stichlmair_wet_pam_warm(const struct packing_constants *c, double 
 				      double u_l_ms, const struct fluid_state *f, double *holdup,
 				      struct fg_extrap *x, struct solve_warm *w);
 
+/* The same with the local exponent d ln DP / d ln u_g (fixed liquid rate and
+ * fluids) in *exponent (may be NULL): implicit differentiation of the
+ * residual at the root, no second solve. NAN with the DP, at no gas, or at
+ * the flood point itself. */
+double packed_stichlmair_wet_pam_n(const struct packing_constants *c, double u_g_ms,
+				   double u_l_ms, const struct fluid_state *f, double *holdup,
+				   double *exponent, struct fg_extrap *x, struct solve_warm *w);
+
 /* Stichlmair et al. (1989): gas velocity at flooding, m/s, at liquid
  * velocity u_l_ms. INFINITY for zero liquid (a dry bed does not flood in
  * this model). NAN, noted, when no flood point lies in 1e-6..1e3 m/s. */
@@ -101,5 +109,11 @@ double packed_kister_gill_flood_pam(double fp_1pm, bool structured, struct fg_ex
 double packed_robbins_pam(double fpd_1pm, double gas_kgsm2, double liquid_kgsm2,
 			  double rho_g_kgm3, double rho_l_kgm3, double mu_l_pas,
 			  struct fg_extrap *x);
+
+/* The same with d ln DP / d ln G (fixed liquid rate and fluids) in *exponent
+ * (may be NULL): the equation's first term goes as G^2, the second as G^8. */
+double packed_robbins_pam_n(double fpd_1pm, double gas_kgsm2, double liquid_kgsm2,
+			    double rho_g_kgm3, double rho_l_kgm3, double mu_l_pas,
+			    double *exponent, struct fg_extrap *x);
 
 #endif

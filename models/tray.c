@@ -311,6 +311,26 @@ double tray_total_dp_pa(double dry_m, double clear_liquid_m, double residual_m,
 	return rho_l_kgm3 * TRAY_G_MS2 * (dry_m + clear_liquid_m + residual_m);
 }
 
+double tray_dp_exponent(double dry_m, double clear_liquid_m, double residual_m,
+			double alpha_e, double weir_height_m)
+{
+	/* The derivative of the sum above in ln G, at fixed fluids and liquid
+	 * rate, by the chain rule through the same equations:
+	 *   dry head: the orifice equation, u_h^2, so d hd / d ln G = 2 hd;
+	 *   froth density: alpha_e = exp(-12.55 Ks^0.91) with Ks in
+	 *     proportion to G, so d alpha_e / d ln G = 0.91 alpha_e ln alpha_e;
+	 *   clear liquid: hL = alpha_e hw + C (QL/lw)^0.67 alpha_e^0.33, so
+	 *     d hL / d alpha_e = hw + 0.33 crest with crest = hL/alpha_e - hw;
+	 *   residual head: no gas term.
+	 * (test_tray checks it against central differences of the DP.) */
+	double total = dry_m + clear_liquid_m + residual_m;
+	if (!isfinite(total) || !(total > 0.0) || !(alpha_e > 0.0) || !(alpha_e <= 1.0))
+		return NAN;
+	double crest = clear_liquid_m / alpha_e - weir_height_m;
+	double dhl = (weir_height_m + 0.33 * crest) * 0.91 * alpha_e * log(alpha_e);
+	return (2.0 * dry_m + dhl) / total;
+}
+
 double tray_apron_head_m(double liquid_m3s, double apron_area_m2)
 {
 	/* Sinnott eq. 11.92: hdc = 166 (Lwd/(rho_l Am))^2 mm = 0.166 u^2 m, u the
@@ -415,6 +435,7 @@ struct hyd {
 	double weep_pct;
 	double how, alpha_e, hl, hd, hr, ht, hdc, hb;
 	double dp_pa;     /* one tray */
+	double dlndp;     /* d ln dp_pa / d ln G at fixed fluids and liquid rate */
 	double dc_pct;
 };
 
@@ -561,10 +582,13 @@ static void tray_dp(const struct section_geom *g, const struct fluid_state *f,
 					    ? k->cd : NAN,
 				f->rho_g_kgm3, f->rho_l_kgm3);
 	h->hr = k->hr;
-	if (gas_kgs > 0.0)
+	h->dlndp = NAN;
+	if (gas_kgs > 0.0) {
 		h->dp_pa = tray_total_dp_pa(h->hd, h->hl, h->hr, f->rho_l_kgm3);
-	else
+		h->dlndp = tray_dp_exponent(h->hd, h->hl, h->hr, h->alpha_e, t->weir_height_m);
+	} else {
 		h->dp_pa = 0.0;
+	}
 }
 
 /* Evaluates one tray at the given flows. Zero gas carries no pressure drop:
@@ -804,6 +828,7 @@ void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 	r->v[RF_WEEP_PCT] = h.weep_pct;
 	r->v[RF_CLEAR_LIQUID_M] = h.hl;
 	r->v[RF_DP_MODEL_PA] = h.dp_pa * trays;
+	r->dp_model_exponent = h.dlndp;
 	double per_tray = tray_liquid_per_tray_m3(h.hl, a.active, h.hb, a.dc);
 	r->v[RF_LIQUID_HOLDUP_M3] = per_tray * trays;
 	r->v[RF_LIQUID_HOLDUP_FRAC] = per_tray / (a.tower * g->tray.spacing_m);

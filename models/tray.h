@@ -107,6 +107,14 @@ double tray_residual_head_m(double sigma_nm, double rho_l_kgm3, double rho_g_kgm
 double tray_total_dp_pa(double dry_m, double clear_liquid_m, double residual_m,
 			double rho_l_kgm3);
 
+/* d ln DP / d ln G of that total at fixed fluids and liquid rate, for the
+ * heads of one operating point (hd the orifice head, hL Bennett et al.'s
+ * clear liquid at froth density alpha_e, hR the residual head): the local
+ * exponent the DP branch of flood_index divides by. NAN when the heads or
+ * alpha_e (0 < alpha_e <= 1) are not usable. */
+double tray_dp_exponent(double dry_m, double clear_liquid_m, double residual_m,
+			double alpha_e, double weir_height_m);
+
 /* Head lost by the liquid under the downcomer apron, m (Sinnott eq. 11.92,
  * hdc = 166 (Lwd/(rho_l Am))^2 mm): 0.166 (Q/Am)^2 with Q in m3/s and Am the
  * clearance area in m2. NAN for negative flow or non-positive area. */

@@ -86,18 +86,13 @@ static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
  * more at a 2 % higher gas rate, its solve started from this sample's
  * answer (a copy, so the section's own warm starts do not depend on it).
  * NAN when the model has no DP or no measured DP is wired. */
-static double dp_exponent(const struct section_cfg *s, const struct engine_section *es,
-			  const struct section_point *p, double dp_model_pa)
+/* The model's local d ln DP / d ln G, worked out by the model with its DP
+ * (section_result.dp_model_exponent): NAN without a DP tag to compare. */
+static double dp_exponent(const struct section_cfg *s, const struct section_result *r)
 {
-	if (s->signal[SIGNAL_DP] < 0 || !(dp_model_pa > 0.0) || !(p->gas_kgs > 0.0))
+	if (s->signal[SIGNAL_DP] < 0 || !(r->v[RF_DP_MODEL_PA] > 0.0))
 		return NAN;
-	const double step = 1.02;
-	struct section_point q = *p;
-	q.gas_kgs *= step;
-	q.dp_pa = NAN;
-	struct solve_warm w = es->warm;
-	double dp2 = section_dp_model_pa(&s->geom, &s->props, &q, &w);
-	return dp2 > 0.0 ? log(dp2 / dp_model_pa) / log(step) : NAN;
+	return r->dp_model_exponent;
 }
 
 static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms, double exponent)
@@ -183,8 +178,7 @@ static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 	 * the last verdict rather than call a dead transmitter "shut down". */
 	if (isfinite(es->point.gas_kgs))
 		es->in_service = es->point.gas_kgs >= s->in_service_gas_kgs;
-	soft_sensors(e, si, t_ms,
-		     dp_exponent(s, es, &es->point, es->r.v[RF_DP_MODEL_PA]));
+	soft_sensors(e, si, t_ms, dp_exponent(s, &es->r));
 	learn_circulation(e, si, t_ms);
 }
 

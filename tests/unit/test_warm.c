@@ -75,6 +75,7 @@ static void compare(const struct section_result *c, const struct section_result 
 {
 	for (int i = 0; i < RF_COUNT; i++)
 		assert_close(c->v[i], w->v[i], result_fields[i].name, step);
+	assert_close(c->dp_model_exponent, w->dp_model_exponent, "dp_model_exponent", step);
 	assert_int_equal(c->basis, w->basis);
 	assert_int_equal(c->quality, w->quality);
 	assert_int_equal(c->regime, w->regime);
@@ -277,6 +278,91 @@ static void test_critical_droplet_warm_follows_jumps(void **state)
 	}
 }
 
+/*
+ * The model's DP exponent (section_result.dp_model_exponent, worked out in
+ * closed form by implicit differentiation) against a numerical derivative
+ * of the model DP alone (section_dp_model_pa, cold): central differences of
+ * ln DP in ln G at steps h = 1e-3 and h/2, combined by Richardson's
+ * extrapolation (error O(h^4)). The cold DP solves stop at 1e-12..1e-15
+ * relative, which puts about 1e-12 / 1e-3 = 1e-9 of noise on a difference
+ * quotient; the truncation left after extrapolation is below that away from
+ * the flood point (where the Stichlmair DP turns vertical, so points above
+ * 95 % flood are left out). 1e-6 relative leaves a margin of a hundred or
+ * more over both (the largest seen is printed).
+ */
+static double ln_dp_at(const struct fg_config *cfg, unsigned si, const struct section_geom *g,
+		       const struct section_point *p, double factor)
+{
+	struct section_point q = *p;
+	q.gas_kgs *= factor;
+	return log(section_dp_model_pa(g, &cfg->sections[si].props, &q, NULL));
+}
+
+static double fd_exponent(const struct fg_config *cfg, unsigned si, const struct section_geom *g,
+			  const struct section_point *p, double h)
+{
+	double d = (ln_dp_at(cfg, si, g, p, exp(h)) - ln_dp_at(cfg, si, g, p, exp(-h))) / (2.0 * h);
+	double dh = (ln_dp_at(cfg, si, g, p, exp(0.5 * h)) - ln_dp_at(cfg, si, g, p, exp(-0.5 * h))) /
+		    h;
+	return (4.0 * dh - d) / 3.0;
+}
+
+static unsigned check_exponent(const struct fg_config *cfg, unsigned si,
+			       const struct section_geom *g, unsigned n, double *worst)
+{
+	static double vals[FG_TAGS_MAX];
+	double factor[SIGNAL_COUNT];
+	unsigned checked = 0;
+	for (unsigned i = 0; i < n; i++) {
+		random_jumps(factor, i);
+		tags_at(cfg, si, factor, vals);
+		struct section_point p;
+		point_from_tags(cfg, si, vals, &p);
+		struct section_result r;
+		section_eval(g, &cfg->sections[si].props, &p, &r);
+		double n_fd = fd_exponent(cfg, si, g, &p, 1e-3);
+		if (!isfinite(n_fd) || r.v[RF_FLOOD_PCT] >= 95.0)
+			continue;
+		assert_true(isfinite(r.dp_model_exponent));
+		double rel = fabs(r.dp_model_exponent - n_fd) / fabs(n_fd);
+		if (rel > 1e-6)
+			fail_msg("section %s point %u: exponent %.12g, numerical %.12g (rel %.3g)",
+				 cfg->sections[si].name, i, r.dp_model_exponent, n_fd, rel);
+		*worst = fmax(*worst, rel);
+		checked++;
+	}
+	return checked;
+}
+
+static void test_dp_exponent_is_the_derivative_of_the_model_dp(void **state)
+{
+	(void)state;
+	static const char *const paths[] = {"configs/demo.ini", "tools/bench.ini"};
+	double worst = 0.0;
+	unsigned sections = 0;
+	for (size_t k = 0; k < sizeof paths / sizeof paths[0]; k++) {
+		struct fg_config *cfg = load(paths[k]);
+		for (unsigned si = 0; si < cfg->section_count; si++) {
+			struct section_geom g = cfg->sections[si].geom;
+			if (g.type != SECTION_TRAY && g.type != SECTION_PACKED)
+				continue;
+			sections++;
+			assert_true(check_exponent(cfg, si, &g, 400, &worst) > 100);
+			if (g.type == SECTION_PACKED) {
+				/* Robbins's DP: a packing with a dry packing
+				 * factor (24 1/ft, from memory a mid-sized
+				 * random packing's) and no Stichlmair constants. */
+				g.packed.c.stichlmair_c1 = NAN;
+				g.packed.c.dry_factor_1pm = 24.0 / 0.3048;
+				assert_true(check_exponent(cfg, si, &g, 400, &worst) > 100);
+			}
+		}
+		free(cfg);
+	}
+	assert_int_equal(sections, 4); /* the tray and the packed bed of each */
+	print_message("dp exponent against Richardson differences: worst %.3g relative\n", worst);
+}
+
 /* Bitwise the same (NANs alike), not merely close. */
 static void assert_same(double a, double b, const char *what, unsigned step)
 {
@@ -402,6 +488,7 @@ int main(void)
 		cmocka_unit_test(test_terminal_velocity_warm_follows_jumps),
 		cmocka_unit_test(test_critical_droplet_warm_follows_jumps),
 		cmocka_unit_test(test_caches_change_no_bit),
+		cmocka_unit_test(test_dp_exponent_is_the_derivative_of_the_model_dp),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
