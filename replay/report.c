@@ -185,6 +185,17 @@ int report_init(struct report *rp, const struct report_layout *layout)
 		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++)
 			rp->series_field[k][s] = report_type_series_field(layout->sections[k].type, s);
 	pick_alarm_fields(rp);
+	for (size_t k = 0; k < nsec; k++) {
+		unsigned n = 0;
+		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++)
+			if (rp->series_field[k][s] >= 0) {
+				assert(rp->series_field[k][s] < 256);
+				rp->field_series[k][n][0] = (unsigned char)s;
+				rp->field_series[k][n][1] = (unsigned char)rp->series_field[k][s];
+				n++;
+			}
+		rp->field_series_count[k] = (unsigned char)n;
+	}
 	rp->slots = calloc(REPORT_BUCKETS_MAX, sizeof *rp->slots);
 	rp->cells = calloc(nsec * REPORT_SERIES_COUNT * REPORT_BUCKETS_MAX, sizeof *rp->cells);
 	rp->marks = calloc(nsec * REPORT_BUCKETS_MAX, sizeof *rp->marks);
@@ -319,6 +330,7 @@ static void grid_merge(struct report *rp)
 		memset(&m[half], 0, half * sizeof *m);
 	}
 	rp->width_ms *= 2;
+	rp->width_shift++;
 	rp->bucket_count = (rp->bucket_count + 1) / 2;
 }
 
@@ -329,9 +341,9 @@ static size_t grid_bucket(struct report *rp, int64_t t_ms)
 	if (t_ms < rp->origin_ms)
 		return 0;
 	const uint64_t off = (uint64_t)t_ms - (uint64_t)rp->origin_ms;
-	while (off / (uint64_t)rp->width_ms >= REPORT_BUCKETS_MAX)
+	while (off >> rp->width_shift >= REPORT_BUCKETS_MAX)
 		grid_merge(rp);
-	const size_t b = (size_t)(off / (uint64_t)rp->width_ms);
+	const size_t b = (size_t)(off >> rp->width_shift);
 	if (b + 1 > rp->bucket_count)
 		rp->bucket_count = b + 1;
 	return b;
@@ -448,17 +460,15 @@ int report_add_row_loads(struct report *rp, int64_t t_ms, const struct section_r
 	slot_add(rp, b, t_ms);
 	for (unsigned k = 0; k < rp->layout.section_count; k++) {
 		const struct section_result *r = &results[k];
-		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++) {
-			const int fld = rp->series_field[k][s];
-			double v;
-			if (fld >= 0)
-				v = r->v[fld];
-			else if (loads != NULL &&
-				 (s == REPORT_SERIES_LOAD_Y || s == REPORT_SERIES_LOAD_X))
-				v = loads[2 * k + (s == REPORT_SERIES_LOAD_X)];
-			else
-				continue; /* a series the section does not have: never drawn */
-			cell_add(&rp->cells[cell_at(k, s, b)], v);
+		/* the series with a field, then the load point's two; the
+		 * others the section does not have (never drawn) */
+		for (unsigned i = 0; i < rp->field_series_count[k]; i++) {
+			const unsigned char *sf = rp->field_series[k][i];
+			cell_add(&rp->cells[cell_at(k, sf[0], b)], r->v[sf[1]]);
+		}
+		if (loads != NULL) {
+			cell_add(&rp->cells[cell_at(k, REPORT_SERIES_LOAD_Y, b)], loads[2 * k]);
+			cell_add(&rp->cells[cell_at(k, REPORT_SERIES_LOAD_X, b)], loads[2 * k + 1]);
 		}
 		struct report_mark *m = &rp->marks[mark_at(k, b)];
 		if ((uint8_t)r->quality > m->quality)

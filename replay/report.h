@@ -217,6 +217,11 @@ struct report_event {
  * caller's stack or inside another struct (in-place init). */
 struct report {
 	int series_field[FG_SECTIONS_MAX][REPORT_SERIES_COUNT]; /* enum result_field, -1: none */
+	/* The series of series_field that have a field, as (series, field)
+	 * pairs, so that a row visits only those (report_add_row_loads). */
+	unsigned char field_series_count[FG_SECTIONS_MAX];
+	unsigned char field_series[FG_SECTIONS_MAX][REPORT_SERIES_COUNT][2];
+	unsigned width_shift;          /* width_ms = 2^width_shift */
 	struct report_layout layout;
 	int64_t origin_ms;             /* start of bucket 0 */
 	int64_t width_ms;              /* bucket width, a power of two >= 1 */
