@@ -417,9 +417,40 @@ static bool fast_flood_newton(const struct stich_fast *k, double *ln_u)
 	return false;
 }
 
+/*
+ * d ln DP / d ln u_g of the irrigated DP at ln u_g = x, where the lower root
+ * is t (DP = rho_l g sqrt(t)), at fixed liquid rate and fluids: implicit
+ * differentiation of the residual fast_wet_newton solves,
+ *   F(s, x) = ln(K_D/(rho_l g)) + ln f0 + 2x + p ln((1 - eps + h_T)/(1 - eps))
+ *             + 4.65 ln(eps/(eps - h_T)) - s/2 = 0,   s = ln t,
+ * with p = (2 + c)/3 and c = d ln f0 / d ln Re (so dp/dx = (dc/dx)/3), h_T
+ * a function of s alone: ds/dx = -F_x / F_s, and the exponent is
+ * (1/2) ds/dx. With no liquid it is the dry bed's 2 + c. NAN when the dry
+ * terms are not usable or the point is a turning point (F_s = 0: flood).
+ */
+static double wet_exponent_at(const struct stich_fast *k, double ce, double dce, double t)
+{
+	double p = (2.0 + ce) / 3.0;
+	double ht = k->h0 * (1.0 + 20.0 * t);
+	double a = 1.0 - k->eps + ht, b = k->eps - ht;
+	double f_s = t * (20.0 * p * k->h0 / a + 93.0 * k->h0 / b) - 0.5;
+	double f_x = ce + 2.0 + dce / 3.0 * (log(a) - k->ln_1me);
+	double n = f_s < 0.0 ? -0.5 * f_x / f_s : NAN;
+	return isfinite(n) ? n : NAN;
+}
+
+static double fast_wet_exponent(const struct stich_fast *k, double x, double t)
+{
+	double f0, ce, dce;
+	if (!fast_dry(k, x, &f0, &ce, &dce))
+		return NAN;
+	return wet_exponent_at(k, ce, dce, t);
+}
+
 /* Newton on ln t for the lower root at ln u_g = x, from *ln_t (updated on
  * success), below the flood t_f. *t_out gets t. */
-static bool fast_wet_newton(const struct stich_fast *k, double x, double *ln_t, double *t_out)
+static bool fast_wet_newton(const struct stich_fast *k, double x, double *ln_t, double *t_out,
+			    double *exponent)
 {
 	double s = *ln_t, prev = NAN;
 	if (!isfinite(s))
@@ -455,36 +486,13 @@ static bool fast_wet_newton(const struct stich_fast *k, double x, double *ln_t, 
 				return false;
 			*ln_t = s;
 			*t_out = t;
+			if (exponent != NULL) /* the dry terms at this x, from above */
+				*exponent = wet_exponent_at(k, ce, dce, t);
 			return true;
 		}
 		prev = step;
 	}
 	return false;
-}
-
-/*
- * d ln DP / d ln u_g of the irrigated DP at ln u_g = x, where the lower root
- * is t (DP = rho_l g sqrt(t)), at fixed liquid rate and fluids: implicit
- * differentiation of the residual fast_wet_newton solves,
- *   F(s, x) = ln(K_D/(rho_l g)) + ln f0 + 2x + p ln((1 - eps + h_T)/(1 - eps))
- *             + 4.65 ln(eps/(eps - h_T)) - s/2 = 0,   s = ln t,
- * with p = (2 + c)/3 and c = d ln f0 / d ln Re (so dp/dx = (dc/dx)/3), h_T
- * a function of s alone: ds/dx = -F_x / F_s, and the exponent is
- * (1/2) ds/dx. With no liquid it is the dry bed's 2 + c. NAN when the dry
- * terms are not usable or the point is a turning point (F_s = 0: flood).
- */
-static double fast_wet_exponent(const struct stich_fast *k, double x, double t)
-{
-	double f0, ce, dce;
-	if (!fast_dry(k, x, &f0, &ce, &dce))
-		return NAN;
-	double p = (2.0 + ce) / 3.0;
-	double ht = k->h0 * (1.0 + 20.0 * t);
-	double a = 1.0 - k->eps + ht, b = k->eps - ht;
-	double f_s = t * (20.0 * p * k->h0 / a + 93.0 * k->h0 / b) - 0.5;
-	double f_x = ce + 2.0 + dce / 3.0 * (log(a) - k->ln_1me);
-	double n = f_s < 0.0 ? -0.5 * f_x / f_s : NAN;
-	return isfinite(n) ? n : NAN;
 }
 
 static bool stich_setup(struct stich *s, const struct packing_constants *c, double u_g,
@@ -595,12 +603,11 @@ static double wet_pam(const struct packing_constants *c, double u_g_ms, double u
 		double rlg = f->rho_l_kgm3 * PACKED_G_MS2, ln_rlg = log(rlg);
 		double ln_t = 2.0 * (w->stich_wet_ln_y - ln_rlg), t;
 		double ln_u = log(u_g_ms);
-		if (stich_fast_setup(&k, c, u_l_ms, f, w) && fast_wet_newton(&k, ln_u, &ln_t, &t)) {
+		if (stich_fast_setup(&k, c, u_l_ms, f, w) &&
+		    fast_wet_newton(&k, ln_u, &ln_t, &t, exponent)) {
 			w->stich_wet_ln_y = ln_rlg + 0.5 * ln_t;
 			if (holdup != NULL)
 				*holdup = k.h0 * (1.0 + 20.0 * t);
-			if (exponent != NULL)
-				*exponent = fast_wet_exponent(&k, ln_u, t);
 			return rlg * sqrt(t);
 		}
 	}

@@ -435,7 +435,6 @@ struct hyd {
 	double weep_pct;
 	double how, alpha_e, hl, hd, hr, ht, hdc, hb;
 	double dp_pa;     /* one tray */
-	double dlndp;     /* d ln dp_pa / d ln G at fixed fluids and liquid rate */
 	double dc_pct;
 };
 
@@ -582,13 +581,10 @@ static void tray_dp(const struct section_geom *g, const struct fluid_state *f,
 					    ? k->cd : NAN,
 				f->rho_g_kgm3, f->rho_l_kgm3);
 	h->hr = k->hr;
-	h->dlndp = NAN;
-	if (gas_kgs > 0.0) {
+	if (gas_kgs > 0.0)
 		h->dp_pa = tray_total_dp_pa(h->hd, h->hl, h->hr, f->rho_l_kgm3);
-		h->dlndp = tray_dp_exponent(h->hd, h->hl, h->hr, h->alpha_e, t->weir_height_m);
-	} else {
+	else
 		h->dp_pa = 0.0;
-	}
 }
 
 /* Evaluates one tray at the given flows. Zero gas carries no pressure drop:
@@ -828,7 +824,9 @@ void tray_eval_warm(const struct section_geom *g, const struct fluid_state *f,
 	r->v[RF_WEEP_PCT] = h.weep_pct;
 	r->v[RF_CLEAR_LIQUID_M] = h.hl;
 	r->v[RF_DP_MODEL_PA] = h.dp_pa * trays;
-	r->dp_model_exponent = h.dlndp;
+	r->dp_model_exponent = p->gas_kgs > 0.0 ? tray_dp_exponent(h.hd, h.hl, h.hr, h.alpha_e,
+								     g->tray.weir_height_m)
+						 : NAN;
 	double per_tray = tray_liquid_per_tray_m3(h.hl, a.active, h.hb, a.dc);
 	r->v[RF_LIQUID_HOLDUP_M3] = per_tray * trays;
 	r->v[RF_LIQUID_HOLDUP_FRAC] = per_tray / (a.tower * g->tray.spacing_m);

@@ -23,6 +23,7 @@ void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period
 	s->value = NAN;
 	s->value_si = NAN;
 	s->accepted = NAN;
+	s->lag_dt_s = NAN; /* no weight kept yet */
 	s->quality = FG_QUALITY_BAD;
 	s->reason = ALARM_REASON_STALE; /* nothing read yet */
 }
@@ -76,8 +77,11 @@ static void filter(struct tag_state *s, int64_t t_ms, double x)
 		s->lag_init = true;
 	} else {
 		double dt_s = (double)(t_ms - s->last_t_ms) / 1000.0;
-		double a = dt_s > 0.0 ? 1.0 - exp(-dt_s / c->filter_tau_s) : 0.0;
-		s->value += a * (m - s->value);
+		if (dt_s != s->lag_dt_s) { /* the weight of the last step length, kept */
+			s->lag_a = dt_s > 0.0 ? 1.0 - exp(-dt_s / c->filter_tau_s) : 0.0;
+			s->lag_dt_s = dt_s;
+		}
+		s->value += s->lag_a * (m - s->value);
 	}
 	s->value_si = config_tag_to_si(c, s->value);
 }

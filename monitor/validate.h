@@ -82,6 +82,7 @@ struct tag_state {
 	double med[FG_MEDIAN_MAX];   /* ring of accepted values */
 	unsigned med_count, med_pos;
 	bool lag_init;
+	double lag_dt_s, lag_a;      /* the lag's weight lag_a for a step of lag_dt_s */
 	double value;                /* validated, filtered, tag unit; NAN when never good */
 	double value_si;             /* the same in SI */
 	enum fg_quality quality;
