@@ -558,16 +558,13 @@ static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 	engine_step_ahead(rp->eng, t_ms, values, status, rp->cur_pre != NULL ? rp->ahead_mask : 0,
 			  rp->cur_pre, rp->cur_tags);
 	const struct section_result *res[FG_SECTIONS_MAX];
-	static struct section_result copy[FG_SECTIONS_MAX];
-	for (unsigned s = 0; s < rp->cfg->section_count; s++) {
-		copy[s] = rp->eng->sec[s].r;
-		res[s] = &copy[s];
-	}
+	for (unsigned s = 0; s < rp->cfg->section_count; s++)
+		res[s] = &rp->eng->sec[s].r;
 	if (write_results(rp, t_ms, res) != 0 || write_events(rp) != 0)
 		return -EIO;
 	engine_events_clear(rp->eng);
 	track_loads(rp, t_ms);
-	report_add_row_loads(&rp->rp, t_ms, copy, rp->loads);
+	report_add_row_at(&rp->rp, t_ms, res, rp->loads);
 	if (rp->rows_used > 0) {
 		/* Gaps longer than ten periods count for one period only. */
 		double dt_s = (double)(t_ms - rp->prev_t_ms) / 1000.0;

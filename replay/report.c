@@ -447,6 +447,16 @@ int report_add_row(struct report *rp, int64_t t_ms, const struct section_result 
 int report_add_row_loads(struct report *rp, int64_t t_ms, const struct section_result *results,
 			 const double *loads)
 {
+	assert(results != NULL);
+	const struct section_result *at[FG_SECTIONS_MAX];
+	for (unsigned k = 0; k < rp->layout.section_count; k++)
+		at[k] = &results[k];
+	return report_add_row_at(rp, t_ms, at, loads);
+}
+
+int report_add_row_at(struct report *rp, int64_t t_ms, const struct section_result *const *results,
+		      const double *loads)
+{
 	assert(rp != NULL);
 	assert(rp->slots != NULL);
 	assert(results != NULL);
@@ -459,7 +469,7 @@ int report_add_row_loads(struct report *rp, int64_t t_ms, const struct section_r
 	const size_t b = grid_bucket(rp, t_ms);
 	slot_add(rp, b, t_ms);
 	for (unsigned k = 0; k < rp->layout.section_count; k++) {
-		const struct section_result *r = &results[k];
+		const struct section_result *r = results[k];
 		/* the series with a field, then the load point's two; the
 		 * others the section does not have (never drawn) */
 		for (unsigned i = 0; i < rp->field_series_count[k]; i++) {

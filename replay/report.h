@@ -270,6 +270,11 @@ int report_add_row(struct report *rp, int64_t t_ms, const struct section_result 
 int report_add_row_loads(struct report *rp, int64_t t_ms, const struct section_result *results,
 			 const double *loads);
 
+/* The same with results[i] pointing at section i's result (where the
+ * results lie, without copying them together). */
+int report_add_row_at(struct report *rp, int64_t t_ms, const struct section_result *const *results,
+		      const double *loads);
+
 /* Sets the operating window of section k (copied). Returns 0 or -EINVAL. */
 int report_set_window(struct report *rp, unsigned k, const struct report_window *w);
 
