@@ -72,7 +72,7 @@ int rowq_init(struct rowq *q, unsigned tag_count);
  * what it worked out ahead for that row), fewer rows per chunk when needed
  * to keep a chunk's extra within ROWQ_EXTRA_BYTES. Call once, after
  * rowq_init and before any chunk is taken. Returns 0 or -ENOMEM. */
-#define ROWQ_EXTRA_BYTES (256u * 1024u)
+#define ROWQ_EXTRA_BYTES (128u * 1024u)
 int rowq_set_extra(struct rowq *q, size_t bytes_per_row);
 
 /* Frees everything; accepts a zeroed q. */
