@@ -215,20 +215,6 @@ bool solve_halley_done(double step, double prev_step, double tol)
 	return a / (b * b * b) * a * a * a <= 0.1 * tol;
 }
 
-bool solve_memo_hit(struct solve_memo *m, const double *key, unsigned n)
-{
-	assert(m != NULL);
-	assert(key != NULL);
-	assert(n >= 1);
-	assert(n <= SOLVE_MEMO_KEYS);
-	size_t size = n * sizeof key[0];
-	if (m->valid && memcmp(m->key, key, size) == 0)
-		return true;
-	memcpy(m->key, key, size);
-	m->valid = true;
-	return false;
-}
-
 bool solve_newton_done(double step, double prev_step, double tol)
 {
 	double a = fabs(step), b = fabs(prev_step);

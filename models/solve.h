@@ -34,6 +34,8 @@
 #define SOLVE_H
 
 #include <stdbool.h>
+#include <stdint.h>
+#include <string.h>
 
 /* Steps out from a warm guess before giving up on it (the step doubles:
  * 2^12 times the first step reaches any change a sample can bring). */
@@ -125,7 +127,23 @@ struct solve_memo {
 /* True when m holds the values for these n key values. Otherwise stores
  * the key, marks m valid and returns false: the caller then fills m->val
  * before anything else can read m. */
-bool solve_memo_hit(struct solve_memo *m, const double *key, unsigned n);
+static inline bool solve_memo_hit(struct solve_memo *m, const double *key, unsigned n)
+{
+	/* bit for bit (NAN keys alike, -0 apart from 0), word by word: inline,
+	 * as it runs several times per section and sample */
+	uint64_t diff = !m->valid;
+	for (unsigned i = 0; i < n; i++) {
+		uint64_t a, b;
+		memcpy(&a, &m->key[i], sizeof a);
+		memcpy(&b, &key[i], sizeof b);
+		diff |= a ^ b;
+	}
+	if (diff == 0)
+		return true;
+	memcpy(m->key, key, n * sizeof key[0]);
+	m->valid = true;
+	return false;
+}
 
 /* The warm-start memory of one section: the last answer of each solve, NAN
  * when there is none (cold). Owned by the engine, one per section; the
