@@ -83,10 +83,6 @@ static enum fg_quality gather(struct engine *e, unsigned si, double *sig)
 	return q;
 }
 
-/* The model's local d ln DP / d ln G at point p: the model DP alone once
- * more at a 2 % higher gas rate, its solve started from this sample's
- * answer (a copy, so the section's own warm starts do not depend on it).
- * NAN when the model has no DP or no measured DP is wired. */
 /* The model's local d ln DP / d ln G, worked out by the model with its DP
  * (section_result.dp_model_exponent): NAN without a DP tag to compare. */
 static double dp_exponent(const struct section_cfg *s, const struct section_result *r)
