@@ -117,6 +117,8 @@ struct csvread_sample {
 	char text_buf[CSVREAD_TEXT_MAX];
 };
 
+#define CSVREAD_TIME_TEXT_MAX 40
+
 struct csvread {
 	FILE *f;                   /* NULL when not open */
 	bool owns_file;            /* false for stdin */
@@ -132,6 +134,12 @@ struct csvread {
 	uint64_t line_no;          /* lines consumed so far (the last line's number) */
 	int64_t last_t_ms;         /* time of the last row returned */
 	bool have_last;            /* a row has been returned */
+	/* The last ISO time text parsed and what it read as (parse_time): the
+	 * next differs from it, on a regular record, in the seconds alone. */
+	char time_text[CSVREAD_TIME_TEXT_MAX];
+	size_t time_len;           /* 0: nothing kept */
+	int64_t time_t_ms;
+	bool time_zoned;
 	char *header;              /* copy of the header line, names unquoted in place */
 	unsigned column_count;     /* header columns, time included */
 	uint32_t *name_start;      /* column_count offsets into header */

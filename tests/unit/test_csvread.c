@@ -552,6 +552,79 @@ static void test_line_of_exactly_line_max_is_accepted(void **state)
 	assert_int_equal(csvread_stats(&fx->r)->rows_malformed, 1);
 }
 
+/* One time in one of the ISO forms a historian writes: Z, a space and no
+ * zone (UTC, no zone database given), 250 ms past t_ms, an offset of +01:00. */
+static void iso_text(int64_t t_ms, unsigned kind, char *buf, size_t size)
+{
+	int64_t shift = kind == 3 ? 3600000 : 0; /* t_ms in whole seconds */
+	time_t sec = (time_t)((t_ms + shift) / 1000);
+	struct tm tm;
+	assert_non_null(gmtime_r(&sec, &tm));
+	size_t n = 0;
+	switch (kind) {
+	case 0: n = strftime(buf, size, "%Y-%m-%dT%H:%M:%SZ", &tm); break;
+	case 1: n = strftime(buf, size, "%Y-%m-%d %H:%M:%S", &tm); break;
+	case 2: n = strftime(buf, size, "%Y-%m-%dT%H:%M:%S.250Z", &tm); break;
+	default: n = strftime(buf, size, "%Y-%m-%dT%H:%M:%S+01:00", &tm); break;
+	}
+	assert_true(n > 0);
+}
+
+/* The reader keeps the last time text and reads the next from its seconds
+ * when nothing else changed. Every row's time must be what timefmt_parse
+ * makes of the text alone: steps of 1-3 s across minutes, hours and a day,
+ * the form changing every few rows, and now and then a row a second back
+ * in time (skipped as unsorted, and then the last text kept). */
+static void test_times_read_from_the_last_text_equal_a_full_parse(void **state)
+{
+	struct fixture *fx = *state;
+	struct tmpdir *td = &fx->td;
+	tmpdir_make(td, "times.csv");
+	FILE *f = fopen(td->path, "wb");
+	assert_non_null(f);
+	fputs("time,C3_PDT_101\n", f);
+	enum { ROWS = 3000 };
+	static int64_t expect[ROWS];
+	int64_t t = T0_MS + 86400000LL - 1800000LL; /* half an hour before midnight */
+	unsigned kind = 0, n = 0, back = 0;
+	uint64_t rng = 12345u;
+	char text[64];
+	for (unsigned i = 0; i < ROWS; i++) {
+		rng = rng * 6364136223846793005u + 1442695040888963407u;
+		if (i % 7 == 0)
+			kind = (unsigned)(rng >> 60) % 4u;
+		t += 1000 * (int64_t)(1 + (rng >> 40) % 3u);
+		iso_text(t, kind, text, sizeof text);
+		int64_t full;
+		assert_int_equal(timefmt_parse(text, strlen(text), &full), 0);
+		assert_true(full == t + (kind == 2 ? 250 : 0));
+		fprintf(f, "%s,%u\n", text, n);
+		expect[n++] = full;
+		if (i % 50 == 49) { /* one second back: unsorted */
+			iso_text(t - 1000, kind, text, sizeof text);
+			fprintf(f, "%s,-1\n", text);
+			back++;
+		}
+	}
+	assert_int_equal(fclose(f), 0);
+	assert_int_equal(csvread_open(&fx->r, td->path, fx->err, sizeof fx->err), 0);
+	const char *const names[] = {"C3_PDT_101"};
+	assert_int_equal(csvread_bind(&fx->r, names, 1, fx->err, sizeof fx->err), 0);
+	for (unsigned k = 0; k < n; k++) {
+		int64_t got;
+		double v;
+		assert_int_equal(csvread_next(&fx->r, &got, &v, 1), 1);
+		assert_true(v == (double)k);
+		if (got != expect[k])
+			fail_msg("row %u: %lld, the full parse %lld", k, (long long)got,
+				 (long long)expect[k]);
+	}
+	int64_t got;
+	double v;
+	assert_int_equal(csvread_next(&fx->r, &got, &v, 1), 0);
+	assert_int_equal(csvread_stats(&fx->r)->rows_unsorted, back);
+}
+
 static void test_stdin_pipe_is_read_with_unknown_total(void **state)
 {
 	struct fixture *fx = *state;
@@ -1079,6 +1152,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		T(test_good_comma_file_reads_values_in_bind_order),
 		T(test_third_column_and_exponent_negative),
+		T(test_times_read_from_the_last_text_equal_a_full_parse),
 		T(test_semicolon_file_accepts_decimal_comma),
 		T(test_bom_and_crlf_are_handled),
 		T(test_epoch_seconds_with_fractions),
