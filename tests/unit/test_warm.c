@@ -97,12 +97,20 @@ static void tags_at(const struct fg_config *cfg, unsigned si, const double *fact
 	}
 }
 
+/* The operating point of section si with each signal at factor x its nominal. */
+static void point_at(const struct fg_config *cfg, unsigned si, const double *factor,
+		     struct section_point *p)
+{
+	static double vals[FG_TAGS_MAX];
+	tags_at(cfg, si, factor, vals);
+	point_from_tags(cfg, si, vals, p);
+}
+
 /* Runs n points through one section, warm and cold, and compares them.
  * next() sets the factors of the next point. Returns the evaluations made. */
 static unsigned run(const struct fg_config *cfg, unsigned si, const struct section_geom *g,
 		    unsigned n, void (*next)(double *factor, unsigned step))
 {
-	static double vals[FG_TAGS_MAX];
 	struct solve_warm w;
 	solve_warm_clear(&w);
 	double factor[SIGNAL_COUNT];
@@ -111,9 +119,8 @@ static unsigned run(const struct fg_config *cfg, unsigned si, const struct secti
 	unsigned finite_floods = 0;
 	for (unsigned i = 0; i < n; i++) {
 		next(factor, i);
-		tags_at(cfg, si, factor, vals);
 		struct section_point p;
-		point_from_tags(cfg, si, vals, &p);
+		point_at(cfg, si, factor, &p);
 		struct section_result rc, rw;
 		section_eval(g, &cfg->sections[si].props, &p, &rc);
 		section_eval_warm(g, &cfg->sections[si].props, &p, &rw, &w);
@@ -310,14 +317,12 @@ static double fd_exponent(const struct fg_config *cfg, unsigned si, const struct
 static unsigned check_exponent(const struct fg_config *cfg, unsigned si,
 			       const struct section_geom *g, unsigned n, double *worst)
 {
-	static double vals[FG_TAGS_MAX];
 	double factor[SIGNAL_COUNT];
 	unsigned checked = 0;
 	for (unsigned i = 0; i < n; i++) {
 		random_jumps(factor, i);
-		tags_at(cfg, si, factor, vals);
 		struct section_point p;
-		point_from_tags(cfg, si, vals, &p);
+		point_at(cfg, si, factor, &p);
 		struct section_result r;
 		section_eval(g, &cfg->sections[si].props, &p, &r);
 		double n_fd = fd_exponent(cfg, si, g, &p, 1e-3);
