@@ -122,40 +122,41 @@ void numfmt_digits8(uint32_t x, char out[9])
 }
 
 /*
- * "%.Pg" layout of the P digits q (value q 10^(e - P + 1)), 15 <= P <= 17,
- * trailing zeros dropped. The text is put together in a scratch buffer
- * with copies of fixed length (no calls, no byte loops), then copied out
- * whole: the caller's buffer holds NUMFMT_FULL_SIZE bytes.
+ * "%.Pg" layout (15 <= P <= 17, trailing zeros dropped) of the value
+ * Q 10^(e - 16), Q the 17 digits 10^16 <= Q < 10^17 (the P-digit result
+ * times 10^(17 - P)). The text goes straight into the caller's buffer of
+ * NUMFMT_FULL_SIZE bytes, by stores of fixed length (no calls, no byte
+ * loops); bytes after the NUL up to 27 may be written too.
  */
-static int layout(char *buf, bool neg, uint64_t q, int p, int e)
+static int layout(char *buf, bool neg, uint64_t Q, int p, int e)
 {
 	assert(p >= 15);
 	assert(p <= 17);
-	char d[48], t[64];
-	/* The 17 digits of q zero-padded, so the P digits start at d + 17 - P:
-	 * the first, then two words of eight (byte order as in memory on a
-	 * little-endian machine: see digits8). */
-	d[0] = (char)('0' + q / 10000000000000000u);
-	uint64_t low = q % 10000000000000000u;
-	uint64_t w1 = digits8((uint32_t)(low / 100000000u));
-	uint64_t w2 = digits8((uint32_t)(low % 100000000u));
-	uint64_t a1 = w1 + ASCII_ZEROS8, a2 = w2 + ASCII_ZEROS8;
+	assert(Q >= POW10[16]);
+	assert(Q < POW10[17]);
+	uint64_t d0 = Q / POW10[16]; /* constant divisors: multiplications */
+	uint64_t low = Q - d0 * POW10[16];
+	uint64_t hi8 = low / 100000000u;
+	uint64_t w1 = digits8((uint32_t)hi8), w2 = digits8((uint32_t)(low - hi8 * 100000000u));
+	/* Trailing zeros: the zero bytes at the top of the words. The first
+	 * digit is not zero. */
+	int tz = w2 != 0 ? lz64(w2) / 8 : 8 + lz64(w1) / 8;
+	int n = 17 - tz; /* significant digits, 1..P */
+	/* the 17 digits, then '0's (read by the fixed-length copies below) */
+	char d[40];
+	uint64_t a1 = w1 + ASCII_ZEROS8, a2 = w2 + ASCII_ZEROS8, z8 = ASCII_ZEROS8;
+	d[0] = (char)('0' + d0);
 	memcpy(d + 1, &a1, 8);
 	memcpy(d + 9, &a2, 8);
-	memset(d + 17, '0', 31);
-	const char *dg = d + 17 - p;
-	/* Trailing zeros: the zero bytes at the top of the words. At least the
-	 * first of the P digits is not zero (q >= 10^(P-1)). */
-	int tz = lz64(w2) / 8 + (w2 == 0) * (lz64(w1) / 8);
-	int n = p - tz;
-	assert(n >= 1);
-	t[0] = '-';
-	char *o = t + (neg ? 1 : 0);
+	memcpy(d + 17, &z8, 8);
+	memcpy(d + 25, &z8, 8);
+	buf[0] = '-';
+	char *o = buf + neg;
 	int len;
-	if (e < -4 || e >= p) {
-		o[0] = dg[0];
+	if (__builtin_expect(e < -4 || e >= p, 0)) {
+		o[0] = d[0];
 		o[1] = '.';
-		memcpy(o + 2, dg + 1, 16);
+		memcpy(o + 2, d + 1, 16);
 		len = n > 1 ? n + 1 : 1;
 		o[len++] = 'e';
 		o[len++] = e < 0 ? '-' : '+';
@@ -164,36 +165,39 @@ static int layout(char *buf, bool neg, uint64_t q, int p, int e)
 			o[len++] = (char)('0' + a / 100);
 		memcpy(o + len, DIGIT_PAIRS + 2 * (a % 100), 2);
 		len += 2;
+	} else if (e >= 0) {
+		/* ddd.ddd: the digits, then those after the point one place on */
+		memcpy(o, d, 16);
+		o[16] = d[16];
+		if (e < 8) /* up to 16 digits after the point */
+			memcpy(o + e + 2, d + e + 1, 16);
+		else /* up to 8 (the copy ends at byte 27 at most) */
+			memcpy(o + e + 2, d + e + 1, 8);
+		o[e + 1] = '.';
+		len = n > e + 1 ? n + 1 : e + 1;
 	} else {
-		/* 0.00ddd as 000ddd with the point after the first digit: the
-		 * digits behind z = max(-e, 0) zeros, the point after ei + 1 */
-		int neg_e = -(e < 0); /* all ones when e < 0 */
-		int z = -e & neg_e, ei = e & ~neg_e;
-		char u[56];
-		memset(u, '0', sizeof u);
-		memcpy(u + z, dg, 40);
-		memcpy(o, u, 17);
-		o[ei + 1] = '.';
-		memcpy(o + ei + 2, u + ei + 1, 24);
-		len = z + n > ei + 1 ? z + n + 1 : ei + 1;
+		/* 0.000ddd: "0." and -e - 1 zeros, then the digits */
+		static const char lead[8] = {'0', '.', '0', '0', '0', '0', '0', '0'};
+		memcpy(o, lead, 8);
+		memcpy(o + 1 - e, d, 16);
+		o[17 - e] = d[16];
+		len = 1 - e + n;
 	}
-	len += (int)(o - t);
+	len += neg;
 	assert(len < NUMFMT_FULL_SIZE);
-	t[len] = '\0';
-	memcpy(buf, t, NUMFMT_FULL_SIZE);
+	buf[len] = '\0';
 	return len;
 }
 
 /* The P digits q, rounded up to 10^P or not, laid out. */
 static int put_digits(char *buf, bool neg, uint64_t q, int p, int e)
 {
-	if (q == POW10[p]) { /* rounded up to the next power of ten */
-		q = POW10[p - 1];
+	uint64_t Q = q * POW10[17 - p];
+	if (Q == POW10[17]) { /* rounded up to the next power of ten */
+		Q = POW10[16];
 		e++;
 	}
-	assert(q >= POW10[p - 1]);
-	assert(q < POW10[p]);
-	return layout(buf, neg, q, p, e);
+	return layout(buf, neg, Q, p, e);
 }
 
 /* The exact scaled value X = t17 + r / 2^sh of one double (see above). */
@@ -337,14 +341,106 @@ static int full_fast(double v, char *buf)
 	return put_digits(buf, v < 0.0, q, p, e);
 }
 
+/* 5^0..5^32 in 128 bits. */
+static const u128 POW5_128[FAST_K_MAX + 1] = {
+	1u, 5u, 25u, 125u, 625u, 3125u, 15625u, 78125u, 390625u, 1953125u, 9765625u,
+	48828125u, 244140625u, 1220703125u, 6103515625u, 30517578125u, 152587890625u,
+	762939453125u, 3814697265625u, 19073486328125u, 95367431640625u, 476837158203125u,
+	2384185791015625u, 11920928955078125u, 59604644775390625u, 298023223876953125u,
+	1490116119384765625u, 7450580596923828125u,
+	(u128)7450580596923828125u * 5u, (u128)7450580596923828125u * 25u,
+	(u128)7450580596923828125u * 125u, (u128)7450580596923828125u * 625u,
+	(u128)7450580596923828125u * 3125u,
+};
+
+/*
+ * Does t17 + d read back as v, when X = t17 + f 2^-64 exactly and u is
+ * the gap to the next double up in units of 2^-64 of X? Exactly: strtod
+ * gives v when the candidate is nearer v than half the gap on its side
+ * (half as wide below a power of two), or exactly halfway and M even.
+ */
+static inline bool reads_back64(int64_t d, uint64_t f, u128 u, bool m_even, bool m_pow2)
+{
+	u128 dist;
+	bool below = d <= 0;
+	if (below) /* |t17 + d - X| = -d + f */
+		dist = ((u128)(uint64_t)-d << 64) + f;
+	else
+		dist = ((u128)(uint64_t)d << 64) - f;
+	dist <<= 1 + (below & m_pow2);
+	return dist < u + m_even;
+}
+
+/*
+ * The common case of the fast path, cheaper: when 0 < sh <= 64 (|v| from
+ * about 1e-12 to 4.5e15) the whole fraction of X fits 64 bits, so X =
+ * t17 + f 2^-64 exactly with t17 and f the two halves of N << (64 - sh),
+ * and every rounding and read-back test is exact on (t17, f) without the
+ * wider arithmetic of scale(). Returns -1 outside that range (full_fast
+ * takes it).
+ */
+static int full_fast64(double v, char *buf)
+{
+	uint64_t bits;
+	memcpy(&bits, &v, sizeof bits);
+	int be = (int)((bits >> 52) & 0x7ffu);
+	uint64_t m = (bits & (((uint64_t)1 << 52) - 1)) | ((uint64_t)1 << 52);
+	int e2 = be - 1075; /* |v| = m 2^e2, 2^52 <= m < 2^53 (be != 0: checked below) */
+	int lg = e2 + 52;
+	int e = (int)(((int64_t)lg * 78913) >> 18); /* floor(lg log10 2), see full_fast */
+	if (be == 0 || e < FAST_E_MIN - 1 || e > FAST_E_MAX)
+		return -1;
+	e += fabs(v) >= POW10_DBL[e + 1 - FAST_E_MIN];
+	int k = 16 - e, sh = -(e2 + k);
+	if (k < 0 || k > FAST_K_MAX || sh < 1 || sh > 64)
+		return -1;
+	u128 n = (u128)m * POW5_128[k] << (64 - sh);
+	uint64_t t17 = (uint64_t)(n >> 64);
+	if (__builtin_expect(t17 < POW10[16] || t17 >= POW10[17], 0))
+		return -1; /* e one off (|v| next to a power of ten): full_fast */
+	uint64_t f = (uint64_t)n;
+	u128 u = POW5_128[k] << (64 - sh);
+	bool m_even = (m & 1u) == 0, m_pow2 = m == (uint64_t)1 << 52;
+	/* %.17g: t17 and the fraction rounded half to even */
+	const uint64_t half = (uint64_t)1 << 63;
+	uint64_t q17 = t17 + ((f > half) | ((f == half) & (t17 & 1u)));
+	bool inexact = f != 0;
+	/* %.16g and %.15g: t17 rounded at 10 and at 100, half to even on the
+	 * exact value; each the shortest if it reads back. */
+	uint64_t q15 = t17 / 100u, r15 = t17 - q15 * 100u;
+	q15 += (r15 > 50u) | ((r15 == 50u) & (inexact | (q15 & 1u)));
+	uint64_t Q = q15 * 100u;
+	int p = 15;
+	if (!reads_back64((int64_t)(Q - t17), f, u, m_even, m_pow2)) {
+		uint64_t q16 = t17 / 10u, r16 = t17 - q16 * 10u;
+		q16 += (r16 > 5u) | ((r16 == 5u) & (inexact | (q16 & 1u)));
+		Q = q16 * 10u;
+		p = 16;
+		if (!reads_back64((int64_t)(Q - t17), f, u, m_even, m_pow2)) {
+			Q = q17;
+			p = 17;
+		}
+	}
+	if (Q == POW10[17]) { /* rounded up to the next power of ten */
+		Q = POW10[16];
+		e++;
+	}
+	return layout(buf, v < 0.0, Q, p, e);
+}
+
 int numfmt_full(double v, char *buf, size_t buf_size)
 {
 	assert(buf != NULL);
 	assert(buf_size >= NUMFMT_FULL_SIZE);
 	assert(isfinite(v));
-	if (v == 0.0)
-		v = 0.0; /* no "-0" */
-	int n = v != 0.0 ? full_fast(v, buf) : -1;
+	if (v == 0.0) { /* no "-0": what %.15g writes for +0 */
+		memcpy(buf, "0", 2);
+		return 1;
+	}
+	int n = full_fast64(v, buf);
+	if (n > 0)
+		return n;
+	n = full_fast(v, buf);
 	if (n > 0)
 		return n;
 	return numfmt_full_printf(v, buf, buf_size);
