@@ -128,7 +128,8 @@ void numfmt_digits8(uint32_t x, char out[9])
  * NUMFMT_FULL_SIZE bytes, by stores of fixed length (no calls, no byte
  * loops); bytes after the NUL up to 27 may be written too.
  */
-static int layout(char *buf, bool neg, uint64_t Q, int p, int e)
+__attribute__((always_inline)) static inline int layout(char *buf, bool neg, uint64_t Q,
+						       int p, int e)
 {
 	assert(p >= 15);
 	assert(p <= 17);
@@ -283,7 +284,7 @@ static inline bool reads_back(const struct scaled *x, int64_t d, bool m_pow2, bo
 	return yes;
 }
 
-static int full_fast(double v, char *buf)
+__attribute__((noinline)) static int full_fast(double v, char *buf)
 {
 	uint64_t bits;
 	memcpy(&bits, &v, sizeof bits);
@@ -341,34 +342,44 @@ static int full_fast(double v, char *buf)
 	return put_digits(buf, v < 0.0, q, p, e);
 }
 
-/* 5^0..5^32 in 128 bits. */
-static const u128 POW5_128[FAST_K_MAX + 1] = {
+/* 5^0..5^32 as two words: 5^k = POW5_HI[k] 2^64 + POW5_LO[k]. */
+#define P5_27 7450580596923828125u
+static const uint64_t POW5_LO[FAST_K_MAX + 1] = {
 	1u, 5u, 25u, 125u, 625u, 3125u, 15625u, 78125u, 390625u, 1953125u, 9765625u,
 	48828125u, 244140625u, 1220703125u, 6103515625u, 30517578125u, 152587890625u,
 	762939453125u, 3814697265625u, 19073486328125u, 95367431640625u, 476837158203125u,
 	2384185791015625u, 11920928955078125u, 59604644775390625u, 298023223876953125u,
-	1490116119384765625u, 7450580596923828125u,
-	(u128)7450580596923828125u * 5u, (u128)7450580596923828125u * 25u,
-	(u128)7450580596923828125u * 125u, (u128)7450580596923828125u * 625u,
-	(u128)7450580596923828125u * 3125u,
+	1490116119384765625u, P5_27,
+	(uint64_t)((u128)P5_27 * 5u), (uint64_t)((u128)P5_27 * 25u),
+	(uint64_t)((u128)P5_27 * 125u), (uint64_t)((u128)P5_27 * 625u),
+	(uint64_t)((u128)P5_27 * 3125u),
+};
+static const uint64_t POW5_HI[FAST_K_MAX + 1] = {
+	[28] = (uint64_t)(((u128)P5_27 * 5u) >> 64), [29] = (uint64_t)(((u128)P5_27 * 25u) >> 64),
+	[30] = (uint64_t)(((u128)P5_27 * 125u) >> 64), [31] = (uint64_t)(((u128)P5_27 * 625u) >> 64),
+	[32] = (uint64_t)(((u128)P5_27 * 3125u) >> 64),
 };
 
-/*
- * Does t17 + d read back as v, when X = t17 + f 2^-64 exactly and u is
- * the gap to the next double up in units of 2^-64 of X? Exactly: strtod
- * gives v when the candidate is nearer v than half the gap on its side
- * (half as wide below a power of two), or exactly halfway and M even.
- */
-static inline bool reads_back64(int64_t d, uint64_t f, u128 u, bool m_even, bool m_pow2)
+/* (hi 2^64 + lo) << s for 0 <= s < 64 (told to the compiler, which
+ * otherwise selects on s >= 64 for a 128-bit shift by a variable). */
+static inline u128 shl128(uint64_t hi, uint64_t lo, unsigned s)
 {
-	u128 dist;
-	bool below = d <= 0;
-	if (below) /* |t17 + d - X| = -d + f */
-		dist = ((u128)(uint64_t)-d << 64) + f;
-	else
-		dist = ((u128)(uint64_t)d << 64) - f;
-	dist <<= 1 + (below & m_pow2);
-	return dist < u + m_even;
+	assert(s < 64);
+	if (s >= 64)
+		__builtin_unreachable(); /* so the shift is one shld and one shl */
+	return (((u128)hi << 64) | lo) << s;
+}
+
+/*
+ * Does t17 + d read back as v, when X = t17 + f 2^-64 exactly? lim_up
+ * and lim_down are the distances (in units of 2^-64 of X) a candidate
+ * above or below X must stay under: see full_fast64.
+ */
+static inline bool reads_back64(int64_t d, uint64_t f, u128 lim_up, u128 lim_down)
+{
+	if (d <= 0) /* |t17 + d - X| = -d + f */
+		return (((u128)(uint64_t)-d << 64) | f) < lim_down;
+	return (((u128)(uint64_t)d << 64) - f) < lim_up;
 }
 
 /*
@@ -378,8 +389,15 @@ static inline bool reads_back64(int64_t d, uint64_t f, u128 u, bool m_even, bool
  * and every rounding and read-back test is exact on (t17, f) without the
  * wider arithmetic of scale(). Returns -1 outside that range (full_fast
  * takes it).
+ *
+ * A candidate reads back when it lies within half the gap to the next
+ * double on its side, or exactly halfway with M even (strtod's ties go to
+ * the even significand). The gap above is u = 5^k 2^-sh units of X, in
+ * units of 2^-64 of X: 5^k 2^(64 - sh); below a power of two (M = 2^52)
+ * the gap below is half as wide. With L = u + (M even), 2 dist < L reads
+ * dist < ceil(L / 2), and 4 dist < L reads dist < ceil(L / 4).
  */
-static int full_fast64(double v, char *buf)
+static inline int full_fast64(double v, char *buf)
 {
 	uint64_t bits;
 	memcpy(&bits, &v, sizeof bits);
@@ -394,33 +412,42 @@ static int full_fast64(double v, char *buf)
 	int k = 16 - e, sh = -(e2 + k);
 	if (k < 0 || k > FAST_K_MAX || sh < 1 || sh > 64)
 		return -1;
-	u128 n = (u128)m * POW5_128[k] << (64 - sh);
+	unsigned s = (unsigned)(64 - sh);
+	u128 n0 = (u128)m * POW5_LO[k]; /* m 5^k < 2^128 */
+	uint64_t n_hi = (uint64_t)(n0 >> 64) + m * POW5_HI[k];
+	u128 n = shl128(n_hi, (uint64_t)n0, s); /* X 2^64 < 10^18 2^64: no overflow */
 	uint64_t t17 = (uint64_t)(n >> 64);
 	if (__builtin_expect(t17 < POW10[16] || t17 >= POW10[17], 0))
 		return -1; /* e one off (|v| next to a power of ten): full_fast */
 	uint64_t f = (uint64_t)n;
-	u128 u = POW5_128[k] << (64 - sh);
-	bool m_even = (m & 1u) == 0, m_pow2 = m == (uint64_t)1 << 52;
-	/* %.17g: t17 and the fraction rounded half to even */
-	const uint64_t half = (uint64_t)1 << 63;
-	uint64_t q17 = t17 + ((f > half) | ((f == half) & (t17 & 1u)));
+	u128 lim = shl128(POW5_HI[k], POW5_LO[k], s) + ((m & 1u) == 0);
+	u128 lim_up = (lim + 1u) >> 1;
+	u128 lim_down = m == (uint64_t)1 << 52 ? (lim + 3u) >> 2 : lim_up;
+	/* %.15g, %.16g: t17 rounded at 100 and at 10, half to even on the
+	 * exact value; %.17g: t17 and f rounded half to even. The 15-digit
+	 * text is 12 or more from X when the last two digits of t17 are 12..87,
+	 * and the half gap is under 10^17 / 2^53 < 11.2: it cannot read back. */
 	bool inexact = f != 0;
-	/* %.16g and %.15g: t17 rounded at 10 and at 100, half to even on the
-	 * exact value; each the shortest if it reads back. */
 	uint64_t q15 = t17 / 100u, r15 = t17 - q15 * 100u;
-	q15 += (r15 > 50u) | ((r15 == 50u) & (inexact | (q15 & 1u)));
-	uint64_t Q = q15 * 100u;
-	int p = 15;
-	if (!reads_back64((int64_t)(Q - t17), f, u, m_even, m_pow2)) {
-		uint64_t q16 = t17 / 10u, r16 = t17 - q16 * 10u;
-		q16 += (r16 > 5u) | ((r16 == 5u) & (inexact | (q16 & 1u)));
-		Q = q16 * 10u;
-		p = 16;
-		if (!reads_back64((int64_t)(Q - t17), f, u, m_even, m_pow2)) {
-			Q = q17;
-			p = 17;
-		}
+	uint64_t Q;
+	int p;
+	if (r15 - 12u > 75u) {
+		q15 += (r15 > 50u) | ((r15 == 50u) & (inexact | (q15 & 1u)));
+		Q = q15 * 100u;
+		p = 15;
+		if (reads_back64((int64_t)(Q - t17), f, lim_up, lim_down))
+			goto done;
 	}
+	uint64_t q16 = t17 / 10u, r16 = t17 - q16 * 10u;
+	q16 += (r16 > 5u) | ((r16 == 5u) & (inexact | (q16 & 1u)));
+	Q = q16 * 10u;
+	p = 16;
+	if (!reads_back64((int64_t)(Q - t17), f, lim_up, lim_down)) {
+		const uint64_t half = (uint64_t)1 << 63;
+		Q = t17 + ((f > half) | ((f == half) & (t17 & 1u)));
+		p = 17;
+	}
+done:
 	if (Q == POW10[17]) { /* rounded up to the next power of ten */
 		Q = POW10[16];
 		e++;
