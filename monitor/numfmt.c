@@ -162,8 +162,7 @@ __attribute__((always_inline)) static inline int layout(char *buf, bool neg, uin
 		o[len++] = 'e';
 		o[len++] = e < 0 ? '-' : '+';
 		int a = e < 0 ? -e : e;
-		if (a >= 100)
-			o[len++] = (char)('0' + a / 100);
+		assert(a < 100); /* the fast paths' e is -16..17 */
 		memcpy(o + len, DIGIT_PAIRS + 2 * (a % 100), 2);
 		len += 2;
 	} else if (e >= 0) {
@@ -391,11 +390,13 @@ static inline bool reads_back64(int64_t d, uint64_t f, u128 lim_up, u128 lim_dow
  * takes it).
  *
  * A candidate reads back when it lies within half the gap to the next
- * double on its side, or exactly halfway with M even (strtod's ties go to
- * the even significand). The gap above is u = 5^k 2^-sh units of X, in
- * units of 2^-64 of X: 5^k 2^(64 - sh); below a power of two (M = 2^52)
- * the gap below is half as wide. With L = u + (M even), 2 dist < L reads
- * dist < ceil(L / 2), and 4 dist < L reads dist < ceil(L / 4).
+ * double on its side. The gap above is u = 5^k 2^-sh units of X, in units
+ * of 2^-64 of X: 5^k 2^(64 - sh); below a power of two (M = 2^52) the gap
+ * below is half as wide. 2 dist < u reads dist < ceil(u / 2), and
+ * 4 dist < u reads dist < ceil(u / 4). A candidate (an integer in units of
+ * X) is never exactly halfway here: the halfway points are X + u/2 =
+ * (2M + 1) 5^k / 2^(sh+1) and X - u/4 = (4M - 1) 5^k / 2^(sh+2), odd over
+ * a power of two with sh >= 1, so strtod's ties-to-even never decide.
  */
 static inline int full_fast64(double v, char *buf)
 {
@@ -420,7 +421,7 @@ static inline int full_fast64(double v, char *buf)
 	if (__builtin_expect(t17 < POW10[16] || t17 >= POW10[17], 0))
 		return -1; /* e one off (|v| next to a power of ten): full_fast */
 	uint64_t f = (uint64_t)n;
-	u128 lim = shl128(POW5_HI[k], POW5_LO[k], s) + ((m & 1u) == 0);
+	u128 lim = shl128(POW5_HI[k], POW5_LO[k], s);
 	u128 lim_up = (lim + 1u) >> 1;
 	u128 lim_down = m == (uint64_t)1 << 52 ? (lim + 3u) >> 2 : lim_up;
 	/* %.15g, %.16g: t17 rounded at 100 and at 10, half to even on the
@@ -448,10 +449,10 @@ static inline int full_fast64(double v, char *buf)
 		p = 17;
 	}
 done:
-	if (Q == POW10[17]) { /* rounded up to the next power of ten */
-		Q = POW10[16];
-		e++;
-	}
+	/* Never rounded up to 10^17 here: the text would be 10^(e+1), and it
+	 * reads back (17 digits always do), so v would be the double nearest
+	 * 10^(e+1), which the comparison above counts in the next decade. */
+	assert(Q < POW10[17]);
 	return layout(buf, v < 0.0, Q, p, e);
 }
 

@@ -251,6 +251,70 @@ static void test_full_rounding_boundaries_match_printf(void **state)
 	assert_string_equal(out, "1125899906842624.8");
 }
 
+/* Every binade from 2^-60 to 2^62 with random significands, their ends
+ * and the values next to them, either sign: this crosses each edge of the
+ * 64-bit-fraction path (binary point 1..64 bits into the fraction, about
+ * 1e-12 to 4.5e15) and of the wider path beside it, every decimal exponent
+ * the layouts have (0.000ddd, ddd.ddd with up to 16 digits after the
+ * point or up to 8, d.ddde-05, d.ddde+15), and every length 15..17. */
+static void test_full_every_binade_of_the_fast_paths_matches_printf(void **state)
+{
+	(void)state;
+	for (int b = -60; b <= 62; b++) {
+		for (int i = 0; i < 4000; i++) {
+			uint64_t m = (1ull << 52) | (next_u64() & ((1ull << 52) - 1));
+			double v = ldexp((double)m, b - 52);
+			same_as_printf(i & 1 ? -v : v);
+		}
+		double lo = ldexp(1.0, b), hi = nextafter(ldexp(1.0, b + 1), 0.0);
+		same_as_printf(lo);
+		same_as_printf(nextafter(lo, INFINITY));
+		same_as_printf(hi);
+		same_as_printf(nextafter(hi, 0.0));
+	}
+	/* short decimals in every decade of the range: 15 digits or fewer */
+	for (int d = -13; d <= 16; d++)
+		for (int i = 0; i < 2000; i++) {
+			char text[40];
+			snprintf(text, sizeof text, "%llue%d",
+				 (unsigned long long)(next_u64() % 1000000000000000u), d - 14);
+			same_as_printf(strtod(text, NULL));
+		}
+}
+
+/* The layouts of the fast path, each checked against text worked out by
+ * hand (the %g rules: exponent below -4 or at least the precision gives
+ * d.ddde+XX, else fixed; trailing zeros dropped). */
+static void test_full_layouts(void **state)
+{
+	(void)state;
+	const struct {
+		double v;
+		const char *text;
+	} cases[] = {
+		{17086.0, "17086"},
+		{2898.6, "2898.6"},
+		{-0.25, "-0.25"},
+		{0.000123, "0.000123"},            /* e = -4: still fixed */
+		{1.2e-5, "1.2e-05"},               /* e = -5: exponent */
+		{123456789.12345678, "123456789.12345678"}, /* 8 after the point, 17 digits */
+		{1234567.5, "1234567.5"},
+		{1e15, "1e+15"},                   /* e = 15 = precision: exponent */
+		{1234567890123450.0, "1.23456789012345e+15"},
+		{1234567890123456.0, "1234567890123456"}, /* 16 digits, e = 15 < 16 */
+		{0.1 + 0.2, "0.30000000000000004"},
+		{-1e-12, "-1e-12"},
+		{9.999999999999999e-5, "9.999999999999999e-05"},
+	};
+	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+		char out[NUMFMT_FULL_SIZE];
+		int n = numfmt_full(cases[i].v, out, sizeof out);
+		assert_string_equal(out, cases[i].text);
+		assert_int_equal(n, (int)strlen(cases[i].text));
+		same_as_printf(cases[i].v);
+	}
+}
+
 /* The word-at-a-time digits agree with printf's %08u: every value below
  * 10^6, the ends of the range, and random values (all 10^8 were checked
  * once by hand, which takes too long for every test run). */
@@ -282,6 +346,8 @@ int main(void)
 		cmocka_unit_test(test_full_matches_printf_across_the_exponent_range),
 		cmocka_unit_test(test_full_subnormals_and_powers_of_two_match_printf),
 		cmocka_unit_test(test_full_rounding_boundaries_match_printf),
+		cmocka_unit_test(test_full_every_binade_of_the_fast_paths_matches_printf),
+		cmocka_unit_test(test_full_layouts),
 		cmocka_unit_test(test_digits8_matches_printf),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
