@@ -90,9 +90,11 @@ int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 
 static size_t row_max(const struct results_writer *w)
 {
-	/* time, each number with its comma, each section's four text columns */
-	return TIMEFMT_BUF_SIZE + (size_t)w->col_count * (NUMFMT_FULL_SIZE + 1) +
-	       (size_t)w->section_count * 64 + 2;
+	/* time (and the day's copy of fixed length), each number with its
+	 * comma, each section's four text columns (copied RESULTS_WORD_SIZE
+	 * bytes at a time) */
+	return 2 * TIMEFMT_BUF_SIZE + (size_t)w->col_count * (NUMFMT_FULL_SIZE + 1) +
+	       (size_t)w->section_count * 4 * RESULTS_WORD_SIZE + 2;
 }
 
 static void flush_out(struct results_writer *w)
@@ -105,12 +107,62 @@ static void flush_out(struct results_writer *w)
 	w->out_len = 0;
 }
 
-static char *put_word(char *p, const char *s)
+/* A text column: its ",name" copied whole (RESULTS_WORD_SIZE bytes; the
+ * block has room, see row_max), the length it has. */
+static char *put_word(char *p, const struct results_word *word)
 {
-	*p++ = ',';
-	size_t n = strlen(s);
-	memcpy(p, s, n);
-	return p + n;
+	memcpy(p, word->text, RESULTS_WORD_SIZE);
+	return p + word->len;
+}
+
+static void set_word(struct results_word *word, const char *name)
+{
+	size_t n = strlen(name);
+	assert(n + 2 <= RESULTS_WORD_SIZE);
+	memset(word->text, 0, sizeof word->text);
+	word->text[0] = ',';
+	memcpy(word->text + 1, name, n);
+	word->len = (uint8_t)(n + 1);
+}
+
+static char *put_2digits(char *p, unsigned x)
+{
+	assert(x < 100);
+	p[0] = (char)('0' + x / 10);
+	p[1] = (char)('0' + x % 10);
+	return p + 2;
+}
+
+/* The time as timefmt_format writes it ("YYYY-MM-DDThh:mm:ss[.mmm]Z"),
+ * the date formatted once a day: rows come a second or so apart. */
+static char *put_time(struct results_writer *w, char *p, int64_t t_ms)
+{
+	if (t_ms < w->day_ms || t_ms >= w->day_end_ms) {
+		const int64_t day = 86400000;
+		int64_t d = t_ms / day - (t_ms % day < 0); /* floor */
+		w->day_ms = d * day;
+		w->day_end_ms = w->day_ms + day;
+		int n = timefmt_format(w->day_ms, w->day_text, sizeof w->day_text);
+		assert(n == 20); /* "YYYY-MM-DDT00:00:00Z" */
+		(void)n;
+	}
+	int64_t ms_of_day = t_ms - w->day_ms;
+	assert(ms_of_day >= 0);
+	assert(ms_of_day < 86400000);
+	unsigned s = (unsigned)(ms_of_day / 1000), ms = (unsigned)(ms_of_day % 1000);
+	memcpy(p, w->day_text, 16); /* "YYYY-MM-DDT" and five bytes written over below */
+	p = put_2digits(p + 11, s / 3600);
+	*p++ = ':';
+	p = put_2digits(p, s / 60 % 60);
+	*p++ = ':';
+	p = put_2digits(p, s % 60);
+	if (ms != 0) {
+		*p++ = '.';
+		*p++ = (char)('0' + ms / 100);
+		p = put_2digits(p, ms % 100);
+	}
+	*p++ = 'Z';
+	return p;
 }
 
 /* Number c of a row: from the column's cache when it repeats the column's
@@ -121,10 +173,11 @@ static char *put_word(char *p, const char *s)
 static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 {
 	*p++ = ',';
-	if (!isfinite(v)) /* NaN: an empty field */
-		return p;
 	uint64_t bits;
 	memcpy(&bits, &v, sizeof bits);
+	const uint64_t exp_mask = (uint64_t)0x7ff << 52;
+	if ((bits & exp_mask) == exp_mask) /* not finite (NaN): an empty field */
+		return p;
 	if (bits == w->last_bits[c] && w->last_len[c] > 0) {
 		memcpy(p, w->last_text[c], NUMFMT_FULL_SIZE);
 		return p + w->last_len[c];
@@ -136,7 +189,7 @@ static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 		n = w->last_len[seen->col];
 	} else {
 		n = numfmt_full(v, p, NUMFMT_FULL_SIZE);
-		assert(n > 0 && n < NUMFMT_FULL_SIZE);
+		assert((unsigned)n - 1u < NUMFMT_FULL_SIZE - 1u); /* 1..NUMFMT_FULL_SIZE - 1 */
 		seen->row = w->row_no;
 		seen->bits = bits;
 		seen->col = c;
@@ -157,19 +210,20 @@ static void format_chunk(struct results_writer *w, const struct results_chunk *c
 			flush_out(w);
 		char *p = w->out + w->out_len;
 		w->row_no++; /* a new row: the numbers seen in the last one are stale */
-		int n = timefmt_format(c->t_ms[r], p, TIMEFMT_BUF_SIZE);
-		assert(n > 0); /* checked by results_writer_row */
-		p += n;
+		p = put_time(w, p, c->t_ms[r]); /* in range: checked by results_writer_row */
 		const double *v = c->v + (size_t)r * w->col_count;
 		const uint8_t *code = c->codes + (size_t)r * w->section_count * 4;
 		for (unsigned s = 0; s < w->section_count; s++, code += 4) {
 			for (unsigned k = w->sec_first_col[s]; k < w->sec_first_col[s + 1]; k++)
 				p = put_number(w, p, k, v[k]);
-			p = put_word(p, flood_basis_name((enum flood_basis)code[0]));
-			if (w->sec_regime[s])
-				p = put_word(p, bubble_regime_name((enum bubble_regime)code[1]));
-			p = put_word(p, fg_quality_name((enum fg_quality)code[2]));
-			p = put_word(p, code[3] ? "true" : "false");
+			assert(code[0] < FLOOD_BASIS_COUNT);
+			p = put_word(p, &w->basis_word[code[0]]);
+			if (w->sec_regime[s]) {
+				assert(code[1] < BUBBLE_REGIME_COUNT);
+				p = put_word(p, &w->regime_word[code[1]]);
+			}
+			p = put_word(p, &w->quality_word[code[2]]);
+			p = put_word(p, &w->extrap_word[code[3]]);
 		}
 		*p++ = '\n';
 		assert((size_t)(p - (w->out + w->out_len)) <= worst);
@@ -275,6 +329,15 @@ int results_writer_start(struct results_writer *w, FILE *f, const struct fg_conf
 		w->sec_regime[s] = section_regime_applies(t);
 	}
 	w->sec_first_col[cfg->section_count] = w->col_count;
+	for (int i = 0; i < FLOOD_BASIS_COUNT; i++)
+		set_word(&w->basis_word[i], flood_basis_name((enum flood_basis)i));
+	for (int i = 0; i < BUBBLE_REGIME_COUNT; i++)
+		set_word(&w->regime_word[i], bubble_regime_name((enum bubble_regime)i));
+	for (int i = 0; i < 3; i++)
+		set_word(&w->quality_word[i], fg_quality_name((enum fg_quality)i));
+	set_word(&w->extrap_word[0], "false");
+	set_word(&w->extrap_word[1], "true");
+	w->day_ms = w->day_end_ms = 0; /* no day yet */
 	size_t row_bytes = (size_t)(w->col_count > 0 ? w->col_count : 1) * sizeof(double);
 	size_t rows = RESULTS_CHUNK_BYTES / row_bytes;
 	w->rows_per_chunk = rows > RESULTS_ROWS ? RESULTS_ROWS : rows < 1 ? 1 : (unsigned)rows;
@@ -338,7 +401,10 @@ int results_writer_row(struct results_writer *w, int64_t t_ms,
 			v[k] = res->v[w->col_field[k]];
 		code[0] = (uint8_t)res->basis;
 		code[1] = (uint8_t)res->regime;
-		code[2] = (uint8_t)res->quality;
+		/* fg_quality_name writes any other value as "bad" */
+		code[2] = res->quality == FG_QUALITY_GOOD || res->quality == FG_QUALITY_UNCERTAIN
+				  ? (uint8_t)res->quality
+				  : (uint8_t)FG_QUALITY_BAD;
 		code[3] = res->extrap.count > 0;
 	}
 	c->row_count++;

@@ -28,6 +28,7 @@
 
 #include "config.h"
 #include "numfmt.h"
+#include "timefmt.h"
 
 /* Writes the header line. Returns 0 or -EIO. */
 int results_write_header(FILE *f, const struct fg_config *cfg);
@@ -49,6 +50,9 @@ int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 /* The output block, bytes: written when less than a row's worst case is
  * left. */
 #define RESULTS_OUT_SIZE (1u << 20)
+
+/* A text column's ",name" and a NUL fit: the longest is ",churn_turbulent". */
+#define RESULTS_WORD_SIZE 24
 
 struct results_chunk {
 	unsigned row_count;
@@ -91,6 +95,15 @@ struct results_writer {
 		uint64_t row, bits;
 		unsigned col;
 	} seen[16];
+	/* The text columns, ",name" by code, and the day of the last time
+	 * written ("YYYY-MM-DDT" for t_ms in [day_ms, day_ms + 1 day)). */
+	struct results_word {
+		char text[RESULTS_WORD_SIZE];
+		uint8_t len;
+	} basis_word[FLOOD_BASIS_COUNT], regime_word[BUBBLE_REGIME_COUNT], quality_word[3],
+		extrap_word[2];
+	int64_t day_ms, day_end_ms; /* day_end_ms <= day_ms: none yet */
+	char day_text[TIMEFMT_BUF_SIZE];
 };
 
 /* Sets w up for cfg, writing to f (after the header, which the caller

@@ -51,7 +51,31 @@ static double pick_value(double prev)
 
 /* rows random rows for cfg, through results_write_row and through the
  * writer (threaded or not); the two texts must be equal. */
-static void compare_writers(const char *cfg_path, unsigned rows, bool threaded)
+/* The next row's time: a second or 250 ms on, or (jumpy) now and then
+ * over midnight, back an hour, or anywhere from year 0 to 9999 (the
+ * writer formats each day's date once and must notice every change). */
+static int64_t next_time(int64_t t_ms, bool jumpy)
+{
+	unsigned k = (unsigned)(next_u64() % 16u);
+	if (!jumpy || k >= 6)
+		return t_ms + (next_u64() % 4u == 0 ? 250 : 1000);
+	int64_t day = 86400000;
+	int64_t next = t_ms;
+	switch (k) {
+	case 0: next = (t_ms / day + 1) * day - 1 - (int64_t)(next_u64() % 2000u); break;
+	case 1: next = t_ms + day * (int64_t)(next_u64() % 400u); break;
+	case 2: next = t_ms - 3600000; break;
+	case 3: next = t_ms - day * (int64_t)(next_u64() % 30u) - 1; break;
+	default:
+		next = TIMEFMT_MIN_MS +
+		       (int64_t)(next_u64() % (uint64_t)(TIMEFMT_MAX_MS - TIMEFMT_MIN_MS + 1));
+		break;
+	}
+	return next < TIMEFMT_MIN_MS || next > TIMEFMT_MAX_MS ? t_ms + 1000 : next;
+}
+
+static void compare_writers_times(const char *cfg_path, unsigned rows, bool threaded,
+				  bool jumpy)
 {
 	struct fg_config *cfg = malloc(sizeof *cfg);
 	assert_non_null(cfg);
@@ -84,7 +108,7 @@ static void compare_writers(const char *cfg_path, unsigned rows, bool threaded)
 			res[s].quality = (enum fg_quality)(next_u64() % 3u);
 			res[s].extrap.count = (unsigned)(next_u64() % 2u);
 		}
-		t_ms += next_u64() % 4u == 0 ? 250 : 1000; /* some times with milliseconds */
+		t_ms = next_time(t_ms, jumpy); /* some times with milliseconds */
 		assert_int_equal(results_write_row(a, cfg, t_ms, rp), 0);
 		assert_int_equal(results_writer_row(&w, t_ms, rp), 0);
 	}
@@ -97,6 +121,21 @@ static void compare_writers(const char *cfg_path, unsigned rows, bool threaded)
 	free(a_text);
 	free(b_text);
 	free(cfg);
+}
+
+static void compare_writers(const char *cfg_path, unsigned rows, bool threaded)
+{
+	compare_writers_times(cfg_path, rows, threaded, false);
+}
+
+/* Times that jump over midnight, back, and across the whole range (year
+ * 0000 to 9999, leap days, negative t_ms): the same text as
+ * timefmt_format gives, in either mode. */
+static void test_writer_writes_any_time_as_timefmt_does(void **state)
+{
+	(void)state;
+	compare_writers_times("configs/demo.ini", 6000, false, true);
+	compare_writers_times("configs/demo.ini", 3000, true, true);
 }
 
 /* Enough rows to fill every chunk of the queue several times over and the
@@ -187,6 +226,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_writer_in_one_thread_writes_what_write_row_writes),
 		cmocka_unit_test(test_writer_thread_writes_what_write_row_writes),
+		cmocka_unit_test(test_writer_writes_any_time_as_timefmt_does),
 		cmocka_unit_test(test_writer_reports_a_failed_write),
 		cmocka_unit_test(test_writer_refuses_a_time_it_cannot_write),
 	};
