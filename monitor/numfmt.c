@@ -10,6 +10,9 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#if defined(__SSE2__)
+#include <emmintrin.h>
+#endif
 
 /*
  * The fast path of numfmt_full, without printf: exact integer arithmetic in
@@ -105,11 +108,13 @@ static inline uint64_t digits8(uint32_t x)
 
 #define ASCII_ZEROS8 0x3030303030303030u
 
+#if !defined(__SSE2__)
 /* Leading zero bits of x, 64 for 0. */
 static inline int lz64(uint64_t x)
 {
 	return x != 0 ? __builtin_clzll(x) : 64;
 }
+#endif
 #if !defined(__BYTE_ORDER__) || __BYTE_ORDER__ != __ORDER_LITTLE_ENDIAN__
 #error "numfmt.c stores digit words in little-endian byte order"
 #endif
@@ -119,6 +124,70 @@ void numfmt_digits8(uint32_t x, char out[9])
 	uint64_t w = digits8(x) + ASCII_ZEROS8;
 	memcpy(out, &w, 8);
 	out[8] = '\0';
+}
+
+#if defined(__SSE2__)
+/*
+ * The 8 digits of x < 10^8 as the low 16-bit lanes of an SSE2 register,
+ * first digit in lane 0, each lane the digit's value: x splits into
+ * abcd and efgh (division by 10^4 as multiplication by 0xd1b71759 / 2^45),
+ * each is spread over four lanes, divided there by 10^3, 10^2, 10 and 1
+ * (multiplications by reciprocals, then by powers of two, keeping the high
+ * halves) and the digit above subtracted ten times: the method of
+ * W. Mula's SSE2 integer-to-text conversion. Exact for x < 10^8 (test_numfmt
+ * checks it against printf: every value below 10^6 and a sample above).
+ */
+static inline __m128i digits8_sse2(uint32_t x)
+{
+	assert(x < 100000000u);
+	const __m128i div10000 = _mm_set1_epi32((int)0xd1b71759u);
+	const __m128i ten4 = _mm_set1_epi32(10000);
+	/* 10^3, 10^2, 10, 1 as reciprocals (2^23 / 10^3 rounded up, ...) */
+	const __m128i div_powers = _mm_setr_epi16(8389, 5243, 13108, (short)32768, 8389, 5243,
+						  13108, (short)32768);
+	/* the shifts that go with them: 2^-(23+2-16), 2^-(19+2-16), 2^-3, 2^-1 of 2^16 */
+	const __m128i shift_powers = _mm_setr_epi16(1 << 7, 1 << 11, 1 << 13, (short)(1 << 15),
+						    1 << 7, 1 << 11, 1 << 13, (short)(1 << 15));
+	__m128i abcdefgh = _mm_cvtsi32_si128((int)x);
+	__m128i abcd = _mm_srli_epi64(_mm_mul_epu32(abcdefgh, div10000), 45);
+	__m128i efgh = _mm_sub_epi32(abcdefgh, _mm_mul_epu32(abcd, ten4));
+	__m128i v1 = _mm_slli_epi64(_mm_unpacklo_epi16(abcd, efgh), 2); /* times 4 */
+	__m128i v2a = _mm_unpacklo_epi16(v1, v1);
+	__m128i v2 = _mm_unpacklo_epi32(v2a, v2a); /* abcd x4 in lanes 0-3, efgh x4 in 4-7 */
+	__m128i v4 = _mm_mulhi_epu16(_mm_mulhi_epu16(v2, div_powers), shift_powers);
+	/* a, ab, abc, abcd, e, ef, efg, efgh: less ten times the lane before */
+	__m128i v6 = _mm_slli_epi64(_mm_mullo_epi16(v4, _mm_set1_epi16(10)), 16);
+	return _mm_sub_epi16(v4, v6);
+}
+#endif
+
+/* The 16 digits of x < 10^16 as text into out (16 bytes, no NUL);
+ * returns how many of them are trailing zeros (16 for x = 0). */
+static inline int digits16(uint64_t x, char *out)
+{
+	assert(x < 10000000000000000u);
+	uint32_t hi = (uint32_t)(x / 100000000u), lo = (uint32_t)(x - (uint64_t)hi * 100000000u);
+#if defined(__SSE2__)
+	__m128i dg = _mm_packus_epi16(digits8_sse2(hi), digits8_sse2(lo));
+	unsigned zeros = (unsigned)_mm_movemask_epi8(_mm_cmpeq_epi8(dg, _mm_setzero_si128()));
+	_mm_storeu_si128((__m128i *)(void *)out, _mm_add_epi8(dg, _mm_set1_epi8('0')));
+	/* bit i is digit i being zero: the run of ones from bit 15 down */
+	return __builtin_clz(~(zeros << 16));
+#else
+	uint64_t w1 = digits8(hi), w2 = digits8(lo);
+	uint64_t a1 = w1 + ASCII_ZEROS8, a2 = w2 + ASCII_ZEROS8;
+	memcpy(out, &a1, 8);
+	memcpy(out + 8, &a2, 8);
+	/* the zero bytes at the top of the words */
+	return w2 != 0 ? lz64(w2) / 8 : 8 + lz64(w1) / 8;
+#endif
+}
+
+int numfmt_digits16(uint64_t x, char out[17])
+{
+	int tz = digits16(x, out);
+	out[16] = '\0';
+	return tz;
 }
 
 /*
@@ -136,19 +205,12 @@ __attribute__((always_inline)) static inline int layout(char *buf, bool neg, uin
 	assert(Q >= POW10[16]);
 	assert(Q < POW10[17]);
 	uint64_t d0 = Q / POW10[16]; /* constant divisors: multiplications */
-	uint64_t low = Q - d0 * POW10[16];
-	uint64_t hi8 = low / 100000000u;
-	uint64_t w1 = digits8((uint32_t)hi8), w2 = digits8((uint32_t)(low - hi8 * 100000000u));
-	/* Trailing zeros: the zero bytes at the top of the words. The first
-	 * digit is not zero. */
-	int tz = w2 != 0 ? lz64(w2) / 8 : 8 + lz64(w1) / 8;
-	int n = 17 - tz; /* significant digits, 1..P */
 	/* the 17 digits, then '0's (read by the fixed-length copies below) */
 	char d[40];
-	uint64_t a1 = w1 + ASCII_ZEROS8, a2 = w2 + ASCII_ZEROS8, z8 = ASCII_ZEROS8;
 	d[0] = (char)('0' + d0);
-	memcpy(d + 1, &a1, 8);
-	memcpy(d + 9, &a2, 8);
+	/* trailing zeros; the first digit is not zero */
+	int n = 17 - digits16(Q - d0 * POW10[16], d + 1); /* significant digits, 1..P */
+	uint64_t z8 = ASCII_ZEROS8;
 	memcpy(d + 17, &z8, 8);
 	memcpy(d + 25, &z8, 8);
 	buf[0] = '-';

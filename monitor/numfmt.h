@@ -35,6 +35,11 @@ int numfmt_full_printf(double v, char *buf, size_t buf_size);
  * word-at-a-time conversion numfmt_full uses (exposed for its test). */
 void numfmt_digits8(uint32_t x, char out[9]);
 
+/* The 16 digits of x < 10^16, zero-padded and NUL-terminated, as the
+ * layout of numfmt_full makes them (SSE2 where the compiler has it);
+ * returns the number of trailing zeros (16 for 0). For its test. */
+int numfmt_digits16(uint64_t x, char out[17]);
+
 /* Writes v for a person to read: a percentage (unit "%") to 0.1, anything
  * else to 4 significant figures (%.4g: 1235, 3.457, 0.04231), "-" when not
  * finite, never "-0". unit may be NULL. Returns the length written. */

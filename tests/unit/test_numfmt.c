@@ -76,6 +76,12 @@ static void test_duration_is_h_mm_ss(void **state)
 
 static uint64_t rng = 0x853c49e6748fea9bu;
 
+static const uint64_t POW10_TEST[17] = {
+	1u, 10u, 100u, 1000u, 10000u, 100000u, 1000000u, 10000000u, 100000000u, 1000000000u,
+	10000000000u, 100000000000u, 1000000000000u, 10000000000000u, 100000000000000u,
+	1000000000000000u, 10000000000000000u,
+};
+
 static uint64_t next_u64(void)
 {
 	rng ^= rng >> 12;
@@ -334,6 +340,44 @@ static void test_digits8_matches_printf(void **state)
 	assert_string_equal(a, "10000000");
 }
 
+/* The 16 digits of the layout and their trailing zeros agree with
+ * printf's %016llu: every 8-digit half below 10^6 (with the other half
+ * random), the ends of the range, powers of ten and random values. */
+static void test_digits16_matches_printf(void **state)
+{
+	(void)state;
+	char a[17], b[32];
+	for (int i = 0; i < 3000000; i++) {
+		uint64_t x;
+		if (i < 1000000)
+			x = (uint64_t)i + (next_u64() % 100000000u) * 100000000u;
+		else if (i < 2000000)
+			x = (uint64_t)(i - 1000000) * 100000000u + next_u64() % 100000000u;
+		else
+			x = next_u64() % 10000000000000000u;
+		if (i % 7 == 0) /* trailing zeros of every length */
+			x -= x % POW10_TEST[next_u64() % 17u];
+		int tz = numfmt_digits16(x, a);
+		snprintf(b, sizeof b, "%016llu", (unsigned long long)x);
+		if (strcmp(a, b) != 0)
+			fail_msg("%llu: \"%s\"", (unsigned long long)x, a);
+		int want = 0;
+		while (want < 16 && b[15 - want] == '0')
+			want++;
+		assert_int_equal(tz, want);
+	}
+	for (int k = 0; k < 16; k++) {
+		numfmt_digits16(POW10_TEST[k], a);
+		snprintf(b, sizeof b, "%016llu", (unsigned long long)POW10_TEST[k]);
+		assert_string_equal(a, b);
+		assert_int_equal(numfmt_digits16(POW10_TEST[k], a), k); /* 10^k: k zeros after the 1 */
+	}
+	assert_int_equal(numfmt_digits16(0, a), 16);
+	assert_string_equal(a, "0000000000000000");
+	assert_int_equal(numfmt_digits16(9999999999999999u, a), 0);
+	assert_string_equal(a, "9999999999999999");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -349,6 +393,7 @@ int main(void)
 		cmocka_unit_test(test_full_every_binade_of_the_fast_paths_matches_printf),
 		cmocka_unit_test(test_full_layouts),
 		cmocka_unit_test(test_digits8_matches_printf),
+		cmocka_unit_test(test_digits16_matches_printf),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
