@@ -178,15 +178,16 @@ static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 	const uint64_t exp_mask = (uint64_t)0x7ff << 52;
 	if ((bits & exp_mask) == exp_mask) /* not finite (NaN): an empty field */
 		return p;
-	if (bits == w->last_bits[c] && w->last_len[c] > 0) {
-		memcpy(p, w->last_text[c], NUMFMT_FULL_SIZE);
-		return p + w->last_len[c];
+	struct results_last *last = &w->last[c];
+	if (bits == last->bits) { /* never before the first: a NaN is not written */
+		memcpy(p, last->text, NUMFMT_FULL_SIZE);
+		return p + last->len;
 	}
 	struct results_seen *seen = &w->seen[(bits * 0x9e3779b97f4a7c15u) >> 60];
 	int n;
 	if (seen->row == w->row_no && seen->bits == bits) {
-		memcpy(p, w->last_text[seen->col], NUMFMT_FULL_SIZE);
-		n = w->last_len[seen->col];
+		memcpy(p, w->last[seen->col].text, NUMFMT_FULL_SIZE);
+		n = (int)w->last[seen->col].len;
 	} else {
 		n = numfmt_full(v, p, NUMFMT_FULL_SIZE);
 		assert((unsigned)n - 1u < NUMFMT_FULL_SIZE - 1u); /* 1..NUMFMT_FULL_SIZE - 1 */
@@ -194,9 +195,9 @@ static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 		seen->bits = bits;
 		seen->col = c;
 	}
-	memcpy(w->last_text[c], p, NUMFMT_FULL_SIZE); /* numfmt_full wrote as much */
-	w->last_bits[c] = bits;
-	w->last_len[c] = (uint8_t)n;
+	memcpy(last->text, p, NUMFMT_FULL_SIZE); /* numfmt_full wrote as much */
+	last->bits = bits;
+	last->len = (uint64_t)n;
 	return p + n;
 }
 
@@ -304,9 +305,7 @@ static void free_buffers(struct results_writer *w)
 		free(w->chunks[i].codes);
 	}
 	free(w->out);
-	free(w->last_bits);
-	free(w->last_text);
-	free(w->last_len);
+	free(w->last);
 }
 
 int results_writer_start(struct results_writer *w, FILE *f, const struct fg_config *cfg,
@@ -350,11 +349,11 @@ int results_writer_start(struct results_writer *w, FILE *f, const struct fg_conf
 		ok = ok && w->chunks[i].v != NULL && w->chunks[i].codes != NULL;
 	}
 	w->out = malloc(RESULTS_OUT_SIZE);
-	w->last_bits = calloc(ncol, sizeof *w->last_bits);
-	w->last_text = calloc(ncol, sizeof *w->last_text);
-	w->last_len = calloc(ncol, sizeof *w->last_len);
-	if (!ok || w->out == NULL || w->last_bits == NULL || w->last_text == NULL ||
-	    w->last_len == NULL) {
+	w->last = calloc(ncol, sizeof *w->last);
+	if (w->last != NULL)
+		for (size_t i = 0; i < ncol; i++)
+			w->last[i].bits = UINT64_MAX; /* a NaN: no number repeats it */
+	if (!ok || w->out == NULL || w->last == NULL) {
 		free_buffers(w);
 		memset(w, 0, sizeof *w);
 		return -ENOMEM;

@@ -85,9 +85,13 @@ struct results_writer {
 	char *out;                  /* RESULTS_OUT_SIZE bytes */
 	size_t out_len;
 	int out_err;                /* the formatter's write error, published as err */
-	uint64_t *last_bits;        /* col_count: the last number of each column... */
-	char (*last_text)[NUMFMT_FULL_SIZE]; /* ...and its text, reused while it repeats */
-	uint8_t *last_len;
+	/* col_count: the last number of each column and its text, reused
+	 * while it repeats (bits all ones, a NaN, before the first) */
+	struct results_last {
+		uint64_t bits;
+		uint64_t len;
+		char text[NUMFMT_FULL_SIZE];
+	} *last;
 	/* Numbers of the row being formatted, by a hash of their bits: the
 	 * column whose cache holds the text (row_no tells this row's apart). */
 	uint64_t row_no;
