@@ -105,6 +105,8 @@ static void flush_out(struct results_writer *w)
 	if (w->out_err == 0 && fwrite(w->out, 1, w->out_len, w->f) != w->out_len)
 		w->out_err = errno != 0 ? -errno : -EIO;
 	w->out_len = 0;
+	for (unsigned c = 0; c < w->col_count; c++) /* their texts are gone */
+		w->last[c].bits = UINT64_MAX;
 }
 
 /* A text column: its ",name" copied whole (RESULTS_WORD_SIZE bytes; the
@@ -165,11 +167,15 @@ static char *put_time(struct results_writer *w, char *p, int64_t t_ms)
 	return p;
 }
 
-/* Number c of a row: from the column's cache when it repeats the column's
- * last number, else from another column's when the row already had this
- * number (flood_index often equals flood_pct, jet_flood_pct too), else
- * formatted. The same double gives the same text, so nothing changes but
- * the time taken. */
+/* Number c of a row: copied from the column's last text when it repeats
+ * the column's last number, else from another column's when the row
+ * already had this number (flood_index often equals flood_pct,
+ * jet_flood_pct too), else formatted. The same double gives the same
+ * text, so nothing changes but the time taken. The texts are read where
+ * they were written in the output block (a row or more back, long
+ * stored; NUMFMT_FULL_SIZE bytes, by memmove: the same row's may be
+ * nearer than that), not kept in a copy: a copy would read back
+ * numfmt_full's fresh stores of every number, which stalls. */
 static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 {
 	*p++ = ',';
@@ -179,25 +185,27 @@ static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 	if ((bits & exp_mask) == exp_mask) /* not finite (NaN): an empty field */
 		return p;
 	struct results_last *last = &w->last[c];
-	if (bits == last->bits) { /* never before the first: a NaN is not written */
-		memcpy(p, last->text, NUMFMT_FULL_SIZE);
+	if (bits == last->bits) { /* a NaN never matches: none yet, or written out */
+		memmove(p, w->out + last->off, NUMFMT_FULL_SIZE);
 		return p + last->len;
 	}
 	struct results_seen *seen = &w->seen[(bits * 0x9e3779b97f4a7c15u) >> 60];
-	int n;
+	uint32_t n;
 	if (seen->row == w->row_no && seen->bits == bits) {
-		memcpy(p, w->last[seen->col].text, NUMFMT_FULL_SIZE);
-		n = (int)w->last[seen->col].len;
+		const struct results_last *other = &w->last[seen->col];
+		memmove(p, w->out + other->off, NUMFMT_FULL_SIZE);
+		n = other->len;
 	} else {
-		n = numfmt_full(v, p, NUMFMT_FULL_SIZE);
-		assert((unsigned)n - 1u < NUMFMT_FULL_SIZE - 1u); /* 1..NUMFMT_FULL_SIZE - 1 */
+		int len = numfmt_full(v, p, NUMFMT_FULL_SIZE);
+		assert((unsigned)len - 1u < NUMFMT_FULL_SIZE - 1u); /* 1..NUMFMT_FULL_SIZE - 1 */
+		n = (uint32_t)len;
 		seen->row = w->row_no;
 		seen->bits = bits;
 		seen->col = c;
 	}
-	memcpy(last->text, p, NUMFMT_FULL_SIZE); /* numfmt_full wrote as much */
 	last->bits = bits;
-	last->len = (uint64_t)n;
+	last->off = (uint32_t)(p - w->out);
+	last->len = n;
 	return p + n;
 }
 

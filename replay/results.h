@@ -85,12 +85,12 @@ struct results_writer {
 	char *out;                  /* RESULTS_OUT_SIZE bytes */
 	size_t out_len;
 	int out_err;                /* the formatter's write error, published as err */
-	/* col_count: the last number of each column and its text, reused
-	 * while it repeats (bits all ones, a NaN, before the first) */
+	/* col_count: the last number of each column and where its text is in
+	 * the output block, reused while it repeats (bits all ones, a NaN,
+	 * before the first and after the block is written out) */
 	struct results_last {
 		uint64_t bits;
-		uint64_t len;
-		char text[NUMFMT_FULL_SIZE];
+		uint32_t off, len;
 	} *last;
 	/* Numbers of the row being formatted, by a hash of their bits: the
 	 * column whose cache holds the text (row_no tells this row's apart). */

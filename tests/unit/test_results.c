@@ -74,8 +74,8 @@ static int64_t next_time(int64_t t_ms, bool jumpy)
 	return next < TIMEFMT_MIN_MS || next > TIMEFMT_MAX_MS ? t_ms + 1000 : next;
 }
 
-static void compare_writers_times(const char *cfg_path, unsigned rows, bool threaded,
-				  bool jumpy)
+static void compare_writers_rows(const char *cfg_path, unsigned rows, bool threaded, bool jumpy,
+				 unsigned steady_from)
 {
 	struct fg_config *cfg = malloc(sizeof *cfg);
 	assert_non_null(cfg);
@@ -96,7 +96,7 @@ static void compare_writers_times(const char *cfg_path, unsigned rows, bool thre
 	}
 	int64_t t_ms = 1767225600000; /* 2026-01-01 */
 	for (unsigned r = 0; r < rows; r++) {
-		for (unsigned s = 0; s < cfg->section_count; s++) {
+		for (unsigned s = 0; s < cfg->section_count && r < steady_from; s++) {
 			for (int i = 0; i < RF_COUNT; i++)
 				res[s].v[i] = pick_value(res[s].v[i]);
 			for (int k = 0; k < 4; k++) { /* the same number in other columns of the row */
@@ -123,9 +123,25 @@ static void compare_writers_times(const char *cfg_path, unsigned rows, bool thre
 	free(cfg);
 }
 
+static void compare_writers_times(const char *cfg_path, unsigned rows, bool threaded,
+				  bool jumpy)
+{
+	compare_writers_rows(cfg_path, rows, threaded, jumpy, rows);
+}
+
 static void compare_writers(const char *cfg_path, unsigned rows, bool threaded)
 {
 	compare_writers_times(cfg_path, rows, threaded, false);
+}
+
+/* Every number held from row 3 on for thousands of rows: the output block
+ * is written out several times while each column repeats its text (the
+ * writer must not reuse text from a block already written out). */
+static void test_writer_repeats_held_numbers_across_blocks(void **state)
+{
+	(void)state;
+	compare_writers_rows("configs/demo.ini", 6000, false, false, 3);
+	compare_writers_rows("configs/demo-contactors.ini", 6000, true, false, 3);
 }
 
 /* Times that jump over midnight, back, and across the whole range (year
@@ -227,6 +243,7 @@ int main(void)
 		cmocka_unit_test(test_writer_in_one_thread_writes_what_write_row_writes),
 		cmocka_unit_test(test_writer_thread_writes_what_write_row_writes),
 		cmocka_unit_test(test_writer_writes_any_time_as_timefmt_does),
+		cmocka_unit_test(test_writer_repeats_held_numbers_across_blocks),
 		cmocka_unit_test(test_writer_reports_a_failed_write),
 		cmocka_unit_test(test_writer_refuses_a_time_it_cannot_write),
 	};
