@@ -14,7 +14,14 @@
  *                                    engine_step per row and per
  *                                    section-sample (with the alarms)
  *
- * Samples for `engine` swing each tag between 0.6 and 1.05 of its nominal
+ *   benchtool fmt CONFIG             results.csv's formatting alone, on the
+ *                                    results the engine gives for the
+ *                                    pre-parsed samples: numfmt_full per
+ *                                    number (and its printf definition), and
+ *                                    the replay's results writer per row in
+ *                                    one thread, written to /dev/null
+ *
+ * Samples for `engine` and `fmt` swing each tag between 0.6 and 1.05 of its nominal
  * value over an hour with 1 % noise, from a fixed seed: the steady load a
  * monitor mostly sees, with the excursions that move the solvers.
  */
@@ -27,7 +34,9 @@
 #include "config.h"
 #include "engine.h"
 #include "histread.h"
+#include "numfmt.h"
 #include "point.h"
+#include "results.h"
 
 #define SAMPLES 20000
 
@@ -241,12 +250,89 @@ static int cmd_engine(int argc, char **argv)
 	return 0;
 }
 
+static int cmd_fmt(const char *cfg_path)
+{
+	struct fg_config *cfg = load(cfg_path);
+	unsigned sc = cfg->section_count;
+	struct engine *e = malloc(sizeof *e);
+	double *vals = malloc(sizeof(double) * SAMPLES * cfg->tag_count);
+	struct section_result *res = malloc(sizeof *res * SAMPLES * (sc > 0 ? sc : 1));
+	double *nums = malloc(sizeof(double) * SAMPLES * (sc > 0 ? sc : 1) * RF_COUNT);
+	FILE *null = fopen("/dev/null", "w");
+	if (e == NULL || vals == NULL || res == NULL || nums == NULL || null == NULL)
+		return 1;
+	static enum tag_status status[FG_TAGS_MAX];
+	for (unsigned t = 0; t < cfg->tag_count; t++)
+		status[t] = TAG_STATUS_FRESH;
+	fill_samples(cfg, vals);
+	engine_init(e, cfg);
+	const int64_t t0_ms = 1767225600000;
+	size_t nn = 0; /* the numbers results.csv writes: the fields that apply, not empty */
+	for (unsigned i = 0; i < SAMPLES; i++) {
+		engine_step(e, t0_ms + 1000 * (int64_t)i, vals + (size_t)i * cfg->tag_count, status);
+		engine_events_clear(e);
+		for (unsigned s = 0; s < sc; s++) {
+			res[(size_t)i * sc + s] = e->sec[s].r;
+			for (int f = 0; f < RF_COUNT; f++)
+				if (section_type_has_field(cfg->sections[s].geom.type, f) &&
+				    isfinite(e->sec[s].r.v[f]))
+					nums[nn++] = e->sec[s].r.v[f];
+		}
+	}
+	char buf[NUMFMT_FULL_SIZE];
+	size_t sink = 0;
+	double best = INFINITY, best_printf = INFINITY, best_row = INFINITY;
+	for (int rep = 0; rep < 5; rep++) {
+		double t0 = now_s();
+		for (size_t k = 0; k < nn; k++)
+			sink += (size_t)numfmt_full(nums[k], buf, sizeof buf);
+		best = fmin(best, now_s() - t0);
+	}
+	for (int rep = 0; rep < 2; rep++) {
+		double t0 = now_s();
+		for (size_t k = 0; k < nn; k++)
+			sink += (size_t)numfmt_full_printf(nums[k], buf, sizeof buf);
+		best_printf = fmin(best_printf, now_s() - t0);
+	}
+	static struct results_writer w;
+	const struct section_result *rp[FG_SECTIONS_MAX];
+	for (int rep = 0; rep < 5; rep++) {
+		double t0 = now_s();
+		if (results_writer_start(&w, null, cfg, false) != 0)
+			return 1;
+		for (unsigned i = 0; i < SAMPLES; i++) {
+			for (unsigned s = 0; s < sc; s++)
+				rp[s] = &res[(size_t)i * sc + s];
+			if (results_writer_row(&w, t0_ms + 1000 * (int64_t)i, rp) != 0)
+				return 1;
+		}
+		if (results_writer_finish(&w) != 0)
+			return 1;
+		best_row = fmin(best_row, now_s() - t0);
+	}
+	printf("%s (%u sections, %d rows, %zu numbers to write):\n", cfg_path, sc, SAMPLES, nn);
+	printf("  numfmt_full: %.1f ns per number (its printf definition: %.1f ns)\n",
+	       best / (double)nn * 1e9, best_printf / (double)nn * 1e9);
+	printf("  results writer, one thread, to /dev/null: %.0f ns per row (check %zu)\n",
+	       best_row / SAMPLES * 1e9, sink % 1000u);
+	fclose(null);
+	free(nums);
+	free(res);
+	free(vals);
+	free(e);
+	free(cfg);
+	return 0;
+}
+
 int main(int argc, char **argv)
 {
 	if (argc == 4 && strcmp(argv[1], "read") == 0)
 		return cmd_read(argv[2], argv[3]);
 	if (argc >= 3 && strcmp(argv[1], "engine") == 0)
 		return cmd_engine(argc - 2, argv + 2);
-	fprintf(stderr, "usage: benchtool read CONFIG DATA.csv | benchtool engine CONFIG...\n");
+	if (argc == 3 && strcmp(argv[1], "fmt") == 0)
+		return cmd_fmt(argv[2]);
+	fprintf(stderr, "usage: benchtool read CONFIG DATA.csv | benchtool engine CONFIG... |"
+			" benchtool fmt CONFIG\n");
 	return 2;
 }
