@@ -4,7 +4,6 @@
 #include "engine.h"
 
 #include <assert.h>
-#include <stddef.h>
 #include <math.h>
 #include <string.h>
 
@@ -255,60 +254,17 @@ static void validate_tags(struct engine *e, int64_t t_ms, const double *values,
 		validate_tag(e, i, t_ms, values, status);
 }
 
-/* The tags the sections of mask read, worked out once per mask. */
-static void premodel_tags_for(struct engine *e, uint64_t mask)
-{
-	const struct fg_config *cfg = e->cfg;
-	if (mask == e->premodel_mask)
-		return;
-	memset(e->premodel_tag, 0, sizeof e->premodel_tag);
-	e->premodel_tag_count = 0;
-	for (unsigned i = 0; i < cfg->section_count; i++)
-		if (mask >> i & 1u)
-			for (int k = 0; k < SIGNAL_COUNT; k++) {
-				int t = cfg->sections[i].signal[k];
-				if (t >= 0 && !e->premodel_tag[t]) {
-					e->premodel_tag[t] = true;
-					e->premodel_tag_count++;
-				}
-			}
-	e->premodel_mask = mask;
-}
-
-unsigned engine_premodel_tag_count(struct engine *e, uint64_t mask)
-{
-	assert(e != NULL);
-	premodel_tags_for(e, mask);
-	return e->premodel_tag_count;
-}
-
-/* What of a tag's state moves with it from one engine to the other: all but
- * the historian's status text, which each engine is given itself. */
-#define TAG_STATE_MOVED offsetof(struct tag_state, status_text)
-
 void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 		       const enum tag_status *status, uint64_t mask,
-		       const struct engine_premodel *pre, const struct tag_state *pre_tags)
+		       const struct engine_premodel *pre)
 {
 	assert(e != NULL);
 	assert(values != NULL);
 	assert(status != NULL);
-	assert(mask == 0 || (pre != NULL && pre_tags != NULL));
+	assert(mask == 0 || pre != NULL);
 	const struct fg_config *cfg = e->cfg;
 	e->event_count = 0;
-	if (mask == 0) {
-		validate_tags(e, t_ms, values, status);
-	} else {
-		/* The tags checked ahead come with their state; the rest are
-		 * checked here. */
-		premodel_tags_for(e, mask);
-		unsigned j = 0;
-		for (unsigned i = 0; i < cfg->tag_count; i++)
-			if (e->premodel_tag[i])
-				memcpy(&e->tags[i], &pre_tags[j++], TAG_STATE_MOVED);
-			else
-				validate_tag(e, i, t_ms, values, status);
-	}
+	validate_tags(e, t_ms, values, status);
 	unsigned k = 0;
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		if (mask >> i & 1u)
@@ -323,27 +279,32 @@ void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 void engine_step(struct engine *e, int64_t t_ms, const double *values,
 		 const enum tag_status *status)
 {
-	engine_step_ahead(e, t_ms, values, status, 0, NULL, NULL);
+	engine_step_ahead(e, t_ms, values, status, 0, NULL);
 }
 
 void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
-		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out,
-		     struct tag_state *out_tags)
+		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out)
 {
 	assert(ahead != NULL);
 	assert(values != NULL);
 	assert(status != NULL);
-	assert(mask == 0 || (out != NULL && out_tags != NULL));
+	assert(out != NULL || mask == 0);
 	/* Only the tags these sections read: each tag's checks depend on its
-	 * own samples alone, and the other engine checks the rest. */
+	 * own samples alone, and the other engine checks them all. Which tags
+	 * those are is worked out once per mask, not per row. */
 	const struct fg_config *cfg = ahead->cfg;
-	premodel_tags_for(ahead, mask);
-	unsigned j = 0;
+	if (mask != ahead->premodel_mask) {
+		memset(ahead->premodel_tag, 0, sizeof ahead->premodel_tag);
+		for (unsigned i = 0; i < cfg->section_count; i++)
+			if (mask >> i & 1u)
+				for (int k = 0; k < SIGNAL_COUNT; k++)
+					if (cfg->sections[i].signal[k] >= 0)
+						ahead->premodel_tag[cfg->sections[i].signal[k]] = true;
+		ahead->premodel_mask = mask;
+	}
 	for (unsigned i = 0; i < cfg->tag_count; i++)
-		if (ahead->premodel_tag[i]) {
+		if (ahead->premodel_tag[i])
 			validate_tag(ahead, i, t_ms, values, status);
-			memcpy(&out_tags[j++], &ahead->tags[i], TAG_STATE_MOVED);
-		}
 	unsigned k = 0;
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		if (mask >> i & 1u) {

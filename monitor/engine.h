@@ -63,7 +63,6 @@ struct engine {
 	 * worked out for (0 before the first call: no tags) */
 	uint64_t premodel_mask;
 	bool premodel_tag[FG_TAGS_MAX];
-	unsigned premodel_tag_count;
 };
 
 /* Sets e up for cfg. Returns 0 (it cannot fail on a config that loaded). */
@@ -91,22 +90,17 @@ struct engine_premodel {
  * the same config) given exactly the rows e will be given, in order: for
  * the sections whose bit is set in mask (bit si) it checks their tags as
  * engine_step does and evaluates them whole (models, soft sensors, the
- * loop's learned circulation), out[k] for the k-th set bit, and leaves the
- * state of those tags, in tag order, in out_tags
- * (engine_premodel_tag_count(mask) of them).
- * engine_step_ahead then steps e with those sections and tags taken from out
- * and out_tags (the sections' state stays with `ahead`), the rest and the
- * alarms as engine_step: the same results and events bit for bit, because
- * a section depends only on its own tags and its own state, and a tag only
- * on its own samples, which see the same rows in the same order whichever
- * engine holds them. The historian's status text stays each engine's own. */
-unsigned engine_premodel_tag_count(struct engine *e, uint64_t mask);
+ * loop's learned circulation), out[k] for the k-th set bit.
+ * engine_step_ahead then steps e with those sections taken from out (their
+ * state stays with `ahead`), the rest and the alarms as engine_step: the
+ * same results and events bit for bit, because a section depends only on
+ * its own tags and its own state, which sees the same rows in the same
+ * order whichever engine holds it. */
 void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
-		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out,
-		     struct tag_state *out_tags);
+		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out);
 void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 		       const enum tag_status *status, uint64_t mask,
-		       const struct engine_premodel *pre, const struct tag_state *pre_tags);
+		       const struct engine_premodel *pre);
 
 /* The historian's status text for tag ti, kept with its next TAG_STATUS_BAD
  * sample and copied into the events that sample causes (cut to fit). NULL or

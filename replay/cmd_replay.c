@@ -62,8 +62,6 @@ struct replay {
 	uint64_t rd_rows_used;
 	int64_t rd_prev_t_ms;
 	const struct engine_premodel *cur_pre; /* this row's, NULL: evaluate here */
-	const struct tag_state *cur_tags; /* the state of the tags checked ahead */
-	unsigned ahead_tags;              /* how many tags the reader checks */
 	uint64_t bytes_first;             /* size of a single data file (progress) */
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
@@ -556,7 +554,7 @@ static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 		    const enum tag_status *status)
 {
 	engine_step_ahead(rp->eng, t_ms, values, status, rp->cur_pre != NULL ? rp->ahead_mask : 0,
-			  rp->cur_pre, rp->cur_tags);
+			  rp->cur_pre);
 	const struct section_result *res[FG_SECTIONS_MAX];
 	for (unsigned s = 0; s < rp->cfg->section_count; s++)
 		res[s] = &rp->eng->sec[s].r;
@@ -842,15 +840,8 @@ static void publish(struct replay *rp, int end_rc)
 /* What the reader thread worked out ahead for one row (rowq_extra). */
 struct ahead_row {
 	bool used;                        /* use_row will take the row */
-	struct engine_premodel pre[];     /* ahead_count, when used; then the
-					   * ahead_tags tags' states */
+	struct engine_premodel pre[];     /* ahead_count, when used */
 };
-
-static struct tag_state *ahead_tags(const struct replay *rp, const struct ahead_row *x)
-{
-	return (struct tag_state *)(void *)((char *)(void *)x->pre +
-					    rp->ahead_count * sizeof(struct engine_premodel));
-}
 
 static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
 		       const double *values, const enum tag_status *status)
@@ -860,8 +851,7 @@ static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
 		return;
 	rp->rd_rows_used++;
 	rp->rd_prev_t_ms = t_ms;
-	engine_premodel(rp->ahead, t_ms, values, status, rp->ahead_mask, x->pre,
-			ahead_tags(rp, x));
+	engine_premodel(rp->ahead, t_ms, values, status, rp->ahead_mask, x->pre);
 }
 
 /* The sections the reader thread evaluates: the heaviest first, each to
@@ -957,7 +947,6 @@ static int engine_side(struct replay *rp)
 			if (rp->ahead_mask != 0) {
 				const struct ahead_row *x = rowq_extra(&rp->q, c, r);
 				rp->cur_pre = x->used ? x->pre : NULL;
-				rp->cur_tags = ahead_tags(rp, x);
 			}
 			if (use_row(rp, row->t_ms, rowq_values(&rp->q, c, r),
 				    rowq_status(&rp->q, c, r)) != 0) {
@@ -983,23 +972,18 @@ static int run_threaded(struct replay *rp)
 	choose_ahead(rp);
 	rp->ahead = rp->ahead_mask != 0 ? malloc(sizeof *rp->ahead) : NULL;
 	bool bad = rowq_init(&rp->q, rp->cfg->tag_count) != 0;
-	if (!bad && rp->ahead_mask != 0) {
-		bad = rp->ahead == NULL;
-		if (!bad) {
-			engine_init(rp->ahead, rp->cfg);
-			rp->ahead_tags = engine_premodel_tag_count(rp->ahead, rp->ahead_mask);
-			bad = rowq_set_extra(&rp->q,
-					     sizeof(struct ahead_row) +
-						     rp->ahead_count * sizeof(struct engine_premodel) +
-						     rp->ahead_tags * sizeof(struct tag_state)) != 0;
-		}
-	}
+	if (!bad && rp->ahead_mask != 0)
+		bad = rp->ahead == NULL ||
+		      rowq_set_extra(&rp->q, sizeof(struct ahead_row) +
+					     rp->ahead_count * sizeof(struct engine_premodel)) != 0;
 	if (bad) {
 		rowq_fini(&rp->q);
 		free(rp->ahead);
 		fprintf(stderr, "floodgauge replay: out of memory\n");
 		return EXIT_RUNTIME;
 	}
+	if (rp->ahead != NULL)
+		engine_init(rp->ahead, rp->cfg);
 	rp->rd_rows_used = 0;
 	rp->rd_prev_t_ms = 0;
 	pthread_t reader;

@@ -138,7 +138,6 @@ static double engine_section_ns(const struct fg_config *cfg, unsigned si, const 
 				const enum tag_status *status)
 {
 	static struct engine e;
-	static struct tag_state tags[FG_TAGS_MAX];
 	struct engine_premodel out;
 	double best = INFINITY, sink = 0.0;
 	for (int rep = 0; rep < 5; rep++) {
@@ -147,7 +146,7 @@ static double engine_section_ns(const struct fg_config *cfg, unsigned si, const 
 		double t0 = now_s();
 		for (unsigned i = 0; i < SAMPLES; i++, t_ms += 1000) {
 			engine_premodel(&e, t_ms, vals + (size_t)i * cfg->tag_count, status,
-					1ull << si, &out, tags);
+					1ull << si, &out);
 			sink += out.r.v[RF_FLOOD_INDEX];
 		}
 		best = fmin(best, now_s() - t0);

@@ -146,8 +146,6 @@ static void test_models_worked_out_ahead_give_the_same_results(void **state)
 	struct rig *b = __real_calloc(1, sizeof(*b));
 	struct engine *ahead = __real_calloc(1, sizeof(*ahead));
 	struct engine_premodel *pre = __real_calloc(FG_SECTIONS_MAX, sizeof(*pre));
-	struct tag_state *pre_tags = __real_calloc(FG_TAGS_MAX, sizeof(*pre_tags));
-	assert_non_null(pre_tags);
 	assert_non_null(b);
 	assert_non_null(ahead);
 	assert_non_null(pre);
@@ -168,12 +166,11 @@ static void test_models_worked_out_ahead_give_the_same_results(void **state)
 			a->status[dp] = b->status[dp] =
 				i > 600 && i < 700 ? TAG_STATUS_BAD : TAG_STATUS_FRESH;
 			engine_step(&a->eng, i * 1000, a->values, a->status);
-			engine_premodel(ahead, i * 1000, b->values, b->status, mask, pre, pre_tags);
-			engine_step_ahead(&b->eng, i * 1000, b->values, b->status, mask, pre,
-					  pre_tags);
-			/* every tag as checked by the plain engine, those checked
-			 * ahead handed over whole (all but the status text) */
-			const size_t from = offsetof(struct tag_state, saturable); /* after cfg */
+			engine_premodel(ahead, i * 1000, b->values, b->status, mask, pre);
+			engine_step_ahead(&b->eng, i * 1000, b->values, b->status, mask, pre);
+			/* every tag's state as the plain engine has it (all but
+			 * the configuration pointer and the status text) */
+			const size_t from = offsetof(struct tag_state, saturable);
 			for (unsigned t = 0; t < a->cfg.tag_count; t++)
 				assert_memory_equal((const char *)&a->eng.tags[t] + from,
 						    (const char *)&b->eng.tags[t] + from,
@@ -203,7 +200,6 @@ static void test_models_worked_out_ahead_give_the_same_results(void **state)
 		}
 	}
 	free(pre);
-	free(pre_tags);
 	free(ahead);
 	free(b);
 }
