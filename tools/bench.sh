@@ -65,6 +65,10 @@ echo "engine, tight loop over pre-parsed samples:"
 "$TOOLS/benchtool" engine $CFG configs/demo.ini configs/demo-contactors.ini | sed 's/^/  /'
 echo "  (target: under 500 ns per section-sample on average over the types)"
 
+# 4b. results.csv's formatting on its own (the writer thread's work)
+echo "results.csv formatting, one thread:"
+"$TOOLS/benchtool" fmt $CFG | sed 's/^/  /'
+
 # 5. peak RSS of replay, 1 M and 5 M rows
 /usr/bin/time -f "%M" -o "$DIR/t5" "$FG" replay -c $CFG "$DIR/5m.csv" --out "$DIR/o5" \
 	--no-results >/dev/null
