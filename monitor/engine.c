@@ -91,7 +91,7 @@ static double dp_exponent(const struct section_cfg *s, const struct section_resu
 	return r->dp_model_exponent;
 }
 
-static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms, double exponent)
+static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms)
 {
 	const struct section_cfg *s = &e->cfg->sections[si];
 	struct engine_section *es = &e->sec[si];
@@ -110,7 +110,7 @@ static void soft_sensors(struct engine *e, unsigned si, int64_t t_ms, double exp
 		.gas_kgs = p->gas_kgs,
 		.dp_pa = r->v[RF_DP_PA],
 		.dp_model_pa = raw_model,
-		.dp_exponent = exponent,
+		.dp_exponent = dp_exponent(s, r),
 		.flood_pct = r->v[RF_FLOOD_PCT],
 		.dp_saturated = dp_sat,
 		.f_factor = r->v[RF_F_FACTOR],
@@ -174,11 +174,21 @@ static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 	 * the last verdict rather than call a dead transmitter "shut down". */
 	if (isfinite(es->point.gas_kgs))
 		es->in_service = es->point.gas_kgs >= s->in_service_gas_kgs;
-	soft_sensors(e, si, t_ms, dp_exponent(s, &es->r));
+	soft_sensors(e, si, t_ms);
 	learn_circulation(e, si, t_ms);
 }
 
-/* What eval_section leaves for the alarms and the writers, evaluated ahead. */
+/* What eval_section leaves for the alarms and the writers: handed over by
+ * the engine that evaluated a section ahead, taken by the other. */
+static void give_ahead(struct engine_premodel *pre, const struct engine_section *es)
+{
+	pre->point = es->point;
+	pre->r = es->r;
+	pre->in_service = es->in_service;
+	pre->diag_reason = es->diag_reason;
+	pre->diag_tag = es->diag_tag;
+}
+
 static void take_ahead(struct engine_section *es, const struct engine_premodel *pre)
 {
 	es->point = pre->point;
@@ -308,14 +318,8 @@ void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
 	unsigned k = 0;
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		if (mask >> i & 1u) {
-			struct engine_premodel *o = &out[k++];
-			const struct engine_section *es = &ahead->sec[i];
 			eval_section(ahead, i, t_ms);
-			o->point = es->point;
-			o->r = es->r;
-			o->in_service = es->in_service;
-			o->diag_reason = es->diag_reason;
-			o->diag_tag = es->diag_tag;
+			give_ahead(&out[k++], &ahead->sec[i]);
 		}
 	ahead->t_ms = t_ms;
 	ahead->step_count++;

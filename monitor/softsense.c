@@ -7,6 +7,8 @@
 #include <math.h>
 #include <string.h>
 
+#include "ewma.h"
+
 /* RLS covariance is re-inflated only while its trace stays below this:
  * without excitation, forgetting would otherwise grow P without bound. */
 #define RLS_TRACE_MAX 1e4
@@ -48,11 +50,6 @@ double softsense_sigma(const struct softsense *s)
 	 * (a coefficient of variation is, for small values, the standard
 	 * deviation of the logarithm). */
 	return isfinite(s->cv_base) ? fmax(SOFTSENSE_SIGMA_MIN, s->cv_base) : SOFTSENSE_SIGMA_PRIOR;
-}
-
-static double ewma_weight(double dt_s, double tau_s)
-{
-	return dt_s > 0.0 ? 1.0 - exp(-dt_s / tau_s) : 0.0;
 }
 
 /* The weights of softsense.w, in order. */

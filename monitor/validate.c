@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "alarm.h"
+#include "ewma.h"
 
 void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period_s)
 {
@@ -78,7 +79,7 @@ static void filter(struct tag_state *s, int64_t t_ms, double x)
 	} else {
 		double dt_s = (double)(t_ms - s->last_t_ms) / 1000.0;
 		if (dt_s != s->lag_dt_s) { /* the weight of the last step length, kept */
-			s->lag_a = dt_s > 0.0 ? 1.0 - exp(-dt_s / c->filter_tau_s) : 0.0;
+			s->lag_a = ewma_weight(dt_s, c->filter_tau_s);
 			s->lag_dt_s = dt_s;
 		}
 		s->value += s->lag_a * (m - s->value);

@@ -236,12 +236,7 @@ static int run_rows(struct calibrate *c)
 		fprintf(stderr, "floodgauge calibrate: reading %s: %s\n", c->data_path, strerror(-rc));
 		return EXIT_RUNTIME;
 	}
-	const struct csvread_stats *st = histread_stats(&c->hist);
-	histread_warn_unseen(&c->hist, stderr);
-	for (unsigned i = 0; i < st->problem_count; i++)
-		fprintf(stderr, "floodgauge calibrate: %s:%llu: %s row skipped: %s\n", c->data_path,
-			(unsigned long long)st->problems[i].line,
-			csvread_problem_kind_name(st->problems[i].kind), st->problems[i].reason);
+	offline_warn_skipped(&c->hist, "calibrate", c->data_path);
 	if (c->n_rows == 0) {
 		fprintf(stderr, "floodgauge calibrate: %s: no data rows%s\n", c->data_path,
 			c->from_t_ms != INT64_MIN || c->to_t_ms != INT64_MAX ? " inside --from/--to"

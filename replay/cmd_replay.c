@@ -613,20 +613,6 @@ static void progress(const struct replay *rp, double t0, double *next, bool fina
 		fputc('\n', stderr);
 }
 
-static void warn_skipped(const struct replay *rp)
-{
-	const struct csvread_stats *st = histread_stats(&rp->hist);
-	histread_warn_unseen(&rp->hist, stderr);
-	for (unsigned i = 0; i < st->problem_count; i++)
-		fprintf(stderr, "floodgauge replay: %s:%llu: %s row skipped: %s\n", rp->data_path,
-			(unsigned long long)st->problems[i].line,
-			csvread_problem_kind_name(st->problems[i].kind), st->problems[i].reason);
-	uint64_t all = st->rows_malformed + st->rows_unsorted + st->rows_duplicate;
-	if (all > st->problem_count)
-		fprintf(stderr, "floodgauge replay: %s: ... %llu skipped rows in all\n",
-			rp->data_path, (unsigned long long)all);
-}
-
 static int perf_init(struct replay *rp)
 {
 	static enum alarm_priority prio[FG_ALARMS_MAX];
@@ -712,7 +698,7 @@ static void print_perf(const struct replay *rp)
 static void end_file(struct replay *rp)
 {
 	const struct csvread_stats *st = histread_stats(&rp->hist);
-	warn_skipped(rp);
+	offline_warn_skipped(&rp->hist, "replay", rp->data_path);
 	rp->all.rows_read += st->rows_read;
 	rp->all.rows_malformed += st->rows_malformed;
 	rp->all.rows_unsorted += st->rows_unsorted;
@@ -735,8 +721,6 @@ static int next_file(struct replay *rp, unsigned fi)
 	return 0;
 }
 
-/* One row through the engine and the writers, unless --from/--to or an
- * overlap of files leaves it out. Returns 0 or EXIT_RUNTIME. */
 enum row_verdict { ROW_USED, ROW_OUTSIDE, ROW_OVERLAP };
 
 /* Whether a row at t_ms is used, given how many were used before and the
@@ -753,6 +737,8 @@ static enum row_verdict row_verdict(const struct replay *rp, int64_t t_ms, uint6
 	return ROW_USED;
 }
 
+/* One row through the engine and the writers, unless --from/--to or an
+ * overlap of files leaves it out. Returns 0 or EXIT_RUNTIME. */
 static int use_row(struct replay *rp, int64_t t_ms, const double *values,
 		   const enum tag_status *status)
 {
@@ -772,17 +758,6 @@ static int use_row(struct replay *rp, int64_t t_ms, const double *values,
 		return EXIT_RUNTIME;
 	}
 	return 0;
-}
-
-/* The status texts of the row the reader just returned, into the engine. */
-static void take_texts(struct replay *rp)
-{
-	for (unsigned k = 0; k < histread_text_count(&rp->hist); k++) {
-		unsigned ti;
-		const char *text;
-		histread_text_at(&rp->hist, k, &ti, &text);
-		engine_tag_status_text(rp->eng, ti, text);
-	}
 }
 
 /* Reads every file in order, handing each row to row(): the single-thread
@@ -816,7 +791,7 @@ static bool progress_tty; /* stderr is a terminal (asked once, not per row) */
 static int row_direct(struct replay *rp, int64_t t_ms, const double *values,
 		      const enum tag_status *status)
 {
-	take_texts(rp);
+	offline_take_texts(&rp->hist, rp->eng);
 	int rc = use_row(rp, t_ms, values, status);
 	if (rc == 0 && progress_tty)
 		progress(rp, progress_t0, &progress_next, false);
@@ -855,23 +830,25 @@ static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
 }
 
 /* The sections the reader thread evaluates: the heaviest first, each to
- * the thread with less work so far, in rough thousands of instructions per
- * row (callgrind on the bench and demo configs): parsing a row and checking
- * its tags about 4 on the reader's side; checking every tag, the alarms
- * and the writers about 5 on the engine's (results.csv is formatted in a
- * thread of its own); a section with its soft sensors
- * 10 (tray), 8 (packed), 6 (spray), 2 (the others). Which thread evaluates
- * a section changes no result, only how fast the replay runs. */
+ * the thread with less work so far, in rough hundreds of ns per row
+ * (`benchtool engine` and callgrind on the bench and demo configs, after
+ * the closed-form DP exponent): parsing a row and the hand-over about 2 on
+ * the reader's side; the alarms, the report and the other tags' checks
+ * about 3 on the engine's (results.csv is formatted in a thread of its
+ * own); a section with its tags and soft sensors 6 (tray, 600 ns), 5
+ * (packed, 520-600 ns), 4 (spray), 2 (the others, 190-250 ns). Which
+ * thread evaluates a section changes no result, only how fast the replay
+ * runs. */
 static void choose_ahead(struct replay *rp)
 {
 	const struct fg_config *cfg = rp->cfg;
 	double cost[FG_SECTIONS_MAX];
-	double reader = 4.0, engine = 5.0;
+	double reader = 2.0, engine = 3.0;
 	for (unsigned i = 0; i < cfg->section_count; i++) {
 		switch (cfg->sections[i].geom.type) {
-		case SECTION_TRAY: cost[i] = 10.0; break;
-		case SECTION_PACKED: cost[i] = 8.0; break;
-		case SECTION_SPRAY: cost[i] = 6.0; break;
+		case SECTION_TRAY: cost[i] = 6.0; break;
+		case SECTION_PACKED: cost[i] = 5.0; break;
+		case SECTION_SPRAY: cost[i] = 4.0; break;
 		default: cost[i] = 2.0; break;
 		}
 	}

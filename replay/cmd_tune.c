@@ -298,12 +298,7 @@ static int run_engine(struct tune *t)
 	while ((rc = histread_next(&t->hist, &t_ms, values, status)) == 1) {
 		if (t_ms < t->from_t_ms || t_ms > t->to_t_ms)
 			continue;
-		for (unsigned k = 0; k < histread_text_count(&t->hist); k++) {
-			unsigned ti;
-			const char *text;
-			histread_text_at(&t->hist, k, &ti, &text);
-			engine_tag_status_text(t->eng, ti, text);
-		}
+		offline_take_texts(&t->hist, t->eng);
 		engine_step(t->eng, t_ms, values, status);
 		engine_events_clear(t->eng);
 		struct alarm_input in;

@@ -60,6 +60,11 @@ static bool is_blank(char c)
 	return c == ' ' || c == '\t';
 }
 
+static bool is_digit(char c)
+{
+	return c >= '0' && c <= '9';
+}
+
 /* ---- buffer and lines ------------------------------------------------- */
 
 /* Moves the unread tail to the front and reads behind it. Returns 0 or a
@@ -239,7 +244,7 @@ static bool scan_number(const char *s, size_t n, char alt_mark, struct number_te
 	bool in_frac = false;
 	for (; i < n; i++) {
 		char c = s[i];
-		if (c >= '0' && c <= '9') {
+		if (is_digit(c)) {
 			digits++;
 			if (in_frac)
 				t->frac_digits++;
@@ -262,7 +267,7 @@ static bool scan_number(const char *s, size_t n, char alt_mark, struct number_te
 		if (i < n && (s[i] == '+' || s[i] == '-'))
 			eneg = s[i++] == '-';
 		size_t start = i;
-		for (; i < n && s[i] >= '0' && s[i] <= '9'; i++)
+		for (; i < n && is_digit(s[i]); i++)
 			if (t->exp < 100000)
 				t->exp = t->exp * 10 + (s[i] - '0');
 		if (i == start)
@@ -279,7 +284,7 @@ static double number_slow(const char *s, size_t n, const struct number_text *t)
 	char text[NUMBER_TEXT_MAX + 32];
 	size_t k = 0; /* the sign is applied by the caller */
 	for (size_t i = 0; i < n && s[i] != 'e' && s[i] != 'E'; i++)
-		if (s[i] >= '0' && s[i] <= '9')
+		if (is_digit(s[i]))
 			text[k++] = s[i];
 	assert(k <= NUMBER_TEXT_MAX);
 	snprintf(text + k, sizeof text - k, "e%ld", t->exp - t->frac_digits);
@@ -908,19 +913,14 @@ void csvread_text_at(const struct csvread *r, unsigned k, unsigned *slot, const 
 /* ---- rows ------------------------------------------------------------- */
 
 /* The time of a field; an offset-less time is local in opts.tz if given. */
-static bool is_dec(char c)
-{
-	return c >= '0' && c <= '9';
-}
-
 /* Is s an ISO time "YYYY-MM-DD?hh:mm:ss" with nothing but a fraction, a
  * zone or the end after the seconds (00-59)? Only then do the seconds sit
  * at 17-18 and count alone. */
 static bool iso_seconds_at_17(const char *s, size_t len)
 {
 	return len >= 19 && len <= CSVREAD_TIME_TEXT_MAX && s[4] == '-' && s[7] == '-' &&
-	       s[13] == ':' && s[16] == ':' && s[17] >= '0' && s[17] <= '5' && is_dec(s[18]) &&
-	       (len == 19 || !is_dec(s[19]));
+	       s[13] == ':' && s[16] == ':' && s[17] >= '0' && s[17] <= '5' && is_digit(s[18]) &&
+	       (len == 19 || !is_digit(s[19]));
 }
 
 /*
@@ -929,7 +929,7 @@ static bool iso_seconds_at_17(const char *s, size_t len)
  * at a second or more) reads as the last time plus the difference. The
  * parse is a pure function of the text, and the seconds count in it as
  * s x 1000 ms whatever the rest says, so this is what the parse would
- * give (test_csvread compares the two on every row of its files).
+ * give (test_csvread compares the two on 3 000 rows in four ISO forms).
  */
 static int parse_time_text(struct csvread *r, const char *s, size_t len, int64_t *t_ms,
 			   bool *zoned)

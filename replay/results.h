@@ -10,7 +10,8 @@
  * input.
  *
  * Two ways to write it. results_write_row formats one row and hands it to
- * stdio. A results_writer (the replay's) takes rows as they come, copies the
+ * stdio: the plain definition, which test_results checks the writer
+ * against. A results_writer (the replay's) takes rows as they come, copies the
  * values of the columns that apply into chunks allocated once at start-up,
  * and formats whole chunks into a large output block that is written with
  * one fwrite when nearly full: either in the caller's thread, or in a

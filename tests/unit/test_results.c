@@ -49,8 +49,21 @@ static double pick_value(double prev)
 	}
 }
 
-/* rows random rows for cfg, through results_write_row and through the
- * writer (threaded or not); the two texts must be equal. */
+/* The config at path, and a cleared result for each of its sections with
+ * rp[s] pointing at it. */
+static struct fg_config *load_with_results(const char *path, struct section_result *res,
+					   const struct section_result **rp)
+{
+	struct fg_config *cfg = malloc(sizeof *cfg);
+	assert_non_null(cfg);
+	assert_int_equal(config_load(cfg, path, stderr), 0);
+	for (unsigned s = 0; s < cfg->section_count; s++) {
+		result_clear(&res[s]);
+		rp[s] = &res[s];
+	}
+	return cfg;
+}
+
 /* The next row's time: a second or 250 ms on, or (jumpy) now and then
  * over midnight, back an hour, or anywhere from year 0 to 9999 (the
  * writer formats each day's date once and must notice every change). */
@@ -74,12 +87,14 @@ static int64_t next_time(int64_t t_ms, bool jumpy)
 	return next < TIMEFMT_MIN_MS || next > TIMEFMT_MAX_MS ? t_ms + 1000 : next;
 }
 
+/* rows random rows for cfg, through results_write_row and through the
+ * writer (threaded or not); the two texts must be equal. */
 static void compare_writers_rows(const char *cfg_path, unsigned rows, bool threaded, bool jumpy,
 				 unsigned steady_from)
 {
-	struct fg_config *cfg = malloc(sizeof *cfg);
-	assert_non_null(cfg);
-	assert_int_equal(config_load(cfg, cfg_path, stderr), 0);
+	static struct section_result res[FG_SECTIONS_MAX];
+	const struct section_result *rp[FG_SECTIONS_MAX];
+	struct fg_config *cfg = load_with_results(cfg_path, res, rp);
 	char *a_text = NULL, *b_text = NULL;
 	size_t a_len = 0, b_len = 0;
 	FILE *a = open_memstream(&a_text, &a_len);
@@ -88,12 +103,6 @@ static void compare_writers_rows(const char *cfg_path, unsigned rows, bool threa
 	assert_non_null(b);
 	static struct results_writer w;
 	assert_int_equal(results_writer_start(&w, b, cfg, threaded), 0);
-	static struct section_result res[FG_SECTIONS_MAX];
-	const struct section_result *rp[FG_SECTIONS_MAX];
-	for (unsigned s = 0; s < cfg->section_count; s++) {
-		result_clear(&res[s]);
-		rp[s] = &res[s];
-	}
 	int64_t t_ms = 1767225600000; /* 2026-01-01 */
 	for (unsigned r = 0; r < rows; r++) {
 		for (unsigned s = 0; s < cfg->section_count && r < steady_from; s++) {
@@ -175,17 +184,12 @@ static void test_writer_thread_writes_what_write_row_writes(void **state)
 static void test_writer_reports_a_failed_write(void **state)
 {
 	(void)state;
-	struct fg_config *cfg = malloc(sizeof *cfg);
-	assert_non_null(cfg);
-	assert_int_equal(config_load(cfg, "configs/demo.ini", stderr), 0);
 	static struct section_result res[FG_SECTIONS_MAX];
 	const struct section_result *rp[FG_SECTIONS_MAX];
-	for (unsigned s = 0; s < cfg->section_count; s++) {
-		result_clear(&res[s]);
+	struct fg_config *cfg = load_with_results("configs/demo.ini", res, rp);
+	for (unsigned s = 0; s < cfg->section_count; s++)
 		for (int i = 0; i < RF_COUNT; i++)
 			res[s].v[i] = 1.0 / (i + 3.0);
-		rp[s] = &res[s];
-	}
 	for (int threaded = 0; threaded <= 1; threaded++) {
 		FILE *f = fopen("/dev/full", "w");
 		if (f == NULL)
@@ -208,15 +212,9 @@ static void test_writer_reports_a_failed_write(void **state)
 static void test_writer_refuses_a_time_it_cannot_write(void **state)
 {
 	(void)state;
-	struct fg_config *cfg = malloc(sizeof *cfg);
-	assert_non_null(cfg);
-	assert_int_equal(config_load(cfg, "configs/demo.ini", stderr), 0);
 	static struct section_result res[FG_SECTIONS_MAX];
 	const struct section_result *rp[FG_SECTIONS_MAX];
-	for (unsigned s = 0; s < cfg->section_count; s++) {
-		result_clear(&res[s]);
-		rp[s] = &res[s];
-	}
+	struct fg_config *cfg = load_with_results("configs/demo.ini", res, rp);
 	char *text = NULL;
 	size_t len = 0;
 	FILE *f = open_memstream(&text, &len);
