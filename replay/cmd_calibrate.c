@@ -222,9 +222,8 @@ static int run_rows(struct calibrate *c)
 	int64_t t_ms;
 	int rc;
 	engine_init(c->eng, c->cfg);
-	while ((rc = histread_next(&c->hist, &t_ms, values, status)) == 1) {
-		if (t_ms < c->from_t_ms || t_ms > c->to_t_ms)
-			continue;
+	while ((rc = offline_next_in(&c->hist, c->from_t_ms, c->to_t_ms, &t_ms, values, status)) ==
+	       1) {
 		engine_step(c->eng, t_ms, values, status);
 		engine_events_clear(c->eng);
 		if (keep_row(c, t_ms) != 0) {

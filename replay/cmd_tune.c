@@ -295,9 +295,8 @@ static int run_engine(struct tune *t)
 	int64_t t_ms;
 	int rc;
 	engine_init(t->eng, t->cfg);
-	while ((rc = histread_next(&t->hist, &t_ms, values, status)) == 1) {
-		if (t_ms < t->from_t_ms || t_ms > t->to_t_ms)
-			continue;
+	while ((rc = offline_next_in(&t->hist, t->from_t_ms, t->to_t_ms, &t_ms, values, status)) ==
+	       1) {
 		offline_take_texts(&t->hist, t->eng);
 		engine_step(t->eng, t_ms, values, status);
 		engine_events_clear(t->eng);

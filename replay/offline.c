@@ -18,6 +18,16 @@ int offline_setup(const char *path, struct fg_config **cfg, struct engine **eng)
 	return config_load(*cfg, path, stderr) != 0 ? EXIT_USAGE : 0;
 }
 
+int offline_next_in(struct histread *h, int64_t from_t_ms, int64_t to_t_ms, int64_t *t_ms,
+		    double *values, enum tag_status *status)
+{
+	int rc;
+	while ((rc = histread_next(h, t_ms, values, status)) == 1)
+		if (*t_ms >= from_t_ms && *t_ms <= to_t_ms)
+			break;
+	return rc;
+}
+
 void offline_take_texts(const struct histread *h, struct engine *e)
 {
 	for (unsigned k = 0; k < histread_text_count(h); k++) {

@@ -16,6 +16,11 @@
  * set either way (NULL or allocated) and are the caller's to free. */
 int offline_setup(const char *path, struct fg_config **cfg, struct engine **eng);
 
+/* The next row of h with from_t_ms <= t <= to_t_ms (the --from/--to
+ * window): histread_next's return (1: a row, 0: the end, < 0: an error). */
+int offline_next_in(struct histread *h, int64_t from_t_ms, int64_t to_t_ms, int64_t *t_ms,
+		    double *values, enum tag_status *status);
+
 /* The status texts of the row h just returned, into e (before engine_step). */
 void offline_take_texts(const struct histread *h, struct engine *e);
 
