@@ -46,12 +46,27 @@ static void set_bad(struct tag_state *s, const char *reason)
 	s->med_count = 0;
 }
 
+/* The middle of three, for the common `median = 3`: the same value as the
+ * sort below except between a +0 and a -0, which compare equal but print
+ * differently; a zero goes the long way. */
+static double median3(double a, double b, double c)
+{
+	double lo = a < b ? a : b, hi = a < b ? b : a;
+	double m = c < hi ? c : hi;
+	return m > lo ? m : lo;
+}
+
 static double median_of(const struct tag_state *s)
 {
 	double w[FG_MEDIAN_MAX];
 	unsigned n = s->med_count;
 	assert(n >= 1);
 	assert(n <= FG_MEDIAN_MAX);
+	if (n == 3) {
+		double m = median3(s->med[0], s->med[1], s->med[2]);
+		if (m != 0.0)
+			return m;
+	}
 	memcpy(w, s->med, n * sizeof(double));
 	for (unsigned i = 1; i < n; i++) { /* insertion sort: n <= 15 */
 		double x = w[i];
@@ -69,7 +84,8 @@ static void filter(struct tag_state *s, int64_t t_ms, double x)
 	const struct tag_cfg *c = s->cfg;
 	unsigned win = c->median > 0 ? c->median : 1;
 	s->med[s->med_pos] = x;
-	s->med_pos = (s->med_pos + 1) % win;
+	if (++s->med_pos >= win)
+		s->med_pos = 0;
 	if (s->med_count < win)
 		s->med_count++;
 	double m = win > 1 ? median_of(s) : x;

@@ -147,6 +147,46 @@ static void test_median_removes_an_outlier(void **state)
 	assert_true(s.value == 12.0); /* median of 11, 90, 12 */
 }
 
+/* A median-3 window against its definition, bit for bit: the middle of the
+ * ring's three values after a plain stable insertion sort. Values come from
+ * a small set, so ties are common, with +0 and -0 among them (equal as
+ * numbers, different in print). */
+static double stable_middle(const double *ring)
+{
+	double w[3] = {ring[0], ring[1], ring[2]};
+	for (int i = 1; i < 3; i++)
+		for (int j = i; j > 0 && w[j - 1] > w[j]; j--) {
+			double x = w[j];
+			w[j] = w[j - 1];
+			w[j - 1] = x;
+		}
+	return w[1];
+}
+
+static void test_median_of_three_equals_the_sorted_middle_bit_for_bit(void **state)
+{
+	(void)state;
+	static const double pool[] = {-0.0, 0.0, 1.5, 1.5, 2.25, -3.0, 7.0, 300.0};
+	struct tag_cfg c = tag();
+	c.median = 3;
+	c.min = -10.0;
+	struct tag_state s;
+	validate_init(&s, &c, 1.0);
+	uint32_t rng = 12345u;
+	unsigned zeros = 0;
+	for (int i = 0; i < 20000; i++) {
+		rng = rng * 1664525u + 1013904223u; /* Numerical Recipes' LCG */
+		double v = pool[(rng >> 24) % (sizeof pool / sizeof pool[0])];
+		validate_step(&s, S(1000) * (i + 1), v, TAG_STATUS_FRESH);
+		if (i < 2)
+			continue;
+		double mid = stable_middle(s.med);
+		assert_memory_equal(&s.value, &mid, sizeof mid);
+		zeros += mid == 0.0;
+	}
+	assert_true(zeros > 1000); /* the zero case was exercised */
+}
+
 static void test_first_order_lag_follows_its_time_constant(void **state)
 {
 	(void)state;
@@ -287,6 +327,7 @@ int main(void)
 		cmocka_unit_test(test_single_spike_is_rejected_a_step_is_accepted),
 		cmocka_unit_test(test_frozen_value_turns_uncertain_after_frozen_s),
 		cmocka_unit_test(test_median_removes_an_outlier),
+		cmocka_unit_test(test_median_of_three_equals_the_sorted_middle_bit_for_bit),
 		cmocka_unit_test(test_first_order_lag_follows_its_time_constant),
 		cmocka_unit_test(test_dp_reaching_its_max_without_a_jump_is_saturated),
 		cmocka_unit_test(test_dp_jumping_to_its_max_or_beyond_the_band_is_bad),
