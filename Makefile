@@ -22,7 +22,20 @@ BUILD   := build/san
 OPT     := -O1 -g -fno-omit-frame-pointer -fsanitize=address,undefined -fno-sanitize-recover=all
 else
 BUILD   := build
-OPT     := -O2 -g
+# -O3 and no errno from the math functions (nothing reads it): the same
+# results bit for bit, fewer instructions on the per-row path.
+OPT     := -O3 -g -fno-math-errno
+endif
+
+# Link-time optimisation of the program itself with gcc: the per-row path
+# crosses files (engine -> validate -> units, models -> section). The
+# objects keep their machine code as well (fat), so the tests and tools link
+# the archive without it, and the sanitizer and clang builds go without.
+CC_IS_CLANG := $(shell $(CC) -dM -E -x c /dev/null 2>/dev/null | grep -c __clang__)
+ifneq ($(SAN),1)
+ifeq ($(CC_IS_CLANG),0)
+LTO := -flto=auto -ffat-lto-objects
+endif
 endif
 
 WARN := -Wall -Wextra -Wconversion -Wshadow -Wstrict-prototypes -Wmissing-prototypes -Wformat=2 \
@@ -67,7 +80,8 @@ deps:
 bin: $(BIN)
 
 $(BIN): $(MAIN_OBJ) $(BUILD)/libfg.a
-	$(CC) $(CFLAGS) $(EXTRA_LDFLAGS) -o $@ $^ $(LDLIBS)
+	$(CC) $(CFLAGS) $(LTO) $(EXTRA_LDFLAGS) -o $@ $(MAIN_OBJ) \
+		$(if $(LTO),$(LIB_OBJ),$(BUILD)/libfg.a) $(LDLIBS)
 
 $(BUILD)/libfg.a: $(LIB_OBJ)
 	@mkdir -p $(@D)
@@ -75,7 +89,7 @@ $(BUILD)/libfg.a: $(LIB_OBJ)
 
 $(BUILD)/obj/%.o: %.c
 	@mkdir -p $(@D)
-	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) $(CFLAGS) -c -o $@ $<
+	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) $(CFLAGS) $(LTO) -c -o $@ $<
 
 # Per-test extra link flags (wrapping) go here as target-specific variables.
 TEST_LDFLAGS =
@@ -108,7 +122,8 @@ $(BUILD)/tools/benchgen: tools/benchgen.c
 	$(CC) $(CPPFLAGS) $(CFLAGS) -o $@ $< -lm
 $(BUILD)/tools/benchtool: tools/benchtool.c $(BUILD)/libfg.a
 	@mkdir -p $(@D)
-	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) $(CFLAGS) -o $@ $< $(BUILD)/libfg.a $(LDLIBS)
+	$(CC) $(CPPFLAGS) $(PKG_CFLAGS) $(CFLAGS) $(LTO) -o $@ $< \
+		$(if $(LTO),$(LIB_OBJ),$(BUILD)/libfg.a) $(LDLIBS)
 
 bench: deps
 	@$(MAKE) --no-print-directory bin $(BENCH_TOOLS)
