@@ -257,64 +257,16 @@ static void validate_tag(struct engine *e, unsigned i, int64_t t_ms, const doubl
 		validate_step(&e->tags[i], t_ms, values[i], status[i]);
 }
 
-/* Which tags the sections in mask read (premodel_tag), and which of them
- * no other section reads (premodel_only): worked out once per mask, not
- * per row. */
-static void ahead_tags(struct engine *e, uint64_t mask)
+static void validate_tags(struct engine *e, int64_t t_ms, const double *values,
+			  const enum tag_status *status)
 {
-	const struct fg_config *cfg = e->cfg;
-	if (mask == e->premodel_mask)
-		return;
-	bool other[FG_TAGS_MAX] = {false};
-	memset(e->premodel_tag, 0, sizeof e->premodel_tag);
-	for (unsigned i = 0; i < cfg->section_count; i++)
-		for (int k = 0; k < SIGNAL_COUNT; k++) {
-			int ti = cfg->sections[i].signal[k];
-			if (ti < 0)
-				continue;
-			if (mask >> i & 1u)
-				e->premodel_tag[ti] = true;
-			else
-				other[ti] = true;
-		}
-	for (unsigned i = 0; i < cfg->tag_count; i++)
-		e->premodel_only[i] = e->premodel_tag[i] && !other[i];
-	e->premodel_mask = mask;
-}
-
-unsigned engine_ahead_view_count(struct engine *e, uint64_t mask)
-{
-	assert(e != NULL);
-	ahead_tags(e, mask);
-	unsigned n = 0;
 	for (unsigned i = 0; i < e->cfg->tag_count; i++)
-		n += e->premodel_only[i];
-	return n;
-}
-
-static void give_view(struct engine_tag_view *v, const struct tag_state *ts)
-{
-	v->value = ts->value;
-	v->value_si = ts->value_si;
-	v->accepted = ts->accepted;
-	v->reason = ts->reason;
-	v->quality = ts->quality;
-	v->saturated = ts->saturated;
-}
-
-static void take_view(struct tag_state *ts, const struct engine_tag_view *v)
-{
-	ts->value = v->value;
-	ts->value_si = v->value_si;
-	ts->accepted = v->accepted;
-	ts->reason = v->reason;
-	ts->quality = v->quality;
-	ts->saturated = v->saturated;
+		validate_tag(e, i, t_ms, values, status);
 }
 
 void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 		       const enum tag_status *status, uint64_t mask,
-		       const struct engine_premodel *pre, const struct engine_tag_view *views)
+		       const struct engine_premodel *pre)
 {
 	assert(e != NULL);
 	assert(values != NULL);
@@ -322,13 +274,7 @@ void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 	assert(mask == 0 || pre != NULL);
 	const struct fg_config *cfg = e->cfg;
 	e->event_count = 0;
-	ahead_tags(e, mask);
-	unsigned j = 0;
-	for (unsigned i = 0; i < cfg->tag_count; i++)
-		if (e->premodel_only[i])
-			take_view(&e->tags[i], &views[j++]);
-		else
-			validate_tag(e, i, t_ms, values, status);
+	validate_tags(e, t_ms, values, status);
 	unsigned k = 0;
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		if (mask >> i & 1u)
@@ -343,29 +289,32 @@ void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 void engine_step(struct engine *e, int64_t t_ms, const double *values,
 		 const enum tag_status *status)
 {
-	engine_step_ahead(e, t_ms, values, status, 0, NULL, NULL);
+	engine_step_ahead(e, t_ms, values, status, 0, NULL);
 }
 
 void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
-		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out,
-		     struct engine_tag_view *views)
+		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out)
 {
 	assert(ahead != NULL);
 	assert(values != NULL);
 	assert(status != NULL);
 	assert(out != NULL || mask == 0);
 	/* Only the tags these sections read: each tag's checks depend on its
-	 * own samples alone. The other engine checks those that other sections
-	 * read too, and takes the rest from views. */
+	 * own samples alone, and the other engine checks them all. Which tags
+	 * those are is worked out once per mask, not per row. */
 	const struct fg_config *cfg = ahead->cfg;
-	ahead_tags(ahead, mask);
-	unsigned j = 0;
+	if (mask != ahead->premodel_mask) {
+		memset(ahead->premodel_tag, 0, sizeof ahead->premodel_tag);
+		for (unsigned i = 0; i < cfg->section_count; i++)
+			if (mask >> i & 1u)
+				for (int k = 0; k < SIGNAL_COUNT; k++)
+					if (cfg->sections[i].signal[k] >= 0)
+						ahead->premodel_tag[cfg->sections[i].signal[k]] = true;
+		ahead->premodel_mask = mask;
+	}
 	for (unsigned i = 0; i < cfg->tag_count; i++)
-		if (ahead->premodel_tag[i]) {
+		if (ahead->premodel_tag[i])
 			validate_tag(ahead, i, t_ms, values, status);
-			if (ahead->premodel_only[i])
-				give_view(&views[j++], &ahead->tags[i]);
-		}
 	unsigned k = 0;
 	for (unsigned i = 0; i < cfg->section_count; i++)
 		if (mask >> i & 1u) {
@@ -374,21 +323,6 @@ void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
 		}
 	ahead->t_ms = t_ms;
 	ahead->step_count++;
-}
-
-void engine_ahead_finish(struct engine *e, const struct engine *ahead, uint64_t mask)
-{
-	assert(e != NULL);
-	assert(ahead != NULL);
-	ahead_tags(e, mask);
-	/* The historian's status text was given to e, not to `ahead`. */
-	for (unsigned i = 0; i < e->cfg->tag_count; i++)
-		if (e->premodel_only[i]) {
-			char text[ALARM_STATUS_TEXT_MAX];
-			memcpy(text, e->tags[i].status_text, sizeof text);
-			e->tags[i] = ahead->tags[i];
-			memcpy(e->tags[i].status_text, text, sizeof text);
-		}
 }
 
 void engine_tag_status_text(struct engine *e, unsigned ti, const char *text)

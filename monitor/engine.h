@@ -59,12 +59,10 @@ struct engine {
 	struct alarm_event events[ENGINE_EVENTS_MAX];
 	int64_t t_ms;                /* time of the last step, ALARM_T_NONE before */
 	uint64_t step_count;
-	/* engine_premodel and engine_step_ahead: for the mask they were worked
-	 * out for (0 before the first call: no tags), the tags the sections in
-	 * it read, and those that no other section reads */
+	/* engine_premodel: the tags its sections read, for the mask they were
+	 * worked out for (0 before the first call: no tags) */
 	uint64_t premodel_mask;
 	bool premodel_tag[FG_TAGS_MAX];
-	bool premodel_only[FG_TAGS_MAX];
 };
 
 /* Sets e up for cfg. Returns 0 (it cannot fail on a config that loaded). */
@@ -88,38 +86,21 @@ struct engine_premodel {
 	int diag_tag;
 };
 
-/* What anything outside the checks reads of a tag's state (validate.h):
- * handed over for a tag that only sections evaluated ahead read. */
-struct engine_tag_view {
-	double value, value_si, accepted;
-	const char *reason;
-	enum fg_quality quality;
-	bool saturated;
-};
-
 /* The replay's second core. `ahead` is an engine of its own (engine_init on
  * the same config) given exactly the rows e will be given, in order: for
  * the sections whose bit is set in mask (bit si) it checks their tags as
  * engine_step does and evaluates them whole (models, soft sensors, the
- * loop's learned circulation), out[k] for the k-th set bit, and views[j]
- * for the j-th tag (in tag order) that those sections read and no other
- * does (engine_ahead_view_count of them).
- * engine_step_ahead then steps e with those sections taken from out and
- * those tags from views (their state stays with `ahead`), the rest and the
- * alarms as engine_step: the same results and events bit for bit, because
- * a section depends only on its own tags and its own state, and a tag only
- * on its own samples, which each see the same rows in the same order
- * whichever engine holds them. engine_ahead_finish(e, ahead, mask) at the
- * end brings those tags' whole states over, so that e then holds what
- * engine_step would have left. */
-unsigned engine_ahead_view_count(struct engine *e, uint64_t mask);
+ * loop's learned circulation), out[k] for the k-th set bit.
+ * engine_step_ahead then steps e with those sections taken from out (their
+ * state stays with `ahead`), the rest and the alarms as engine_step: the
+ * same results and events bit for bit, because a section depends only on
+ * its own tags and its own state, which sees the same rows in the same
+ * order whichever engine holds it. */
 void engine_premodel(struct engine *ahead, int64_t t_ms, const double *values,
-		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out,
-		     struct engine_tag_view *views);
+		     const enum tag_status *status, uint64_t mask, struct engine_premodel *out);
 void engine_step_ahead(struct engine *e, int64_t t_ms, const double *values,
 		       const enum tag_status *status, uint64_t mask,
-		       const struct engine_premodel *pre, const struct engine_tag_view *views);
-void engine_ahead_finish(struct engine *e, const struct engine *ahead, uint64_t mask);
+		       const struct engine_premodel *pre);
 
 /* The historian's status text for tag ti, kept with its next TAG_STATUS_BAD
  * sample and copied into the events that sample causes (cut to fit). NULL or

@@ -59,11 +59,9 @@ struct replay {
 	struct engine *ahead;
 	uint64_t ahead_mask;
 	unsigned ahead_count;
-	unsigned ahead_views;             /* engine_ahead_view_count for ahead_mask */
 	uint64_t rd_rows_used;
 	int64_t rd_prev_t_ms;
 	const struct engine_premodel *cur_pre; /* this row's, NULL: evaluate here */
-	const struct engine_tag_view *cur_views; /* this row's, with cur_pre */
 	uint64_t bytes_first;             /* size of a single data file (progress) */
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
@@ -556,7 +554,7 @@ static int step_row(struct replay *rp, int64_t t_ms, const double *values,
 		    const enum tag_status *status)
 {
 	engine_step_ahead(rp->eng, t_ms, values, status, rp->cur_pre != NULL ? rp->ahead_mask : 0,
-			  rp->cur_pre, rp->cur_views);
+			  rp->cur_pre);
 	const struct section_result *res[FG_SECTIONS_MAX];
 	for (unsigned s = 0; s < rp->cfg->section_count; s++)
 		res[s] = &rp->eng->sec[s].r;
@@ -814,17 +812,11 @@ static void publish(struct replay *rp, int end_rc)
 	fill = end_rc == 1 ? rowq_fill_begin(&rp->q) : NULL;
 }
 
-/* What the reader thread worked out ahead for one row (rowq_extra): the
- * sections, then the views of the tags only they read. */
+/* What the reader thread worked out ahead for one row (rowq_extra). */
 struct ahead_row {
 	bool used;                        /* use_row will take the row */
-	struct engine_premodel pre[];     /* ahead_count, then ahead_views views, when used */
+	struct engine_premodel pre[];     /* ahead_count, when used */
 };
-
-static struct engine_tag_view *ahead_views(const struct replay *rp, const struct ahead_row *x)
-{
-	return (struct engine_tag_view *)(void *)(x->pre + rp->ahead_count);
-}
 
 static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
 		       const double *values, const enum tag_status *status)
@@ -834,8 +826,7 @@ static void work_ahead(struct replay *rp, struct ahead_row *x, int64_t t_ms,
 		return;
 	rp->rd_rows_used++;
 	rp->rd_prev_t_ms = t_ms;
-	engine_premodel(rp->ahead, t_ms, values, status, rp->ahead_mask, x->pre,
-			ahead_views(rp, x));
+	engine_premodel(rp->ahead, t_ms, values, status, rp->ahead_mask, x->pre);
 }
 
 /* The sections the reader thread evaluates: the heaviest first, each to
@@ -933,7 +924,6 @@ static int engine_side(struct replay *rp)
 			if (rp->ahead_mask != 0) {
 				const struct ahead_row *x = rowq_extra(&rp->q, c, r);
 				rp->cur_pre = x->used ? x->pre : NULL;
-				rp->cur_views = ahead_views(rp, x);
 			}
 			if (use_row(rp, row->t_ms, rowq_values(&rp->q, c, r),
 				    rowq_status(&rp->q, c, r)) != 0) {
@@ -958,13 +948,11 @@ static int run_threaded(struct replay *rp)
 	histread_progress(&rp->hist, &done, &rp->bytes_first);
 	choose_ahead(rp);
 	rp->ahead = rp->ahead_mask != 0 ? malloc(sizeof *rp->ahead) : NULL;
-	rp->ahead_views = engine_ahead_view_count(rp->eng, rp->ahead_mask);
 	bool bad = rowq_init(&rp->q, rp->cfg->tag_count) != 0;
 	if (!bad && rp->ahead_mask != 0)
 		bad = rp->ahead == NULL ||
 		      rowq_set_extra(&rp->q, sizeof(struct ahead_row) +
-					     rp->ahead_count * sizeof(struct engine_premodel) +
-					     rp->ahead_views * sizeof(struct engine_tag_view)) != 0;
+					     rp->ahead_count * sizeof(struct engine_premodel)) != 0;
 	if (bad) {
 		rowq_fini(&rp->q);
 		free(rp->ahead);
@@ -984,8 +972,6 @@ static int run_threaded(struct replay *rp)
 	}
 	int rc = engine_side(rp);
 	pthread_join(reader, NULL);
-	if (rp->ahead != NULL)
-		engine_ahead_finish(rp->eng, rp->ahead, rp->ahead_mask);
 	rowq_fini(&rp->q);
 	free(rp->ahead);
 	rp->ahead = NULL;

@@ -142,7 +142,6 @@ static double engine_section_ns(const struct fg_config *cfg, unsigned si, const 
 {
 	static struct engine e;
 	struct engine_premodel out;
-	struct engine_tag_view views[FG_TAGS_MAX];
 	double best = INFINITY, sink = 0.0;
 	for (int rep = 0; rep < BENCH_REPS; rep++) {
 		engine_init(&e, cfg);
@@ -150,7 +149,7 @@ static double engine_section_ns(const struct fg_config *cfg, unsigned si, const 
 		double t0 = now_s();
 		for (unsigned i = 0; i < SAMPLES; i++, t_ms += 1000) {
 			engine_premodel(&e, t_ms, vals + (size_t)i * cfg->tag_count, status,
-					1ull << si, &out, views);
+					1ull << si, &out);
 			sink += out.r.v[RF_FLOOD_INDEX];
 		}
 		best = fmin(best, now_s() - t0);
