@@ -40,6 +40,11 @@ int engine_init(struct engine *e, const struct fg_config *cfg)
 		solve_warm_clear(&e->sec[i].warm);
 		e->sec[i].circ_normal_ms = NAN;
 		e->sec[i].circ_learned_s = 0.0;
+		for (int f = 0; f < RF_COUNT; f++)
+			if (section_type_has_field(s->geom.type, f)) {
+				assert(e->sec[i].field_count < ENGINE_PREMODEL_FIELDS);
+				e->sec[i].field[e->sec[i].field_count++] = (unsigned char)f;
+			}
 	}
 	for (unsigned i = 0; i < cfg->alarm_count; i++)
 		alarm_init(&e->alarms[i], &cfg->alarms[i], i);
@@ -180,19 +185,27 @@ static void eval_section(struct engine *e, unsigned si, int64_t t_ms)
 
 /* What eval_section leaves for the alarms and the writers: handed over by
  * the engine that evaluated a section ahead, taken by the other. */
+_Static_assert(offsetof(struct section_result, v) == 0 &&
+		       offsetof(struct section_result, basis) == sizeof(double) * RF_COUNT,
+	       "section_result: v first, then the rest from basis on");
+
 static void give_ahead(struct engine_premodel *pre, const struct engine_section *es)
 {
-	pre->point = es->point;
-	pre->r = es->r;
+	for (unsigned k = 0; k < es->field_count; k++)
+		pre->v[k] = es->r.v[es->field[k]];
+	memcpy(pre->rest, &es->r.basis, sizeof pre->rest);
 	pre->in_service = es->in_service;
 	pre->diag_reason = es->diag_reason;
 	pre->diag_tag = es->diag_tag;
 }
 
+/* The fields a type does not fill stay NAN in es->r, as result_clear left
+ * them at engine_init (the evaluators never write them). */
 static void take_ahead(struct engine_section *es, const struct engine_premodel *pre)
 {
-	es->point = pre->point;
-	es->r = pre->r;
+	for (unsigned k = 0; k < es->field_count; k++)
+		es->r.v[es->field[k]] = pre->v[k];
+	memcpy(&es->r.basis, pre->rest, sizeof pre->rest);
 	es->in_service = pre->in_service;
 	es->diag_reason = pre->diag_reason;
 	es->diag_tag = pre->diag_tag;

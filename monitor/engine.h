@@ -15,6 +15,7 @@
 #ifndef ENGINE_H
 #define ENGINE_H
 
+#include <stddef.h>
 #include <stdint.h>
 
 #include "alarm.h"
@@ -25,6 +26,10 @@
 /* One transition per alarm per step, plus commands between steps. */
 #define ENGINE_EVENTS_MAX (2 * FG_ALARMS_MAX)
 
+/* The most result fields a section of one type fills (section.c's masks:
+ * a tray has 21); engine_init checks every section against it. */
+#define ENGINE_PREMODEL_FIELDS 24
+
 struct engine_section {
 	struct softsense ss;
 	struct section_result r;     /* the latest result */
@@ -33,6 +38,9 @@ struct engine_section {
 	const char *diag_reason;     /* first bad/frozen input reason, NULL when healthy */
 	int diag_tag;                /* the tag behind diag_reason, -1 when none */
 	struct solve_warm warm;      /* last answers of the section's solves (warm starts) */
+	/* the result fields its type fills, in order (engine_premodel.v) */
+	unsigned char field[ENGINE_PREMODEL_FIELDS];
+	unsigned field_count;
 	/* loop sections without circulation_normal_ms: the learned normal */
 	double circ_normal_ms;       /* learned normal circulation velocity, m/s (NAN: none yet) */
 	double circ_learned_s;       /* time spent learning it, s */
@@ -77,10 +85,13 @@ void engine_step(struct engine *e, int64_t t_ms, const double *values,
 
 /* One section at one row, evaluated ahead (engine_premodel) by another
  * thread on an engine of its own that sees the same rows: what the alarms
- * and the writers read of it afterwards. */
+ * and the writers read of it afterwards, and no more, since every byte of
+ * it crosses from one core to the other (its operating point, soft-sensor
+ * state and warm starts stay with the engine that evaluated it). */
 struct engine_premodel {
-	struct section_point point;  /* the operating point, SI */
-	struct section_result r;     /* the result: models, soft sensors, fused index */
+	double v[ENGINE_PREMODEL_FIELDS]; /* section_result.v of the type's fields, in order */
+	/* the rest of section_result, from `basis` on, as it is */
+	unsigned char rest[sizeof(struct section_result) - offsetof(struct section_result, basis)];
 	bool in_service;
 	const char *diag_reason;     /* as engine_section's */
 	int diag_tag;

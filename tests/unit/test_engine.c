@@ -140,9 +140,8 @@ static void test_same_inputs_give_the_same_outputs(void **state)
  * against a third that does everything itself, every result, soft-sensor
  * state, diagnostic and event must be the same bit for bit, for every mask,
  * through a load swing, a dead transmitter and its recovery. */
-static void test_models_worked_out_ahead_give_the_same_results(void **state)
+static void models_ahead_equal_plain(struct rig *a, const char *gas_tag, const char *dp_tag)
 {
-	struct rig *a = *state;
 	struct rig *b = __real_calloc(1, sizeof(*b));
 	struct engine *ahead = __real_calloc(1, sizeof(*ahead));
 	struct engine_premodel *pre = __real_calloc(FG_SECTIONS_MAX, sizeof(*pre));
@@ -159,7 +158,7 @@ static void test_models_worked_out_ahead_give_the_same_results(void **state)
 			a->values[i] = b->values[i] = a->cfg.tags[i].nominal;
 			a->status[i] = b->status[i] = TAG_STATUS_FRESH;
 		}
-		int gas = tag(a, "C401_FI_GAS"), dp = tag(a, "C402_PDI");
+		int gas = tag(a, gas_tag), dp = tag(a, dp_tag);
 		for (int i = 0; i < 1500; i++) {
 			double wobble = 1.0 + 0.2 * sin(i / 60.0);
 			a->values[gas] = b->values[gas] = a->cfg.tags[gas].nominal * wobble;
@@ -202,6 +201,18 @@ static void test_models_worked_out_ahead_give_the_same_results(void **state)
 	free(pre);
 	free(ahead);
 	free(b);
+}
+
+static void test_models_worked_out_ahead_give_the_same_results(void **state)
+{
+	models_ahead_equal_plain(*state, "C401_FI_GAS", "C402_PDI");
+}
+
+/* The same for the other three types: only the fields a type fills cross
+ * from one engine to the other (engine_premodel), which this checks too. */
+static void test_contactors_worked_out_ahead_give_the_same_results(void **state)
+{
+	models_ahead_equal_plain(*state, "P405_FI_AIR", "L407_PDI_RISER");
 }
 
 /* A fixed tag is checked once: what the engine and alarms read of it after
@@ -497,6 +508,8 @@ int main(void)
 						rig_teardown),
 		cmocka_unit_test_setup_teardown(test_models_worked_out_ahead_give_the_same_results,
 						rig_setup, rig_teardown),
+		cmocka_unit_test_setup_teardown(test_contactors_worked_out_ahead_give_the_same_results,
+						rig_setup_contactors, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_fixed_tags_are_checked_once_with_the_same_outcome,
 						rig_setup_contactors, rig_teardown),
 		cmocka_unit_test_setup_teardown(test_dead_transmitter_raises_diagnostic_not_process_alarm,
