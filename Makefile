@@ -103,7 +103,10 @@ $(REF_SO): $(REF_OBJ) $(wildcard models/*.h)
 	@mkdir -p $(@D)
 	$(CC) -std=c11 -O2 -fPIC -shared -D_POSIX_C_SOURCE=200809L -Imodels -o $@ $(REF_OBJ) -lm
 
-tests-bin: $(BIN) $(TEST_BIN) $(REF_SO)
+# The bench's programs are built with the tests, so that a change to the
+# engine's interface cannot leave them behind unnoticed.
+BENCH_TOOLS := $(BUILD)/tools/benchgen $(BUILD)/tools/benchtool
+tests-bin: $(BIN) $(TEST_BIN) $(REF_SO) $(BENCH_TOOLS)
 
 test:
 	@sh tools/deps.sh test
@@ -116,7 +119,6 @@ run:
 	@FG_BIN=$(BIN) sh tools/demo.sh
 
 # The bench's own programs: the data generator and the stage timer.
-BENCH_TOOLS := $(BUILD)/tools/benchgen $(BUILD)/tools/benchtool
 $(BUILD)/tools/benchgen: tools/benchgen.c
 	@mkdir -p $(@D)
 	$(CC) $(CPPFLAGS) $(CFLAGS) -o $@ $< -lm

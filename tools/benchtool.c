@@ -150,7 +150,7 @@ static double engine_section_ns(const struct fg_config *cfg, unsigned si, const 
 		for (unsigned i = 0; i < SAMPLES; i++, t_ms += 1000) {
 			engine_premodel(&e, t_ms, vals + (size_t)i * cfg->tag_count, status,
 					1ull << si, &out);
-			sink += out.r.v[RF_FLOOD_INDEX];
+			sink += out.v[0]; /* flood_pct, the first field of every type */
 		}
 		best = fmin(best, now_s() - t0);
 	}
