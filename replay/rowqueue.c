@@ -1,18 +1,22 @@
 /*
  * rowqueue.c - see rowqueue.h.
  */
+#define _GNU_SOURCE /* sched_getaffinity, CPU_COUNT */
 #include "rowqueue.h"
 
 #include <assert.h>
 #include <errno.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sched.h>
+#include <time.h>
 
 int rowq_init(struct rowq *q, unsigned tag_count)
 {
 	assert(q != NULL);
 	assert(tag_count <= FG_TAGS_MAX);
 	memset(q, 0, sizeof *q);
+	atomic_init(&q->used_seen, 0);
 	q->tag_count = tag_count;
 	size_t row_bytes = (size_t)(tag_count > 0 ? tag_count : 1) *
 			   (sizeof(double) + sizeof(enum tag_status));
@@ -71,8 +75,54 @@ void rowq_fini(struct rowq *q)
 	memset(q, 0, sizeof *q);
 }
 
+void rowq_set_spin(struct rowq *q, bool spin)
+{
+	assert(q != NULL);
+	q->spin = spin;
+}
+
+bool rowq_cores_for_two(void)
+{
+	cpu_set_t set;
+	if (sched_getaffinity(0, sizeof set, &set) != 0)
+		return false;
+	return CPU_COUNT(&set) >= 2;
+}
+
+static uint64_t now_ns(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return (uint64_t)ts.tv_sec * 1000000000u + (uint64_t)ts.tv_nsec;
+}
+
+/* Before a wait: spins while the queue holds `busy` chunks (ROWQ_CHUNKS:
+ * full, for the producer; 0: empty, for the consumer), for ROWQ_SPIN_NS at
+ * the most, looking at the clock every 64 turns. Only a hint: the caller
+ * checks again under the mutex. */
+static void spin_while(struct rowq *q, unsigned busy)
+{
+	if (!q->spin)
+		return;
+	uint64_t end = 0;
+	for (unsigned i = 0; atomic_load_explicit(&q->used_seen, memory_order_relaxed) == busy;
+	     i++) {
+#if defined(__x86_64__) || defined(__i386__)
+		__builtin_ia32_pause();
+#endif
+		if (i % 64 != 0)
+			continue;
+		uint64_t t = now_ns();
+		if (end == 0)
+			end = t + ROWQ_SPIN_NS;
+		else if (t >= end)
+			return;
+	}
+}
+
 struct rowq_chunk *rowq_fill_begin(struct rowq *q)
 {
+	spin_while(q, ROWQ_CHUNKS);
 	pthread_mutex_lock(&q->mu);
 	while (q->used == ROWQ_CHUNKS && !q->cancelled)
 		pthread_cond_wait(&q->not_full, &q->mu);
@@ -121,12 +171,14 @@ void rowq_fill_end(struct rowq *q, struct rowq_chunk *c)
 	assert(c == &q->chunks[q->head]);
 	q->head = (q->head + 1) % ROWQ_CHUNKS;
 	q->used++;
+	atomic_store_explicit(&q->used_seen, q->used, memory_order_relaxed);
 	pthread_cond_signal(&q->not_empty);
 	pthread_mutex_unlock(&q->mu);
 }
 
 struct rowq_chunk *rowq_take_begin(struct rowq *q)
 {
+	spin_while(q, 0);
 	pthread_mutex_lock(&q->mu);
 	while (q->used == 0)
 		pthread_cond_wait(&q->not_empty, &q->mu);
@@ -141,6 +193,7 @@ void rowq_take_end(struct rowq *q, struct rowq_chunk *c)
 	assert(c == &q->chunks[q->tail]);
 	q->tail = (q->tail + 1) % ROWQ_CHUNKS;
 	q->used--;
+	atomic_store_explicit(&q->used_seen, q->used, memory_order_relaxed);
 	pthread_cond_signal(&q->not_full);
 	pthread_mutex_unlock(&q->mu);
 }

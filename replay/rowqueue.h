@@ -13,12 +13,16 @@
  * the same order as with one thread, and writes the same bytes.
  *
  * One producer and one consumer; a mutex and two condition variables (the
- * waits are rare: a chunk holds ROWQ_ROWS rows).
+ * waits are rare: a chunk holds ROWQ_ROWS rows). With rowq_set_spin a
+ * wait first spins for up to ROWQ_SPIN_NS: when the two threads keep
+ * pace, the other side's next chunk is that near, and putting a thread to
+ * sleep and waking it costs a virtual machine far more than the spin.
  */
 #ifndef ROWQUEUE_H
 #define ROWQUEUE_H
 
 #include <pthread.h>
+#include <stdatomic.h>
 #include <stdbool.h>
 #include <stdint.h>
 
@@ -61,6 +65,8 @@ struct rowq {
 	size_t extra_size;          /* bytes of rowq_extra per row, 0: none */
 	struct rowq_chunk *chunks;  /* ROWQ_CHUNKS */
 	unsigned head, tail, used;  /* next to fill, next to take, full chunks */
+	_Atomic unsigned used_seen; /* `used` as last set, read without the mutex by a spin */
+	bool spin;                  /* rowq_set_spin */
 	bool cancelled;             /* the consumer gave up: the producer stops */
 	pthread_mutex_t mu;
 	pthread_cond_t not_full, not_empty;
@@ -75,6 +81,14 @@ int rowq_init(struct rowq *q, unsigned tag_count);
 #define ROWQ_EXTRA_BYTES (128u * 1024u)
 int rowq_set_extra(struct rowq *q, size_t bytes_per_row);
 
+/* Whether a wait spins (up to ROWQ_SPIN_NS, checking the queue) before it
+ * sleeps. Only for a producer and a consumer that each have a core of
+ * their own: with more threads than cores the spin takes the time of the
+ * thread it waits for. Off after rowq_init. */
+#define ROWQ_SPIN_NS 500000u
+void rowq_set_spin(struct rowq *q, bool spin);
+/* Whether this process may run on two CPUs or more (its affinity). */
+bool rowq_cores_for_two(void);
 /* Frees everything; accepts a zeroed q. */
 void rowq_fini(struct rowq *q);
 

@@ -161,6 +161,11 @@ if m and ramp:
        == open(os.path.join(out, "events.jsonl"), "rb").read(),
        "--no-results gives the same events.jsonl")
     ok(os.path.getsize(os.path.join(out4n, "report.html")) > 0, "--no-results writes the report")
+    # (its reader and engine threads spin before they wait: the same bytes)
+    for name in ("summary.json", "report.html"):
+        ok(open(os.path.join(out4n, name), "rb").read()
+           == open(os.path.join(out, name), "rb").read(),
+           f"--no-results gives the same {name}")
 
     # --results-every 60: the last row of each minute, byte for byte as in the full file
     out5e = os.path.join(tmp, "every")

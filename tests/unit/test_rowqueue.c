@@ -8,8 +8,10 @@
 #include <setjmp.h>
 #include <stdarg.h>
 #include <stddef.h>
+#include <stdbool.h>
 #include <stdint.h>
 #include <string.h>
+#include <time.h>
 
 #include <cmocka.h>
 
@@ -49,10 +51,10 @@ static void *producer(void *arg)
 	return NULL;
 }
 
-static void test_rows_arrive_in_order_with_their_values_and_texts(void **state)
+static void rows_arrive_in_order(bool spin)
 {
-	(void)state;
 	assert_int_equal(rowq_init(&q, TAGS), 0);
+	rowq_set_spin(&q, spin);
 	pthread_t th;
 	assert_int_equal(pthread_create(&th, NULL, producer, NULL), 0);
 	unsigned next = 0;
@@ -87,10 +89,55 @@ static void test_rows_arrive_in_order_with_their_values_and_texts(void **state)
 	rowq_fini(&q);
 }
 
-static void test_a_full_queue_holds_the_producer_until_cancelled(void **state)
+static void test_rows_arrive_in_order_with_their_values_and_texts(void **state)
+{
+	(void)state;
+	rows_arrive_in_order(false);
+}
+
+/* The same with both waits spinning before they sleep (rowq_set_spin). */
+static void test_spinning_waits_deliver_the_same_rows(void **state)
+{
+	(void)state;
+	rows_arrive_in_order(true);
+}
+
+/* A spinning producer on a full queue still ends up waiting, and a
+ * cancel still wakes it; a spinning consumer on an empty queue gets the
+ * chunk published after its spin has run out (it sleeps, then wakes). */
+static void *late_producer(void *arg)
+{
+	(void)arg;
+	struct timespec d = {0, 3 * (long)ROWQ_SPIN_NS}; /* past the consumer's spin */
+	nanosleep(&d, NULL);
+	struct rowq_chunk *c = rowq_fill_begin(&q);
+	double v[TAGS] = {0};
+	enum tag_status st[TAGS] = {TAG_STATUS_FRESH};
+	assert_true(rowq_add(&q, c, 42, v, st, 0, NULL, NULL));
+	c->end_rc = 0;
+	rowq_fill_end(&q, c);
+	return NULL;
+}
+
+static void test_a_spinning_wait_sleeps_and_wakes(void **state)
 {
 	(void)state;
 	assert_int_equal(rowq_init(&q, TAGS), 0);
+	rowq_set_spin(&q, true);
+	pthread_t th;
+	assert_int_equal(pthread_create(&th, NULL, late_producer, NULL), 0);
+	struct rowq_chunk *c = rowq_take_begin(&q);
+	assert_int_equal(c->row_count, 1);
+	assert_int_equal(c->rows[0].t_ms, 42);
+	rowq_take_end(&q, c);
+	pthread_join(th, NULL);
+	rowq_fini(&q);
+}
+
+static void full_queue_holds_until_cancelled(bool spin)
+{
+	assert_int_equal(rowq_init(&q, TAGS), 0);
+	rowq_set_spin(&q, spin);
 	pthread_t th;
 	/* Nobody takes: the producer fills ROWQ_CHUNKS chunks and waits. */
 	assert_int_equal(pthread_create(&th, NULL, producer, NULL), 0);
@@ -107,6 +154,13 @@ static void test_a_full_queue_holds_the_producer_until_cancelled(void **state)
 	pthread_join(th, NULL); /* returns: the cancel woke the producer */
 	assert_int_equal(q.used, ROWQ_CHUNKS);
 	rowq_fini(&q);
+}
+
+static void test_a_full_queue_holds_the_producer_until_cancelled(void **state)
+{
+	(void)state;
+	full_queue_holds_until_cancelled(false);
+	full_queue_holds_until_cancelled(true);
 }
 
 static void test_chunk_rows_shrink_for_many_tags(void **state)
@@ -154,6 +208,8 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_rows_arrive_in_order_with_their_values_and_texts),
+		cmocka_unit_test(test_spinning_waits_deliver_the_same_rows),
+		cmocka_unit_test(test_a_spinning_wait_sleeps_and_wakes),
 		cmocka_unit_test(test_a_full_queue_holds_the_producer_until_cancelled),
 		cmocka_unit_test(test_chunk_rows_shrink_for_many_tags),
 		cmocka_unit_test(test_extra_bytes_per_row),
