@@ -16,7 +16,7 @@ int rowq_init(struct rowq *q, unsigned tag_count)
 	assert(q != NULL);
 	assert(tag_count <= FG_TAGS_MAX);
 	memset(q, 0, sizeof *q);
-	atomic_init(&q->used_seen, 0);
+	atomic_init(&q->used, 0);
 	q->tag_count = tag_count;
 	size_t row_bytes = (size_t)(tag_count > 0 ? tag_count : 1) *
 			   (sizeof(double) + sizeof(enum tag_status));
@@ -99,13 +99,13 @@ static uint64_t now_ns(void)
 /* Before a wait: spins while the queue holds `busy` chunks (ROWQ_CHUNKS:
  * full, for the producer; 0: empty, for the consumer), for ROWQ_SPIN_NS at
  * the most, looking at the clock every 64 turns. Only a hint: the caller
- * checks again under the mutex. */
+ * looks again under the mutex. */
 static void spin_while(struct rowq *q, unsigned busy)
 {
 	if (!q->spin)
 		return;
 	uint64_t end = 0;
-	for (unsigned i = 0; atomic_load_explicit(&q->used_seen, memory_order_relaxed) == busy;
+	for (unsigned i = 0; atomic_load_explicit(&q->used, memory_order_relaxed) == busy;
 	     i++) {
 #if defined(__x86_64__) || defined(__i386__)
 		__builtin_ia32_pause();
@@ -171,7 +171,6 @@ void rowq_fill_end(struct rowq *q, struct rowq_chunk *c)
 	assert(c == &q->chunks[q->head]);
 	q->head = (q->head + 1) % ROWQ_CHUNKS;
 	q->used++;
-	atomic_store_explicit(&q->used_seen, q->used, memory_order_relaxed);
 	pthread_cond_signal(&q->not_empty);
 	pthread_mutex_unlock(&q->mu);
 }
@@ -193,7 +192,6 @@ void rowq_take_end(struct rowq *q, struct rowq_chunk *c)
 	assert(c == &q->chunks[q->tail]);
 	q->tail = (q->tail + 1) % ROWQ_CHUNKS;
 	q->used--;
-	atomic_store_explicit(&q->used_seen, q->used, memory_order_relaxed);
 	pthread_cond_signal(&q->not_full);
 	pthread_mutex_unlock(&q->mu);
 }

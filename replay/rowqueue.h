@@ -64,8 +64,8 @@ struct rowq {
 	unsigned rows_per_chunk;    /* <= ROWQ_ROWS, see ROWQ_CHUNK_BYTES */
 	size_t extra_size;          /* bytes of rowq_extra per row, 0: none */
 	struct rowq_chunk *chunks;  /* ROWQ_CHUNKS */
-	unsigned head, tail, used;  /* next to fill, next to take, full chunks */
-	_Atomic unsigned used_seen; /* `used` as last set, read without the mutex by a spin */
+	unsigned head, tail;        /* next to fill, next to take */
+	_Atomic unsigned used;      /* full chunks: changed under the mutex, read without it by a spin */
 	bool spin;                  /* rowq_set_spin */
 	bool cancelled;             /* the consumer gave up: the producer stops */
 	pthread_mutex_t mu;

@@ -102,9 +102,8 @@ static void test_spinning_waits_deliver_the_same_rows(void **state)
 	rows_arrive_in_order(true);
 }
 
-/* A spinning producer on a full queue still ends up waiting, and a
- * cancel still wakes it; a spinning consumer on an empty queue gets the
- * chunk published after its spin has run out (it sleeps, then wakes). */
+/* A spinning consumer on an empty queue still gets a chunk published
+ * after its spin has run out (it then waits on the condition variable). */
 static void *late_producer(void *arg)
 {
 	(void)arg;
