@@ -42,26 +42,25 @@
  * monthly exports. */
 #define REPLAY_FILES_MAX 4096
 
+/* Laid out by who writes what once the reader thread runs: a line of
+ * memory that one thread writes per row and the other reads per row moves
+ * between the cores each time (false sharing). In one perf profile of the
+ * bench replay the loads of ahead_mask beside rd_rows_used were 5 % of the
+ * engine thread's samples and 4 % of the reader's. So the reader's fields
+ * and the engine side's each start a line of their own (REPLAY_LINE), and
+ * the fields set up before the threads start, only read after, come first. */
+#define REPLAY_LINE 64
 struct replay {
-	const char *data_path;            /* the file being read */
+	/* -- set up before the threads start; read-only while they run -- */
 	const char *data_paths[REPLAY_FILES_MAX]; /* in time order once sorted */
 	unsigned data_count;
-	uint64_t bytes_before, bytes_all; /* progress over every file */
-	uint64_t rows_overlap;            /* rows not after the previous file's last */
-	struct csvread_stats all;         /* counters summed over the files */
+	uint64_t bytes_all;               /* progress over every file */
 	unsigned threads;                 /* --threads: 2 (reader and results writer apart) or 1 */
-	struct rowq q;                    /* reader -> engine, with 2 threads */
-	uint64_t bytes_seen;              /* reader progress as the engine last saw it */
-	int reader_rc;                    /* the reader thread's exit status */
 	/* With 2 threads the reader thread also evaluates the sections in
 	 * ahead_mask, on an engine of its own (engine_premodel),
 	 * for the rows use_row will take: its own copy of use_row's verdicts. */
-	struct engine *ahead;
 	uint64_t ahead_mask;
 	unsigned ahead_count;
-	uint64_t rd_rows_used;
-	int64_t rd_prev_t_ms;
-	const struct engine_premodel *cur_pre; /* this row's, NULL: evaluate here */
 	uint64_t bytes_first;             /* size of a single data file (progress) */
 	const char *out_dir;
 	int64_t from_t_ms, to_t_ms;       /* INT64_MIN / INT64_MAX when open */
@@ -71,7 +70,38 @@ struct replay {
 	struct histread_opts hopts;
 	struct fg_config *cfg;
 	struct engine *eng;
-	struct histread hist;
+	bool no_results;                  /* --no-results: no results.csv at all */
+	int64_t results_every_ms;         /* --results-every S in ms, 0: every row */
+	char path_results[FG_PATH_MAX + 32], path_events[FG_PATH_MAX + 32],
+		path_report[FG_PATH_MAX + 32], path_summary[FG_PATH_MAX + 32];
+
+	/* -- the queue between them: shared by design, a chunk at a time -- */
+	_Alignas(REPLAY_LINE) struct rowq q; /* reader -> engine, with 2 threads */
+
+	/* -- the reader's: written per row by the reader thread (by the only
+	 * thread, with --threads 1) -- */
+	_Alignas(REPLAY_LINE) struct histread hist;
+	const char *data_path;            /* the file being read */
+	uint64_t bytes_before;            /* progress: the files before this one */
+	struct csvread_stats all;         /* counters summed over the files */
+	struct engine *ahead;             /* evaluates the sections in ahead_mask */
+	uint64_t rd_rows_used;
+	int64_t rd_prev_t_ms;
+	struct rowq_chunk *fill;          /* the chunk being filled */
+	int reader_rc;                    /* the reader thread's exit status */
+	double values[FG_TAGS_MAX];       /* the row read */
+	enum tag_status status[FG_TAGS_MAX];
+	unsigned text_tags[ROWQ_TEXTS];   /* its status texts, for the queue */
+	const char *texts[ROWQ_TEXTS];
+
+	/* -- the engine side's: written per row by the engine thread -- */
+	_Alignas(REPLAY_LINE) const struct engine_premodel *cur_pre; /* this row's, NULL: evaluate here */
+	uint64_t bytes_seen;              /* reader progress as the engine last saw it */
+	uint64_t rows_overlap;            /* rows not after the previous file's last */
+	uint64_t rows_used, rows_outside;
+	int64_t prev_t_ms;
+	bool pending;                     /* a row waits for the end of its interval */
+	int64_t pending_t_ms, pending_slot;
 	FILE *results, *events;
 	struct results_writer rw;         /* results.csv rows, when written */
 	struct report rp;
@@ -86,14 +116,7 @@ struct replay {
 	double (*ref_vals)[FG_TAGS_MAX];
 	unsigned marker_count;           /* --event, in the order given */
 	struct report_marker markers[REPORT_MARKERS_MAX];
-	uint64_t rows_used, rows_outside;
-	int64_t prev_t_ms;
-	bool no_results;                  /* --no-results: no results.csv at all */
-	int64_t results_every_ms;         /* --results-every S in ms, 0: every row */
-	bool pending;                     /* a row waits for the end of its interval */
-	int64_t pending_t_ms, pending_slot;
-	char path_results[FG_PATH_MAX + 32], path_events[FG_PATH_MAX + 32],
-		path_report[FG_PATH_MAX + 32], path_summary[FG_PATH_MAX + 32];
+	_Alignas(REPLAY_LINE) char end_line; /* nothing after the engine's fields shares their line */
 };
 
 static void replay_usage(FILE *f)
@@ -765,8 +788,8 @@ static int use_row(struct replay *rp, int64_t t_ms, const double *values,
 static int read_all(struct replay *rp, int (*row)(struct replay *, int64_t, const double *,
 						    const enum tag_status *))
 {
-	static double values[FG_TAGS_MAX];
-	static enum tag_status status[FG_TAGS_MAX];
+	double *values = rp->values;
+	enum tag_status *status = rp->status;
 	int64_t t_ms;
 	int rc = 0;
 	for (unsigned fi = 0; fi < rp->data_count; fi++) {
@@ -800,16 +823,14 @@ static int row_direct(struct replay *rp, int64_t t_ms, const double *values,
 
 /* ---- two threads: the reader apart (rowqueue.h) ------------------------ */
 
-static struct rowq_chunk *fill; /* the reader thread's chunk being filled */
-
 static void publish(struct replay *rp, int end_rc)
 {
 	uint64_t done, total;
 	histread_progress(&rp->hist, &done, &total);
-	fill->bytes_done = rp->bytes_before + done;
-	fill->end_rc = end_rc;
-	rowq_fill_end(&rp->q, fill);
-	fill = end_rc == 1 ? rowq_fill_begin(&rp->q) : NULL;
+	rp->fill->bytes_done = rp->bytes_before + done;
+	rp->fill->end_rc = end_rc;
+	rowq_fill_end(&rp->q, rp->fill);
+	rp->fill = end_rc == 1 ? rowq_fill_begin(&rp->q) : NULL;
 }
 
 /* What the reader thread worked out ahead for one row (rowq_extra). */
@@ -877,35 +898,35 @@ static void choose_ahead(struct replay *rp)
 static int row_queued(struct replay *rp, int64_t t_ms, const double *values,
 		      const enum tag_status *status)
 {
-	static unsigned tags[ROWQ_TEXTS];
-	static const char *texts[ROWQ_TEXTS];
+	unsigned *tags = rp->text_tags;
+	const char **texts = rp->texts;
 	unsigned n = histread_text_count(&rp->hist);
 	for (unsigned k = 0; k < n && k < ROWQ_TEXTS; k++)
 		histread_text_at(&rp->hist, k, &tags[k], &texts[k]);
 	if (n > ROWQ_TEXTS)
 		n = ROWQ_TEXTS;
-	if (fill == NULL)
+	if (rp->fill == NULL)
 		return -ECANCELED;
-	if (!rowq_add(&rp->q, fill, t_ms, values, status, n, tags, texts)) {
+	if (!rowq_add(&rp->q, rp->fill, t_ms, values, status, n, tags, texts)) {
 		publish(rp, 1);
-		if (fill == NULL)
+		if (rp->fill == NULL)
 			return -ECANCELED; /* the engine side gave up */
-		bool ok = rowq_add(&rp->q, fill, t_ms, values, status, n, tags, texts);
+		bool ok = rowq_add(&rp->q, rp->fill, t_ms, values, status, n, tags, texts);
 		assert(ok);
 		(void)ok;
 	}
 	if (rp->ahead_mask != 0)
-		work_ahead(rp, rowq_extra(&rp->q, fill, fill->row_count - 1), t_ms, values, status);
+		work_ahead(rp, rowq_extra(&rp->q, rp->fill, rp->fill->row_count - 1), t_ms, values, status);
 	return 0;
 }
 
 static void *reader_main(void *arg)
 {
 	struct replay *rp = arg;
-	fill = rowq_fill_begin(&rp->q);
-	int rc = fill != NULL ? read_all(rp, row_queued) : 0;
+	rp->fill = rowq_fill_begin(&rp->q);
+	int rc = rp->fill != NULL ? read_all(rp, row_queued) : 0;
 	rp->reader_rc = rc == -ECANCELED ? 0 : rc;
-	if (fill != NULL)
+	if (rp->fill != NULL)
 		publish(rp, rc == 0 ? 0 : -1);
 	return NULL;
 }
@@ -947,7 +968,9 @@ static int run_threaded(struct replay *rp)
 	uint64_t done;
 	histread_progress(&rp->hist, &done, &rp->bytes_first);
 	choose_ahead(rp);
-	rp->ahead = rp->ahead_mask != 0 ? malloc(sizeof *rp->ahead) : NULL;
+	/* The reader's engine on lines of its own, as the fields in struct replay. */
+	size_t ahead_bytes = (sizeof *rp->ahead + REPLAY_LINE - 1) / REPLAY_LINE * REPLAY_LINE;
+	rp->ahead = rp->ahead_mask != 0 ? aligned_alloc(REPLAY_LINE, ahead_bytes) : NULL;
 	bool bad = rowq_init(&rp->q, rp->cfg->tag_count) != 0;
 	/* Without results.csv the reader and the engine are the only busy
 	 * threads: on two cores or more a wait spins before it sleeps. Timed
