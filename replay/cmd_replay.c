@@ -104,7 +104,7 @@ struct replay {
 	int64_t pending_t_ms, pending_slot;
 	FILE *results, *events;
 	struct results_writer rw;         /* results.csv rows, when written */
-	struct report rp;
+	_Alignas(REPLAY_LINE) struct report rp; /* (rw ends in the writer thread's fields) */
 	struct report_summary sum;
 	struct alarmperf perf;
 	/* the operating window: per section, the tag values at the row of the
