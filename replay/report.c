@@ -318,12 +318,13 @@ static void grid_merge(struct report *rp)
 		rp->slots[j] = slot_merge(rp->slots[2 * j], rp->slots[2 * j + 1]);
 	memset(&rp->slots[half], 0, half * sizeof *rp->slots);
 	for (unsigned k = 0; k < nsec; k++) {
-		for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++) {
-			struct report_cell *c = &rp->cells[cell_at(k, s, 0)];
-			for (size_t j = 0; j < half; j++)
-				c[j] = cell_merge(c[2 * j], c[2 * j + 1]);
-			memset(&c[half], 0, half * sizeof *c);
-		}
+		/* bucket j is written after 2j and 2j+1 are read (j <= 2j) */
+		for (size_t j = 0; j < half; j++)
+			for (unsigned s = 0; s < REPORT_SERIES_COUNT; s++)
+				rp->cells[cell_at(k, s, j)] = cell_merge(rp->cells[cell_at(k, s, 2 * j)],
+									 rp->cells[cell_at(k, s, 2 * j + 1)]);
+		memset(&rp->cells[cell_at(k, 0, half)], 0,
+		       half * REPORT_SERIES_COUNT * sizeof *rp->cells);
 		struct report_mark *m = &rp->marks[mark_at(k, 0)];
 		for (size_t j = 0; j < half; j++)
 			m[j] = mark_merge(m[2 * j], m[2 * j + 1]);

@@ -25,6 +25,7 @@
 #include <unistd.h>
 
 #include "report.h"
+#include "report_int.h"
 
 /* 2026-03-04T05:06:07Z: `date -u -d @1772600767` (GNU coreutils 9.1). */
 #define T0_MS 1772600767000LL
@@ -545,9 +546,7 @@ static void test_million_rows_keep_bucket_count_bounded(void **state)
 	double top = -INFINITY, bottom = INFINITY;
 	uint64_t samples = 0;
 	for (size_t b = 0; b < report_bucket_count(&rp); b++) {
-		/* section 0, series FLOOD_INDEX: cells[series * BUCKETS + bucket] */
-		const struct report_cell *c =
-			&rp.cells[REPORT_SERIES_FLOOD_INDEX * REPORT_BUCKETS_MAX + b];
+		const struct report_cell *c = &rp.cells[cell_at(0, REPORT_SERIES_FLOOD_INDEX, b)];
 		samples += c->finite_count;
 		if (c->finite_count > 0 && c->max > top)
 			top = c->max;
