@@ -116,8 +116,7 @@ struct replay {
 	double (*ref_vals)[FG_TAGS_MAX];
 	unsigned marker_count;           /* --event, in the order given */
 	struct report_marker markers[REPORT_MARKERS_MAX];
-	_Alignas(REPLAY_LINE) char end_line; /* nothing after the engine's fields shares their line */
-};
+}; /* (its alignment pads its size to whole lines: nothing after it shares the last) */
 
 static void replay_usage(FILE *f)
 {

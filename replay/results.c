@@ -366,11 +366,11 @@ int results_writer_start(struct results_writer *w, FILE *f, const struct fg_conf
 	}
 	w->out = malloc(RESULTS_OUT_SIZE);
 	w->last = line_alloc(ncol * sizeof *w->last);
-	if (w->last != NULL)
+	if (w->last != NULL) {
 		memset(w->last, 0, ncol * sizeof *w->last);
-	if (w->last != NULL)
 		for (size_t i = 0; i < ncol; i++)
 			w->last[i].bits = UINT64_MAX; /* a NaN: no number repeats it */
+	}
 	if (!ok || w->out == NULL || w->last == NULL) {
 		free_buffers(w);
 		memset(w, 0, sizeof *w);
