@@ -316,14 +316,6 @@ static void free_buffers(struct results_writer *w)
 	free(w->last);
 }
 
-/* Whole cache lines (RESULTS_LINE): the chunks are filled in one thread
- * and read in the other, the last-number cache written per number by the
- * writer, and none of them shares a line with another's end. */
-static void *line_alloc(size_t bytes)
-{
-	return aligned_alloc(RESULTS_LINE, (bytes + RESULTS_LINE - 1) / RESULTS_LINE * RESULTS_LINE);
-}
-
 int results_writer_start(struct results_writer *w, FILE *f, const struct fg_config *cfg,
 			 bool threaded)
 {
@@ -360,17 +352,15 @@ int results_writer_start(struct results_writer *w, FILE *f, const struct fg_conf
 	size_t nsec = w->section_count > 0 ? w->section_count : 1;
 	bool ok = true;
 	for (unsigned i = 0; i < RESULTS_CHUNKS; i++) {
-		w->chunks[i].v = line_alloc((size_t)w->rows_per_chunk * ncol * sizeof(double));
-		w->chunks[i].codes = line_alloc((size_t)w->rows_per_chunk * nsec * 4);
+		w->chunks[i].v = malloc((size_t)w->rows_per_chunk * ncol * sizeof(double));
+		w->chunks[i].codes = malloc((size_t)w->rows_per_chunk * nsec * 4);
 		ok = ok && w->chunks[i].v != NULL && w->chunks[i].codes != NULL;
 	}
 	w->out = malloc(RESULTS_OUT_SIZE);
-	w->last = line_alloc(ncol * sizeof *w->last);
-	if (w->last != NULL) {
-		memset(w->last, 0, ncol * sizeof *w->last);
+	w->last = calloc(ncol, sizeof *w->last);
+	if (w->last != NULL)
 		for (size_t i = 0; i < ncol; i++)
 			w->last[i].bits = UINT64_MAX; /* a NaN: no number repeats it */
-	}
 	if (!ok || w->out == NULL || w->last == NULL) {
 		free_buffers(w);
 		memset(w, 0, sizeof *w);

@@ -55,12 +55,8 @@ int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 /* A text column's ",name" and a NUL fit: the longest is ",churn_turbulent". */
 #define RESULTS_WORD_SIZE 24
 
-/* Each chunk starts a cache line: the caller writes the chunk it fills
- * every row while the writer thread reads the one before (its v and
- * codes), and a line shared by the two would move between the cores. */
-#define RESULTS_LINE 64
 struct results_chunk {
-	_Alignas(RESULTS_LINE) unsigned row_count;
+	unsigned row_count;
 	int64_t t_ms[RESULTS_ROWS];
 	double *v;             /* rows x col_count: the numbers, NAN when empty */
 	uint8_t *codes;        /* rows x sections x 4: basis, regime, quality, extrapolated */
@@ -86,10 +82,8 @@ struct results_writer {
 	pthread_t thread;
 	pthread_mutex_t mu;
 	pthread_cond_t not_full, not_empty;
-	/* The formatter's own (the writer thread's when threaded), written
-	 * per number: on lines of their own, apart from what the caller
-	 * reads per row above. */
-	_Alignas(RESULTS_LINE) char *out; /* RESULTS_OUT_SIZE bytes */
+	/* The formatter's own (the writer thread's when threaded). */
+	char *out;                  /* RESULTS_OUT_SIZE bytes */
 	size_t out_len;
 	int out_err;                /* the formatter's write error, published as err */
 	/* col_count: the last number of each column and where its text is in
