@@ -104,7 +104,9 @@ struct replay {
 	int64_t pending_t_ms, pending_slot;
 	FILE *results, *events;
 	struct results_writer rw;         /* results.csv rows, when written */
-	_Alignas(REPLAY_LINE) struct report rp; /* (rw ends in the writer thread's fields) */
+	/* on a line apart from rw's last fields, which the results writer's
+	 * thread writes per number */
+	_Alignas(REPLAY_LINE) struct report rp;
 	struct report_summary sum;
 	struct alarmperf perf;
 	/* the operating window: per section, the tag values at the row of the
