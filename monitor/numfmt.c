@@ -200,7 +200,7 @@ int numfmt_digits16(uint64_t x, char out[17])
 __attribute__((always_inline)) static inline int layout(char *buf, bool neg, uint64_t Q,
 						       int p, int e)
 {
-	assert(p >= 15);
+	assert(p >= 12); /* numfmt_sig12's 12, numfmt_full's 15..17 */
 	assert(p <= 17);
 	assert(Q >= POW10[16]);
 	assert(Q < POW10[17]);
@@ -534,6 +534,85 @@ int numfmt_full(double v, char *buf, size_t buf_size)
 	if (n > 0)
 		return n;
 	return numfmt_full_printf(v, buf, buf_size);
+}
+
+/* 10^0..10^22, each exactly a double. */
+static const double EXACT_POW10[23] = {
+	1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,  1e8,  1e9,  1e10, 1e11,
+	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+};
+
+/* |v| scaled by 10^k, -22 <= k <= 22: one correctly rounded operation by an
+ * exact power of ten. */
+static inline double scale10(double a, int k)
+{
+	assert(k >= -22 && k <= 22);
+	return k >= 0 ? a * EXACT_POW10[k] : a / EXACT_POW10[-k];
+}
+
+/*
+ * The fast path of numfmt_sig12, for 10^-11 <= |v| < 10^33 (zero,
+ * subnormals and the rest return -1 and take printf): Y = |v| 10^(11 - e),
+ * e the decimal exponent of |v|, lies in [10^11, 10^12), and the 12 digits
+ * are Y rounded to an integer, half to even as glibc's printf rounds the
+ * exact value. 10^(11 - e) is an exact double for |11 - e| <= 22, so y, Y
+ * computed by one multiplication or division, is Y correctly rounded:
+ * |y - Y| <= ulp(y) / 2 <= 2^-14 (y < 2^40). y's fraction (exact: y and
+ * its integer part are doubles of one binade) is then on the same side of
+ * 1/2 as Y's unless it lies within 2^-14 of 1/2: those, ties among them,
+ * go to printf (about one value in 8 000). e is estimated from the binary
+ * exponent as in full_fast (floor(lg log10 2), the exponent of |v| or one
+ * less) and y >= 10^12 says it was one less.
+ */
+static inline int sig12_fast(double v, char *buf)
+{
+	uint64_t bits;
+	memcpy(&bits, &v, sizeof bits);
+	int be = (int)((bits >> 52) & 0x7ffu);
+	int lg = be - 1023; /* 2^lg <= |v| < 2^(lg+1) */
+	int e = (int)(((int64_t)lg * 78913) >> 18);
+	if (be == 0 || e < -11 || e > 32)
+		return -1;
+	double a = fabs(v);
+	double y = scale10(a, 11 - e);
+	if (y >= 1e12) { /* the estimate was one less */
+		e++;
+		y = scale10(a, 11 - e);
+	}
+	uint64_t q = (uint64_t)y;
+	double frac = y - (double)q;
+	if (__builtin_expect(fabs(frac - 0.5) <= 0x1p-14, 0))
+		return -1; /* too near a tie to tell from y */
+	q += frac > 0.5;
+	if (q == POW10[12]) { /* rounded up to the next power of ten */
+		q = POW10[11];
+		e++;
+	}
+	assert(q >= POW10[11] && q < POW10[12]);
+	return layout(buf, v < 0.0, q * POW10[5], 12, e);
+}
+
+int numfmt_sig12(double v, char *buf, size_t buf_size)
+{
+	assert(buf != NULL);
+	assert(buf_size >= NUMFMT_FULL_SIZE);
+	assert(isfinite(v));
+	int n = sig12_fast(v, buf);
+	if (n > 0)
+		return n;
+	return numfmt_sig12_printf(v, buf, buf_size);
+}
+
+int numfmt_sig12_printf(double v, char *buf, size_t buf_size)
+{
+	assert(buf != NULL);
+	assert(buf_size >= NUMFMT_FULL_SIZE);
+	assert(isfinite(v));
+	if (v == 0.0)
+		v = 0.0; /* no "-0" */
+	int n = snprintf(buf, buf_size, "%.12g", v);
+	assert(n > 0 && (size_t)n < buf_size);
+	return n;
 }
 
 int numfmt_full_printf(double v, char *buf, size_t buf_size)

@@ -71,7 +71,7 @@ int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 				continue;
 			*p++ = ',';
 			if (isfinite(r->v[i])) /* NaN: an empty field */
-				p += numfmt_full(r->v[i], p, NUMFMT_FULL_SIZE);
+				p += numfmt_sig12(r->v[i], p, NUMFMT_FULL_SIZE);
 		}
 		p = put_text(p, flood_basis_name(r->basis));
 		if (section_regime_applies(t))
@@ -196,7 +196,7 @@ static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 		memmove(p, w->out + other->off, NUMFMT_FULL_SIZE);
 		n = other->len;
 	} else {
-		int len = numfmt_full(v, p, NUMFMT_FULL_SIZE);
+		int len = numfmt_sig12(v, p, NUMFMT_FULL_SIZE);
 		assert((unsigned)len - 1u < NUMFMT_FULL_SIZE - 1u); /* 1..NUMFMT_FULL_SIZE - 1 */
 		n = (uint32_t)len;
 		seen->row = w->row_no;

@@ -81,9 +81,11 @@ def column(out, name):
 
 
 a, b = column("rm", "R404.expanded_level_m"), column("rp", "R404.expanded_level_m")
-# x * 100 / 12 and back: a few ulps, so 1e-12 relative (float64 rounding).
+# x * 100 / 12 and back: a few ulps apart in the engine (float64 rounding),
+# so results.csv's 12-digit texts are the same or one unit of the 12th
+# digit apart: 1e-11 relative at most.
 worst = max(abs(x - y) / abs(x) for x, y in zip(a, b))
-ok(len(a) == 1800 and worst < 1e-12, f"R404 expanded level equal within 1e-12 (worst {worst:.1e})")
+ok(len(a) == 1800 and worst <= 1e-11, f"R404 expanded level equal within 1e-11 (worst {worst:.1e})")
 # Without span_m the level cannot be metres: the bubble model falls back to
 # clear_liquid_height_m (8.0 m in the demo) and says nothing false.
 rc3, so3, se3 = fg("replay", "-c", p, os.path.join(tmp, "pct.csv"), "--out", os.path.join(tmp, "rn"))

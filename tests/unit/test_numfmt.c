@@ -378,6 +378,162 @@ static void test_digits16_matches_printf(void **state)
 	assert_string_equal(a, "9999999999999999");
 }
 
+/* numfmt_sig12 against its definition, snprintf's "%.12g" (-0 as "0"),
+ * and read back by strtod to within half a unit of the 12th digit. */
+static void sig12_as_printf(double v)
+{
+	char fast[NUMFMT_FULL_SIZE], ref[NUMFMT_FULL_SIZE];
+	int n = numfmt_sig12(v, fast, sizeof fast);
+	snprintf(ref, sizeof ref, "%.12g", v == 0.0 ? 0.0 : v);
+	if (strcmp(fast, ref) != 0)
+		fail_msg("%.17g: fast \"%s\", printf \"%s\"", v, fast, ref);
+	assert_int_equal(n, (int)strlen(fast));
+	numfmt_sig12_printf(v, ref, sizeof ref);
+	assert_string_equal(fast, ref);
+	double back = strtod(fast, NULL);
+	/* the 12 digits' half unit: 5e-12 of the leading digit's place (the
+	 * largest share of |v| when v is 1.00000000000 10^e); a subnormal's
+	 * own spacing as well */
+	if (!(fabs(back - v) <= 5e-12 * fabs(v) * (1.0 + 1e-15) + DBL_TRUE_MIN))
+		fail_msg("%.17g: \"%s\" reads back as %.17g", v, fast, back);
+}
+
+static void test_sig12_matches_printf_on_random_bits(void **state)
+{
+	(void)state;
+	for (int i = 0; i < 300000; i++) {
+		uint64_t bits = next_u64();
+		double v;
+		memcpy(&v, &bits, sizeof v);
+		if (isfinite(v))
+			sig12_as_printf(v);
+	}
+	for (int i = 0; i < 100000; i++) { /* subnormals */
+		uint64_t bits = next_u64() & ((1ull << 52) - 1);
+		double v;
+		memcpy(&v, &bits, sizeof v);
+		sig12_as_printf(v);
+		sig12_as_printf(-v);
+	}
+}
+
+/* Every binade from 2^-60 to 2^115 (past both ends of the fast path,
+ * 1e-11 and 1e33) with random significands, their ends and neighbours,
+ * either sign, and result-sized values and short decimals. */
+static void test_sig12_every_binade_matches_printf(void **state)
+{
+	(void)state;
+	for (int b = -60; b <= 115; b++) {
+		for (int i = 0; i < 4000; i++) {
+			uint64_t m = (1ull << 52) | (next_u64() & ((1ull << 52) - 1));
+			double v = ldexp((double)m, b - 52);
+			sig12_as_printf(i & 1 ? -v : v);
+		}
+		double lo = ldexp(1.0, b), hi = nextafter(ldexp(1.0, b + 1), 0.0);
+		sig12_as_printf(lo);
+		sig12_as_printf(nextafter(lo, INFINITY));
+		sig12_as_printf(hi);
+		sig12_as_printf(nextafter(hi, 0.0));
+	}
+	for (int i = 0; i < 500000; i++) {
+		double mant = (double)(next_u64() >> 11) * 0x1p-53;
+		double v = mant * pow(10.0, (double)((int)(next_u64() % 24) - 8));
+		sig12_as_printf(next_u64() & 1 ? v : -v);
+		double s = (double)(next_u64() % 1000000) / pow(10.0, (double)(next_u64() % 9));
+		sig12_as_printf(s);
+		sig12_as_printf(s / 3.0);
+	}
+}
+
+/* Powers of ten and their neighbours (where the decimal exponent is
+ * estimated one low, and where 9.999999999995 rounds up to the next
+ * power), and values next to the ties of the 12th digit: the 13-digit
+ * decimal d.ddddddddddd5 10^e read as a double and the doubles a few ulps
+ * either side, where y's fraction lies within 2^-14 of 1/2 and printf
+ * decides. */
+static void test_sig12_powers_of_ten_and_ties_match_printf(void **state)
+{
+	(void)state;
+	for (int e = -323; e <= 308; e++) {
+		char text[32];
+		snprintf(text, sizeof text, "1e%d", e);
+		double v = strtod(text, NULL);
+		for (int k = 0; k < 4; k++) {
+			sig12_as_printf(v);
+			sig12_as_printf(-v);
+			v = nextafter(v, 0.0);
+		}
+		snprintf(text, sizeof text, "9.999999999995e%d", e);
+		v = strtod(text, NULL);
+		if (!isfinite(v)) /* 9.999999999995e308 is past DBL_MAX */
+			continue;
+		sig12_as_printf(v);
+		sig12_as_printf(nextafter(v, 0.0));
+		sig12_as_printf(nextafter(v, INFINITY));
+	}
+	for (int i = 0; i < 200000; i++) {
+		char text[40];
+		uint64_t mant = 100000000000u + next_u64() % 900000000000u;
+		int e10 = (int)(next_u64() % 50u) - 25;
+		snprintf(text, sizeof text, "%llu5e%d", (unsigned long long)mant, e10);
+		double v = strtod(text, NULL), up = v, down = v;
+		sig12_as_printf(v);
+		for (int k = 0; k < 3; k++) {
+			up = nextafter(up, INFINITY);
+			down = nextafter(down, -INFINITY);
+			sig12_as_printf(up);
+			sig12_as_printf(down);
+		}
+	}
+	/* exact ties, half to even: 0.5, 1.5 and 2.5 units of the 12th digit */
+	char out[NUMFMT_FULL_SIZE];
+	numfmt_sig12(100000000000.5, out, sizeof out);
+	assert_string_equal(out, "100000000000");
+	numfmt_sig12(100000000001.5, out, sizeof out);
+	assert_string_equal(out, "100000000002");
+	numfmt_sig12(100000000002.5, out, sizeof out);
+	assert_string_equal(out, "100000000002");
+}
+
+/* The layouts, worked out by hand from the %g rules (exponent below -4 or
+ * from the precision, 12, up: d.ddde+XX; else fixed; trailing zeros and a
+ * bare point dropped), and what the bench rows print. */
+static void test_sig12_layouts(void **state)
+{
+	(void)state;
+	const struct {
+		double v;
+		const char *text;
+	} cases[] = {
+		{0.0, "0"},
+		{-0.0, "0"},
+		{1.0, "1"},
+		{-2.5, "-2.5"},
+		{0.1, "0.1"},
+		{1.0 / 3.0, "0.333333333333"},
+		{2.0 / 3.0, "0.666666666667"},
+		{3191.7999999999997, "3191.8"},
+		{71.40963124627822, "71.4096312463"},
+		{0.06022339177600404, "0.060223391776"},
+		{18753.0, "18753"},
+		{0.0001, "0.0001"},
+		{0.00012345678901234, "0.000123456789012"},
+		{0.000012345678901234, "1.23456789012e-05"},
+		{999999999999.0, "999999999999"},
+		{999999999999.5, "1e+12"},
+		{1234567890123.0, "1.23456789012e+12"},
+		{-1.5e-300, "-1.5e-300"},
+		{1e33, "1e+33"},
+		{123456789012345678.0, "1.23456789012e+17"},
+	};
+	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+		char out[NUMFMT_FULL_SIZE];
+		int n = numfmt_sig12(cases[i].v, out, sizeof out);
+		assert_string_equal(out, cases[i].text);
+		assert_int_equal(n, (int)strlen(cases[i].text));
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -394,6 +550,10 @@ int main(void)
 		cmocka_unit_test(test_full_layouts),
 		cmocka_unit_test(test_digits8_matches_printf),
 		cmocka_unit_test(test_digits16_matches_printf),
+		cmocka_unit_test(test_sig12_matches_printf_on_random_bits),
+		cmocka_unit_test(test_sig12_every_binade_matches_printf),
+		cmocka_unit_test(test_sig12_powers_of_ten_and_ties_match_printf),
+		cmocka_unit_test(test_sig12_layouts),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
