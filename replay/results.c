@@ -2,7 +2,7 @@
  * results.c - see results.h.
  *
  * results_write_row builds a row in one buffer and hands it to fwrite once
- * (number text from numfmt_full, names copied). The writer (second half)
+ * (number text from numfmt_sig12, names copied). The writer (second half)
  * lays out the same row text from its chunks: the columns that apply are
  * listed once at start-up, so a row is a flat run of numbers, and a number
  * that repeats its column's last one (a constant property, a held value)
@@ -168,14 +168,14 @@ static char *put_time(struct results_writer *w, char *p, int64_t t_ms)
 }
 
 /* Number c of a row: copied from the column's last text when it repeats
- * the column's last number, else from another column's when the row
- * already had this number (flood_index often equals flood_pct,
- * jet_flood_pct too), else formatted. The same double gives the same
- * text, so nothing changes but the time taken. The texts are read where
- * they were written in the output block (a row or more back, long
- * stored; NUMFMT_FULL_SIZE bytes, by memmove: the same row's may be
- * nearer than that), not kept in a copy: a copy would read back
- * numfmt_full's fresh stores of every number, which stalls. */
+ * the column's last number, else formatted. The same double gives the
+ * same text, so nothing changes but the time taken. The text is read
+ * where it was written in the output block (a row or more back, long
+ * stored; NUMFMT_FULL_SIZE bytes), not kept in a copy: a copy would read
+ * back numfmt_sig12's fresh stores of every number, which stalls. (A
+ * second cache, of the numbers already in the row being formatted, paid
+ * while the numbers took 36 ns; at 14 ns it cost more than it saved:
+ * `benchtool fmt` medians 771 -> 679 ns a row without it, 6 runs each.) */
 static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 {
 	*p++ = ',';
@@ -186,27 +186,15 @@ static char *put_number(struct results_writer *w, char *p, unsigned c, double v)
 		return p;
 	struct results_last *last = &w->last[c];
 	if (bits == last->bits) { /* a NaN never matches: none yet, or written out */
-		memmove(p, w->out + last->off, NUMFMT_FULL_SIZE);
+		memmove(p, w->out + last->off, NUMFMT_FULL_SIZE); /* may overlap: a short row */
 		return p + last->len;
 	}
-	struct results_seen *seen = &w->seen[(bits * 0x9e3779b97f4a7c15u) >> 60];
-	uint32_t n;
-	if (seen->row == w->row_no && seen->bits == bits) {
-		const struct results_last *other = &w->last[seen->col];
-		memmove(p, w->out + other->off, NUMFMT_FULL_SIZE);
-		n = other->len;
-	} else {
-		int len = numfmt_sig12(v, p, NUMFMT_FULL_SIZE);
-		assert((unsigned)len - 1u < NUMFMT_FULL_SIZE - 1u); /* 1..NUMFMT_FULL_SIZE - 1 */
-		n = (uint32_t)len;
-		seen->row = w->row_no;
-		seen->bits = bits;
-		seen->col = c;
-	}
+	int len = numfmt_sig12(v, p, NUMFMT_FULL_SIZE);
+	assert((unsigned)len - 1u < NUMFMT_FULL_SIZE - 1u); /* 1..NUMFMT_FULL_SIZE - 1 */
 	last->bits = bits;
 	last->off = (uint32_t)(p - w->out);
-	last->len = n;
-	return p + n;
+	last->len = (uint32_t)len;
+	return p + len;
 }
 
 /* Formats the rows of c into the output block, writing the block out
@@ -218,7 +206,6 @@ static void format_chunk(struct results_writer *w, const struct results_chunk *c
 		if (RESULTS_OUT_SIZE - w->out_len < worst)
 			flush_out(w);
 		char *p = w->out + w->out_len;
-		w->row_no++; /* a new row: the numbers seen in the last one are stale */
 		p = put_time(w, p, c->t_ms[r]); /* in range: checked by results_writer_row */
 		const double *v = c->v + (size_t)r * w->col_count;
 		const uint8_t *code = c->codes + (size_t)r * w->section_count * 4;

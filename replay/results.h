@@ -5,9 +5,8 @@
  * jet_flood_pct), in the order of result_fields[]. A field that applies but
  * has no value at a time is empty. Text columns follow the numeric ones:
  * flood_basis, regime (bubble columns only), quality, extrapolated
- * (true/false). Numbers are the shortest of 15..17 significant digits that
- * reads back as the same double (numfmt_full): byte-identical for the same
- * input.
+ * (true/false). Numbers have 12 significant digits, as printf's "%.12g"
+ * writes them (numfmt_sig12): byte-identical for the same input.
  *
  * Two ways to write it. results_write_row formats one row and hands it to
  * stdio: the plain definition, which test_results checks the writer
@@ -93,13 +92,6 @@ struct results_writer {
 		uint64_t bits;
 		uint32_t off, len;
 	} *last;
-	/* Numbers of the row being formatted, by a hash of their bits: the
-	 * column whose cache holds the text (row_no tells this row's apart). */
-	uint64_t row_no;
-	struct results_seen {
-		uint64_t row, bits;
-		unsigned col;
-	} seen[16];
 	/* The text columns, ",name" by code, and the day of the last time
 	 * written ("YYYY-MM-DDT" for t_ms in [day_ms, day_ms + 1 day)). */
 	struct results_word {
