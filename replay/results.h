@@ -42,11 +42,17 @@ int results_write_row(FILE *f, const struct fg_config *cfg, int64_t t_ms,
 #define RESULTS_COLS_MAX (FG_SECTIONS_MAX * RF_COUNT)
 /* Bytes of a chunk's numbers: rows per chunk is this over a row's numbers
  * (at most RESULTS_ROWS), so the queue stays under a few MB whatever the
- * config (4 x 256 KiB, and 1 MiB for the output block). */
+ * config (8 x 256 KiB, and 1 MiB for the output block). */
 #define RESULTS_CHUNK_BYTES (256u * 1024u)
 #define RESULTS_ROWS 1024
-/* Chunks in the queue: a few of slack either way. */
-#define RESULTS_CHUNKS 4
+/* Chunks in the queue: slack either way. With three busy threads on two
+ * cores, the writer's thread is off its core for a time slice now and
+ * then; 8 chunks (about 7 000 bench rows) let the engine carry on meanwhile
+ * where 4 made it wait: 1 M bench rows with results, medians 1.77 -> 1.71,
+ * 1.81 -> 1.58, 2.31 -> 2.18 and 2.07 -> 1.77 s in four rounds of 5 or 6
+ * interleaved runs, as the host's load came and went (peak RSS 13 -> 15
+ * MiB). */
+#define RESULTS_CHUNKS 8
 /* The output block, bytes: written when less than a row's worst case is
  * left. */
 #define RESULTS_OUT_SIZE (1u << 20)
