@@ -10,6 +10,22 @@
 #include "alarm.h"
 #include "ewma.h"
 
+/* The saturation band and approach (validate.h), or none. */
+static void set_sat_limits(struct tag_state *s)
+{
+	const struct tag_cfg *c = s->cfg;
+	if (!s->saturable || !isfinite(c->min) || !isfinite(c->max) || !(c->max > c->min)) {
+		s->sat_lo = INFINITY;
+		s->sat_hi = -INFINITY;
+		s->sat_from = INFINITY;
+		return;
+	}
+	double span = c->max - c->min;
+	s->sat_lo = c->max - VALIDATE_SAT_BELOW * span;
+	s->sat_hi = c->max + VALIDATE_SAT_ABOVE * span;
+	s->sat_from = c->max - VALIDATE_SAT_APPROACH * (c->max - c->min);
+}
+
 void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period_s)
 {
 	assert(s != NULL);
@@ -27,12 +43,18 @@ void validate_init(struct tag_state *s, const struct tag_cfg *cfg, double period
 	s->lag_dt_s = NAN; /* no weight kept yet */
 	s->quality = FG_QUALITY_BAD;
 	s->reason = ALARM_REASON_STALE; /* nothing read yet */
+	s->lo_lim = isfinite(cfg->min) ? cfg->min : -INFINITY;
+	s->hi_lim = isfinite(cfg->max) ? cfg->max : INFINITY;
+	s->spike_lim = cfg->spike_limit > 0.0 ? cfg->spike_limit : INFINITY;
+	s->frozen_ms = cfg->frozen_s > 0.0 ? cfg->frozen_s * 1000.0 : 0.0;
+	set_sat_limits(s);
 }
 
 void validate_set_saturable(struct tag_state *s, bool saturable)
 {
 	assert(s != NULL);
 	s->saturable = saturable;
+	set_sat_limits(s);
 }
 
 static void set_bad(struct tag_state *s, const char *reason)
@@ -103,22 +125,6 @@ static void filter(struct tag_state *s, int64_t t_ms, double x)
 	s->value_si = config_tag_to_si(c, s->value);
 }
 
-/* A reading at the end of its span (saturated there): exempt from frozen. */
-static bool at_span_end(const struct tag_cfg *c, double v)
-{
-	return (isfinite(c->min) && v <= c->min) || (isfinite(c->max) && v >= c->max);
-}
-
-/* Is v in the saturation band of a saturable tag with a finite span? */
-static bool in_sat_band(const struct tag_state *s, double v)
-{
-	const struct tag_cfg *c = s->cfg;
-	if (!s->saturable || !isfinite(c->min) || !isfinite(c->max) || !(c->max > c->min))
-		return false;
-	double span = c->max - c->min;
-	return v >= c->max - VALIDATE_SAT_BELOW * span && v <= c->max + VALIDATE_SAT_ABOVE * span;
-}
-
 /* Accepts a saturated reading as `max`: "at least max", uncertain. The
  * median and lag run on max so the value settles there; the frozen check is
  * restarted (a pegged reading does not move). */
@@ -145,24 +151,22 @@ static void fresh(struct tag_state *s, int64_t t_ms, double v)
 		return;
 	}
 	bool had = s->quality != FG_QUALITY_BAD && isfinite(s->accepted);
-	if (in_sat_band(s, v)) {
-		if (s->saturated || (had && s->accepted >= c->max - VALIDATE_SAT_APPROACH *
-								  (c->max - c->min))) {
+	if (v >= s->sat_lo && v <= s->sat_hi) { /* in the saturation band */
+		if (s->saturated || (had && s->accepted >= s->sat_from)) {
 			saturate(s, t_ms);
 			return;
 		}
-		if (v > c->max) { /* a jump above the span: a failed transmitter */
+		if (v > s->hi_lim) { /* a jump above the span: a failed transmitter */
 			set_bad(s, ALARM_REASON_OUT_OF_RANGE);
 			return;
 		}
 	}
 	s->saturated = false;
-	if ((isfinite(c->min) && v < c->min) || (isfinite(c->max) && v > c->max)) {
+	if (v < s->lo_lim || v > s->hi_lim) {
 		set_bad(s, ALARM_REASON_OUT_OF_RANGE);
 		return;
 	}
-	if (had && c->spike_limit > 0.0 && fabs(v - s->accepted) > c->spike_limit &&
-	    !s->spike_held) {
+	if (had && fabs(v - s->accepted) > s->spike_lim && !s->spike_held) {
 		s->spike_held = true; /* hold the last value once; quality uncertain */
 		s->quality = FG_QUALITY_UNCERTAIN;
 		s->reason = ALARM_REASON_SPIKE;
@@ -177,8 +181,9 @@ static void fresh(struct tag_state *s, int64_t t_ms, double v)
 	s->seen = true;
 	s->last_fresh_t_ms = t_ms;
 	filter(s, t_ms, v);
-	bool frozen = c->frozen_s > 0.0 && !at_span_end(c, v) &&
-		      (double)(t_ms - s->frozen_since_t_ms) >= c->frozen_s * 1000.0;
+	/* a reading at either end of its span (saturated there) is exempt */
+	bool frozen = s->frozen_ms > 0.0 && !(v <= s->lo_lim || v >= s->hi_lim) &&
+		      (double)(t_ms - s->frozen_since_t_ms) >= s->frozen_ms;
 	s->quality = frozen ? FG_QUALITY_UNCERTAIN : FG_QUALITY_GOOD;
 	s->reason = frozen ? ALARM_REASON_FROZEN : NULL;
 }

@@ -69,6 +69,15 @@ enum tag_status {
 
 struct tag_state {
 	const struct tag_cfg *cfg;
+	/* cfg's limits in the form the per-sample checks compare against, set
+	 * by validate_init and validate_set_saturable (cfg must not change
+	 * after): an open end as an infinity, a check that is off as a limit
+	 * nothing passes. The same comparisons, on the same doubles. */
+	double lo_lim, hi_lim;       /* min, max; -inf, +inf when open */
+	double sat_lo, sat_hi;       /* the saturation band; +inf, -inf when it has none */
+	double sat_from;             /* an accepted value from which max is reached without a jump */
+	double spike_lim;            /* spike_limit; +inf when off */
+	double frozen_ms;            /* frozen_s in ms; 0 when off */
 	bool saturable;              /* a DP: may saturate at its max (see above) */
 	bool saturated;              /* the current reading is "at least max" */
 	int64_t stale_ms;            /* stale_periods x period, ms (0: never stale) */
