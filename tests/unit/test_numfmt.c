@@ -102,30 +102,65 @@ static void same_as_printf(double v)
 		fail_msg("%.17g: \"%s\" does not read back", v, fast);
 }
 
-static void test_full_fast_path_matches_printf_on_random_bits(void **state)
+/* The value sets both formatters are checked on, each value given to
+ * check (same_as_printf or sig12_as_printf). */
+typedef void (*check_fn)(double v);
+
+/* n random bit patterns, the finite ones. */
+static void on_random_bits(check_fn check, int n)
 {
-	(void)state;
-	for (int i = 0; i < 300000; i++) {
+	for (int i = 0; i < n; i++) {
 		uint64_t bits = next_u64();
 		double v;
 		memcpy(&v, &bits, sizeof v);
 		if (isfinite(v))
-			same_as_printf(v);
+			check(v);
 	}
+}
+
+/* n values of the size results have (1e-8..1e16, either sign), and short
+ * decimals as a historian writes them (12.5, 0.0725, 2700) and thirds of
+ * them. */
+static void on_result_sized_values(check_fn check, int n)
+{
+	for (int i = 0; i < n; i++) {
+		double mant = (double)(next_u64() >> 11) * 0x1p-53;
+		double v = mant * pow(10.0, (double)((int)(next_u64() % 24) - 8));
+		check(next_u64() & 1 ? v : -v);
+		double s = (double)(next_u64() % 1000000) / pow(10.0, (double)(next_u64() % 9));
+		check(s);
+		check(s / 3.0);
+	}
+}
+
+/* Every binade from 2^lo to 2^hi: per random significands of either
+ * sign, the binade's ends and the values next to them. */
+static void on_every_binade(check_fn check, int lo, int hi, int per)
+{
+	for (int b = lo; b <= hi; b++) {
+		for (int i = 0; i < per; i++) {
+			uint64_t m = (1ull << 52) | (next_u64() & ((1ull << 52) - 1));
+			double v = ldexp((double)m, b - 52);
+			check(i & 1 ? -v : v);
+		}
+		double first = ldexp(1.0, b), last = nextafter(ldexp(1.0, b + 1), 0.0);
+		check(first);
+		check(nextafter(first, INFINITY));
+		check(last);
+		check(nextafter(last, 0.0));
+	}
+}
+
+static void test_full_fast_path_matches_printf_on_random_bits(void **state)
+{
+	(void)state;
+	on_random_bits(same_as_printf, 300000);
 }
 
 static void test_full_fast_path_matches_printf_on_result_sized_values(void **state)
 {
 	(void)state;
-	for (int i = 0; i < 1000000; i++) {
-		double mant = (double)(next_u64() >> 11) * 0x1p-53;
-		double v = mant * pow(10.0, (double)((int)(next_u64() % 24) - 8));
-		same_as_printf(next_u64() & 1 ? v : -v);
-		/* Short decimals, as a historian writes them: 12.5, 0.0725, 2700 */
-		double s = (double)(next_u64() % 1000000) / pow(10.0, (double)(next_u64() % 9));
-		same_as_printf(s);
-		same_as_printf(s / 3.0);
-	}
+	on_result_sized_values(same_as_printf, 1000000);
 }
 
 static void test_full_edge_values_match_printf(void **state)
@@ -266,18 +301,7 @@ static void test_full_rounding_boundaries_match_printf(void **state)
 static void test_full_every_binade_of_the_fast_paths_matches_printf(void **state)
 {
 	(void)state;
-	for (int b = -60; b <= 62; b++) {
-		for (int i = 0; i < 4000; i++) {
-			uint64_t m = (1ull << 52) | (next_u64() & ((1ull << 52) - 1));
-			double v = ldexp((double)m, b - 52);
-			same_as_printf(i & 1 ? -v : v);
-		}
-		double lo = ldexp(1.0, b), hi = nextafter(ldexp(1.0, b + 1), 0.0);
-		same_as_printf(lo);
-		same_as_printf(nextafter(lo, INFINITY));
-		same_as_printf(hi);
-		same_as_printf(nextafter(hi, 0.0));
-	}
+	on_every_binade(same_as_printf, -60, 62, 4000);
 	/* short decimals in every decade of the range: 15 digits or fewer */
 	for (int d = -13; d <= 16; d++)
 		for (int i = 0; i < 2000; i++) {
@@ -401,13 +425,7 @@ static void sig12_as_printf(double v)
 static void test_sig12_matches_printf_on_random_bits(void **state)
 {
 	(void)state;
-	for (int i = 0; i < 300000; i++) {
-		uint64_t bits = next_u64();
-		double v;
-		memcpy(&v, &bits, sizeof v);
-		if (isfinite(v))
-			sig12_as_printf(v);
-	}
+	on_random_bits(sig12_as_printf, 300000);
 	for (int i = 0; i < 100000; i++) { /* subnormals */
 		uint64_t bits = next_u64() & ((1ull << 52) - 1);
 		double v;
@@ -418,31 +436,12 @@ static void test_sig12_matches_printf_on_random_bits(void **state)
 }
 
 /* Every binade from 2^-60 to 2^115 (past both ends of the fast path,
- * 1e-11 and 1e33) with random significands, their ends and neighbours,
- * either sign, and result-sized values and short decimals. */
+ * 1e-11 and 1e33), and result-sized values and short decimals. */
 static void test_sig12_every_binade_matches_printf(void **state)
 {
 	(void)state;
-	for (int b = -60; b <= 115; b++) {
-		for (int i = 0; i < 4000; i++) {
-			uint64_t m = (1ull << 52) | (next_u64() & ((1ull << 52) - 1));
-			double v = ldexp((double)m, b - 52);
-			sig12_as_printf(i & 1 ? -v : v);
-		}
-		double lo = ldexp(1.0, b), hi = nextafter(ldexp(1.0, b + 1), 0.0);
-		sig12_as_printf(lo);
-		sig12_as_printf(nextafter(lo, INFINITY));
-		sig12_as_printf(hi);
-		sig12_as_printf(nextafter(hi, 0.0));
-	}
-	for (int i = 0; i < 500000; i++) {
-		double mant = (double)(next_u64() >> 11) * 0x1p-53;
-		double v = mant * pow(10.0, (double)((int)(next_u64() % 24) - 8));
-		sig12_as_printf(next_u64() & 1 ? v : -v);
-		double s = (double)(next_u64() % 1000000) / pow(10.0, (double)(next_u64() % 9));
-		sig12_as_printf(s);
-		sig12_as_printf(s / 3.0);
-	}
+	on_every_binade(sig12_as_printf, -60, 115, 4000);
+	on_result_sized_values(sig12_as_printf, 500000);
 }
 
 /* Powers of ten and their neighbours (where the decimal exponent is
