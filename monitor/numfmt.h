@@ -8,7 +8,7 @@
  * printf-free path (128-bit integers, see numfmt.c) that gives the same
  * text several times faster. results.csv, millions of numbers a replay,
  * takes 12 significant digits instead (numfmt_sig12: 5e-12 relative, a
- * third fewer bytes, formatted in under half the time). What a
+ * fifth fewer bytes, formatted in under half the time). What a
  * person reads (tables, the live view, the report, the printed summary) is
  * rounded to a sensible precision by the caller, and durations are written
  * as h:mm:ss by numfmt_duration.
