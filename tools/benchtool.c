@@ -16,8 +16,9 @@
  *
  *   benchtool fmt CONFIG             results.csv's formatting alone, on the
  *                                    results the engine gives for the
- *                                    pre-parsed samples: numfmt_full per
- *                                    number (and its printf definition), and
+ *                                    pre-parsed samples: numfmt_sig12 per
+ *                                    number (results.csv's), numfmt_full
+ *                                    (JSON's) and its printf definition, and
  *                                    the replay's results writer per row in
  *                                    one thread, written to /dev/null
  *
